@@ -11,7 +11,7 @@ from skfem.helpers import dot, grad
 
 @BilinearForm
 def heat_capacity(u, v, w):
-    """Capacity (mass) matrix entries ∫ ρc φ_j φ_i dA; ``w.volumetric_heat_capacity`` in J/(m³·K)."""
+    """Capacity (mass) entries ∫ ρc φ_j φ_i dA; ``w.volumetric_heat_capacity`` in J/(m³·K)."""
     return w.volumetric_heat_capacity * u * v
 
 

@@ -6,6 +6,7 @@ from collections.abc import Mapping
 from dataclasses import dataclass, field
 
 import numpy as np
+
 from geometries import SectionMesh
 
 from .boundary import BoundaryCondition, Convection, Insulated
@@ -72,8 +73,7 @@ class ThermalModel:
                 )
         if not np.isfinite(self.initial_temperature) or self.initial_temperature <= -273.15:
             raise ModelError(
-                "initial_temperature must be above -273.15 degC, "
-                f"got {self.initial_temperature!r}"
+                f"initial_temperature must be above -273.15 degC, got {self.initial_temperature!r}"
             )
         if self.element_order not in (1, 2):
             raise ModelError(f"element_order must be 1 or 2, got {self.element_order!r}")
@@ -90,9 +90,7 @@ class ThermalModel:
     @property
     def exchange_groups(self) -> tuple[str, ...]:
         """Edge groups that exchange heat with the surroundings, sorted by name."""
-        return tuple(
-            sorted(n for n, c in self.boundaries.items() if isinstance(c, Convection))
-        )
+        return tuple(sorted(n for n, c in self.boundaries.items() if isinstance(c, Convection)))
 
     @property
     def convection(self) -> dict[str, Convection]:

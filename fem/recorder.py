@@ -50,7 +50,7 @@ class HistoryRecorder:
         self._fields.append(temperature[self._system.vertex_dofs].copy())
 
     def histories(self) -> dict[str, object]:
-        columns = list(zip(*self._rows))
+        columns = list(zip(*self._rows, strict=True))
         probes = np.array(columns[6]).reshape(len(self._rows), -1)
         flows = np.array(columns[7]).reshape(len(self._rows), -1)
         return dict(

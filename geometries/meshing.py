@@ -111,7 +111,7 @@ def _read_mesh(curve_groups: dict[str, list[int]], region_surfaces: dict[str, li
         types, _, nodes = gmsh.model.mesh.getElements(dim, tag)
         blocks = [
             index[np.asarray(n, dtype=np.int64)].reshape(-1, nodes_per_element)
-            for kind, n in zip(types, nodes)
+            for kind, n in zip(types, nodes, strict=True)
             if gmsh.model.mesh.getElementProperties(kind)[3] == nodes_per_element
         ]
         return np.vstack(blocks) if blocks else np.empty((0, nodes_per_element), dtype=np.int64)
@@ -127,4 +127,6 @@ def _read_mesh(curve_groups: dict[str, list[int]], region_surfaces: dict[str, li
         name: np.vstack([connectivity(1, c, 2) for c in curves])
         for name, curves in curve_groups.items()
     }
-    return section_mesh_from_arrays(points, np.vstack(triangle_blocks), edge_lines, triangle_regions)
+    return section_mesh_from_arrays(
+        points, np.vstack(triangle_blocks), edge_lines, triangle_regions
+    )

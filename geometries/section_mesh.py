@@ -89,9 +89,9 @@ class SectionMesh:
         facets = np.concatenate([self.mesh.boundaries[g] for g in groups])
         ends = self.mesh.p[:, self.mesh.facets[:, facets]]  # (2, 2, n): coordinate, end, facet
         fractions = np.linspace(0.0, 1.0, 5)
-        samples = ends[:, 0, None, :] + fractions[None, :, None] * (ends[:, 1] - ends[:, 0])[
-            :, None, :
-        ]
+        samples = (
+            ends[:, 0, None, :] + fractions[None, :, None] * (ends[:, 1] - ends[:, 0])[:, None, :]
+        )
         tree = cKDTree(samples.reshape(2, -1).T)
         distance, _ = tree.query(self.mesh.p.T)
         return float(distance.max())
@@ -193,9 +193,7 @@ def _facts(mesh: MeshTri) -> SectionFacts:
     centres = corners.mean(axis=1)
     area = float(areas.sum())
     centroid = (float(centres[0] @ areas / area), float(centres[1] @ areas / area))
-    facet_lengths = np.linalg.norm(
-        mesh.p[:, mesh.facets[0]] - mesh.p[:, mesh.facets[1]], axis=0
-    )
+    facet_lengths = np.linalg.norm(mesh.p[:, mesh.facets[0]] - mesh.p[:, mesh.facets[1]], axis=0)
     return SectionFacts(
         area=area,
         centroid=centroid,

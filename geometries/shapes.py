@@ -91,7 +91,9 @@ class Rectangle:
         for name in ("width", "height"):
             value = getattr(self, name)
             if not np.isfinite(value) or value <= 0:
-                raise GeometryError(f"Rectangle {name} must be a finite length > 0 m, got {value!r}")
+                raise GeometryError(
+                    f"Rectangle {name} must be a finite length > 0 m, got {value!r}"
+                )
         unknown = set(self.edge_names) - set(_RECTANGLE_SIDES)
         if unknown:
             raise GeometryError(
