@@ -1,0 +1,1 @@
+"""Every file format the project writes, one module per format."""
