@@ -12,6 +12,7 @@ M + ½·Δt·A, so one LU factorisation serves the whole run.
 from __future__ import annotations
 
 import math
+import numbers
 import time as clock
 
 import numpy as np
@@ -153,7 +154,11 @@ def _check_arguments(end_time, time_step, output_interval, startup_steps):
         raise ModelError(
             f"time_step must be a time in (0, end_time = {end_time}] s, got {time_step!r}"
         )
-    if not isinstance(startup_steps, int) or isinstance(startup_steps, bool) or startup_steps < 0:
+    if (
+        not isinstance(startup_steps, numbers.Integral)
+        or isinstance(startup_steps, bool)
+        or (startup_steps < 0)
+    ):
         raise ModelError(f"startup_steps must be a whole number >= 0, got {startup_steps!r}")
     intervals = math.ceil(end_time / output_interval - 1e-9)
     interval = end_time / intervals
@@ -162,7 +167,7 @@ def _check_arguments(end_time, time_step, output_interval, startup_steps):
 
 
 def _positive(value) -> bool:
-    return isinstance(value, int | float) and math.isfinite(value) and value > 0
+    return isinstance(value, numbers.Real) and math.isfinite(value) and value > 0
 
 
 def _run_checks(model: ThermalModel, histories: dict, step: float, startup: int) -> RunChecks:
@@ -184,7 +189,9 @@ def _run_checks(model: ThermalModel, histories: dict, step: float, startup: int)
     if excursion > EXCURSION_TOLERANCE * max(high - low, 1.0):
         warnings.append(
             f"temperatures left the range of initial and ambient values [{low}, {high}] degC "
-            f"by {excursion:.3g} K; refine the mesh near the cooled edges or the first steps"
+            f"by {excursion:.3g} K; consistent-capacity elements overshoot when the step is far "
+            "below the diffusion time of the surface elements: refine the mesh near the "
+            "heat-exchanging edges or take a larger step"
         )
 
     ratio = _step_to_surface_diffusion(model, step)
