@@ -24,7 +24,7 @@ class BiotNumber:
     length : float
         The length scale L in m.
     heat_transfer_coefficient : float
-        The length-weighted mean h over the heat-exchanging edges in W/(m²·K).
+        The surface-weighted mean h over the heat-exchanging edges in W/(m²·K).
     explanation : str
         What the length is and how to read the number.
     """
@@ -40,17 +40,18 @@ def biot_numbers(model: ThermalModel) -> tuple[BiotNumber, ...]:
     """Biot numbers of the model's section under its convective conditions.
 
     Only edges that exchange heat count as exposed. With several coefficients the mean
-    weighted by edge length is used.
+    weighted by surface area is used. V and A_s are the section's volume and exchanging
+    surface (per metre of depth for planar sections, revolved for axisymmetric ones).
     """
     exchange = model.convection
     if not exchange:
         raise AdvisorError("the model has no edge that exchanges heat, so it has no Biot number")
     facts = model.section.facts
-    lengths = {n: facts.edge_lengths[n] for n in exchange}
-    exposed = sum(lengths.values())
-    h_mean = sum(c.heat_transfer_coefficient * lengths[n] for n, c in exchange.items()) / exposed
+    surfaces = {n: facts.surface_areas[n] for n in exchange}
+    exposed = sum(surfaces.values())
+    h_mean = sum(c.heat_transfer_coefficient * surfaces[n] for n, c in exchange.items()) / exposed
     k = model.material.conductivity
-    volume_to_surface = facts.area / exposed
+    volume_to_surface = facts.volume / exposed
     farthest = model.section.max_distance_to(exchange)
     return (
         BiotNumber(
@@ -58,7 +59,8 @@ def biot_numbers(model: ThermalModel) -> tuple[BiotNumber, ...]:
             h_mean * volume_to_surface / k,
             volume_to_surface,
             h_mean,
-            "length = area / exposed perimeter (V/A_s); the number the lumped rule of thumb "
+            "length = volume / exchanging surface (V/A_s; planar: area / exposed perimeter); "
+            "the number the lumped rule of thumb "
             f"uses: below {COMMON_LIMIT} (common practice) one temperature usually stands for "
             "the part",
         ),

@@ -19,7 +19,8 @@ from .errors import AdvisorError
 
 @dataclass(frozen=True)
 class LumpedModel:
-    """The classical lumped model of a part (planar: per metre of depth).
+    """The classical lumped model of a part, from the section's volume and exchanging surface
+    (planar: per metre of depth; axisymmetric: the solid of revolution).
 
     Attributes
     ----------
@@ -44,13 +45,13 @@ class LumpedModel:
                 "the model has no edge that exchanges heat, so a lumped model has no time "
                 "constant; give at least one edge group a Convection condition"
             )
-        lengths = model.section.facts.edge_lengths
-        conductance = sum(c.heat_transfer_coefficient * lengths[n] for n, c in exchange.items())
+        surfaces = model.section.facts.surface_areas
+        conductance = sum(c.heat_transfer_coefficient * surfaces[n] for n, c in exchange.items())
         ambient = (
-            sum(c.heat_transfer_coefficient * lengths[n] * c.ambient for n, c in exchange.items())
+            sum(c.heat_transfer_coefficient * surfaces[n] * c.ambient for n, c in exchange.items())
             / conductance
         )
-        capacity = model.material.volumetric_heat_capacity * model.section.facts.area
+        capacity = model.material.volumetric_heat_capacity * model.section.facts.volume
         return cls(capacity / conductance, ambient, float(model.initial_temperature))
 
     def temperature(self, times: np.ndarray) -> np.ndarray:

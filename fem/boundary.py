@@ -45,15 +45,16 @@ class Insulated:
     Parameters
     ----------
     reason : str
-        ``"insulated"`` or ``"symmetry"``; reported, with no effect on the equations.
+        ``"insulated"``, ``"symmetry"`` or ``"axis"`` (the axis of an axisymmetric section);
+        reported, with no effect on the equations.
     """
 
     reason: str = "insulated"
 
     def __post_init__(self) -> None:
-        if self.reason not in ("insulated", "symmetry"):
+        if self.reason not in ("insulated", "symmetry", "axis"):
             raise ModelError(
-                f"Insulated reason must be 'insulated' or 'symmetry', got {self.reason!r}"
+                f"Insulated reason must be 'insulated', 'symmetry' or 'axis', got {self.reason!r}"
             )
 
 

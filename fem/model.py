@@ -7,7 +7,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from geometries import SectionMesh
+from geometries import AXIS_GROUP, GeometryError, SectionMesh
 
 from .boundary import BoundaryCondition, Convection, Insulated
 from .errors import ModelError
@@ -16,7 +16,8 @@ from .materials import Material
 
 @dataclass(frozen=True)
 class ThermalModel:
-    """Transient conduction in a planar section, per metre of depth.
+    """Transient conduction in a section: planar (per metre of depth) or axisymmetric (the
+    solid of revolution about x = 0).
 
     Parameters
     ----------
@@ -25,7 +26,8 @@ class ThermalModel:
     material : Material
         Properties of the solid.
     boundaries : dict of str to boundary condition
-        One condition for *every* edge group of the section, keyed by group name.
+        One condition for *every* edge group of the section, keyed by group name. The axis of
+        an axisymmetric section needs none (it is added as ``Insulated("axis")``).
     initial_temperature : float
         Uniform starting temperature in °C.
     probes : dict of str to (x, y)
@@ -54,7 +56,16 @@ class ThermalModel:
 
     def __post_init__(self) -> None:
         groups = set(self.section.edge_groups)
-        named = set(self.boundaries)
+        boundaries = dict(self.boundaries)
+        if self.section.axisymmetric and AXIS_GROUP in groups:
+            axis = boundaries.setdefault(AXIS_GROUP, Insulated("axis"))
+            if not isinstance(axis, Insulated):
+                raise ModelError(
+                    f"the axis of an axisymmetric section carries no heat flow; remove the "
+                    f"{type(axis).__name__} condition on {AXIS_GROUP!r}"
+                )
+        object.__setattr__(self, "boundaries", boundaries)
+        named = set(boundaries)
         if named - groups:
             raise ModelError(
                 f"boundary conditions name edge group(s) {sorted(named - groups)} that the "
@@ -77,12 +88,10 @@ class ThermalModel:
             )
         if self.element_order not in (1, 2):
             raise ModelError(f"element_order must be 1 or 2, got {self.element_order!r}")
-        mesh = self.section.mesh
         for name, point in self.probes.items():
-            xy = np.asarray(point, dtype=float).reshape(2, 1)
             try:
-                mesh.element_finder()(xy[0], xy[1])
-            except ValueError:
+                self.section.locate(np.asarray(point, dtype=float).reshape(2, 1))
+            except GeometryError:
                 raise ModelError(
                     f"probe {name!r} at {tuple(point)} m lies outside the section"
                 ) from None

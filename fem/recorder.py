@@ -33,7 +33,7 @@ class HistoryRecorder:
         self._rows.append(
             (
                 time,
-                float(self._system.area_weights @ temperature),
+                float(self._system.volume_weights @ temperature),
                 temperature[low],
                 temperature[high],
                 self._locations[:, low],

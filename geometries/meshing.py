@@ -2,13 +2,14 @@
 
 gmsh keeps one global state per process. All access goes through :func:`_gmsh_session`, which
 holds a lock, starts gmsh quietly and always finalises it, so repeated meshing in one process is
-safe and parallel meshing runs in separate processes. Edge groups are assigned *after* gmsh has
-built the geometry, by matching each boundary curve to the shape's named edge primitives, and
-every curve must be matched: an unnamed edge is an error, never a silent insulated boundary.
+safe and parallel meshing runs in separate processes. Edge groups are assigned *after* gmsh's
+booleans, by matching every boundary curve to the shapes' named edge primitives, and every curve
+must be matched: an unnamed edge is an error, never a silent insulated boundary.
 """
 
 from __future__ import annotations
 
+import math
 import threading
 from collections.abc import Iterator
 from contextlib import contextmanager
@@ -18,35 +19,70 @@ import numpy as np
 import pygmsh
 
 from .errors import GeometryError
+from .primitives import EdgeArc, EdgeEllipse, EdgePrimitive, EdgeSegment
+from .section import AXIS_GROUP, DEFAULT_MAX_ELEMENTS, Section
 from .section_mesh import SectionMesh, section_mesh_from_arrays
-from .shapes import EdgeSegment, Rectangle
+from .shapes import (
+    Composite,
+    Difference,
+    Intersection,
+    Outline,
+    Renamed,
+    Shape,
+    SymmetryCut,
+    Union,
+)
 
 _GMSH_LOCK = threading.Lock()
-_CURVE_SAMPLES = 7
-_MATCH_TOLERANCE = 1e-7  # relative to the section size
+_CURVE_SAMPLES = 9
+_MATCH_TOLERANCE = 1e-6  # relative to the section size
+_TRIANGLE_AREA = math.sqrt(3) / 4  # an equilateral triangle of unit side
+_MAX_ARC = 2 * math.pi / 3  # arcs are built in pieces no longer than this
 
 
 @contextmanager
-def _gmsh_session() -> Iterator[pygmsh.occ.Geometry]:
-    with _GMSH_LOCK, pygmsh.occ.Geometry() as geometry:
+def _gmsh_session() -> Iterator[None]:
+    with _GMSH_LOCK, pygmsh.occ.Geometry():
         gmsh.option.setNumber("General.Terminal", 0)
-        yield geometry
+        try:
+            yield
+        except GeometryError:
+            raise
+        except Exception as error:  # gmsh reports every failure as a bare Exception
+            raise GeometryError(f"gmsh could not build or mesh the section: {error}") from None
 
 
-def mesh_section(section: Rectangle, size: float) -> SectionMesh:
-    """Mesh a section into P1 triangles with gmsh.
+def mesh_section(
+    section: Section | Shape,
+    size: float,
+    *,
+    order: int = 1,
+    refine: dict[str, tuple[float, float]] | None = None,
+    max_elements: int = DEFAULT_MAX_ELEMENTS,
+    curvature_elements: int = 12,
+) -> SectionMesh:
+    """Mesh a section into triangles with gmsh.
 
     Parameters
     ----------
-    section : Rectangle
-        The section to mesh.
+    section : Section or Shape
+        What to mesh (a bare shape is a planar section).
     size : float
-        Target element size in m; > 0 and smaller than the section.
+        Largest element size in m; > 0 and not above the section's extent.
+    order : int
+        1 for straight-sided triangles, 2 for quadratic ones that follow curved edges.
+    refine : dict of str to (float, float), optional
+        Per edge group, ``(size, growth)``: element size in m at the group's edges and how fast
+        it grows with distance from them (1.2 means each element about 20 % larger than the
+        one before), up to ``size``.
+    max_elements : int
+        Refuse, before meshing, a request whose estimated triangle count exceeds this.
+    curvature_elements : int
+        Elements at least per full turn of a curved edge (0 to switch off).
 
     Returns
     -------
     SectionMesh
-        Triangulation with the section's edge groups and region.
 
     Examples
     --------
@@ -58,54 +94,330 @@ def mesh_section(section: Rectangle, size: float) -> SectionMesh:
     >>> round(mesh.facts.area * 1e6, 6)  # mm²
     800.0
     """
-    if not np.isfinite(size) or size <= 0:
+    if not isinstance(section, Section):
+        section = Section(section)
+    shape = section.shape
+    _check_options(shape, size, order, refine, max_elements, curvature_elements)
+    primitives = shape.edges()
+    tolerance = _MATCH_TOLERANCE * shape.size
+
+    with _gmsh_session():
+        regions = _build_regions(shape, tolerance)
+        gmsh.model.occ.synchronize()
+        curve_groups = _name_curves(section, primitives, regions, tolerance)
+        unknown = sorted(set(refine or {}) - set(curve_groups))
+        if unknown:
+            raise GeometryError(
+                f"refine names edge group(s) {unknown} that the section does not have; its "
+                f"groups are {sorted(curve_groups)}"
+            )
+        _check_element_count(regions, curve_groups, size, refine or {}, max_elements)
+        _set_sizes(size, curve_groups, refine or {}, curvature_elements)
+        gmsh.model.mesh.generate(2)
+        if order == 2:
+            gmsh.model.mesh.setOrder(2)
+        return _read_mesh(
+            curve_groups, regions, order, section.axisymmetric, shape.symmetry_multiplier()
+        )
+
+
+def _check_options(shape, size, order, refine, max_elements, curvature_elements) -> None:
+    if not isinstance(size, int | float | np.floating) or not (math.isfinite(size) and size > 0):
         raise GeometryError(f"mesh size must be a finite length > 0 m, got {size!r}")
-    if size > section.size:
+    if size > shape.size:
         raise GeometryError(
-            f"mesh size {size} m is larger than the section ({section.size} m); "
+            f"mesh size {size} m is larger than the section ({shape.size:.6g} m); "
             "choose a size below the section's smallest feature"
         )
-    with _gmsh_session() as geometry:
-        x0, y0 = section.corner
-        geometry.add_rectangle([x0, y0, 0.0], section.width, section.height)
-        geometry.synchronize()
-        curve_groups = _name_curves(section.edges(), section.size)
-        surfaces = [tag for _, tag in gmsh.model.getEntities(2)]
-
-        gmsh.option.setNumber("Mesh.MeshSizeMax", size)
-        gmsh.option.setNumber("Mesh.MeshSizeMin", 0.0)
-        gmsh.option.setNumber("Mesh.MeshSizeFromPoints", 0)
-        gmsh.option.setNumber("Mesh.MeshSizeExtendFromBoundary", 0)
-        gmsh.model.mesh.generate(2)
-        return _read_mesh(curve_groups, {section.region: surfaces})
-
-
-def _name_curves(edges: list[EdgeSegment], scale: float) -> dict[str, list[int]]:
-    """Assign every boundary curve of the current model to the edge group it lies on."""
-    tolerance = _MATCH_TOLERANCE * scale
-    groups: dict[str, list[int]] = {}
-    for _, tag in gmsh.model.getEntities(1):
-        low, high = gmsh.model.getParametrizationBounds(1, tag)
-        t = np.linspace(low[0], high[0], _CURVE_SAMPLES)
-        points = np.reshape(gmsh.model.getValue(1, tag, t), (-1, 3))[:, :2]
-        matches = {e.group for e in edges if e.distance(points).max() <= tolerance}
-        midpoint = tuple(np.round(points[_CURVE_SAMPLES // 2], 6))
-        if not matches:
-            raise GeometryError(f"the boundary curve through {midpoint} m matches no named edge")
-        if len(matches) > 1:
+    if order not in (1, 2):
+        raise GeometryError(f"element order must be 1 or 2, got {order!r}")
+    if not isinstance(max_elements, int) or max_elements < 1:
+        raise GeometryError(f"max_elements must be a whole number >= 1, got {max_elements!r}")
+    if not isinstance(curvature_elements, int) or curvature_elements < 0:
+        raise GeometryError(
+            f"curvature_elements must be a whole number >= 0, got {curvature_elements!r}"
+        )
+    for group, value in (refine or {}).items():
+        try:
+            local, growth = (float(v) for v in value)
+        except (TypeError, ValueError):
             raise GeometryError(
-                f"the boundary curve through {midpoint} m lies on edges of several groups "
-                f"{sorted(matches)}; give overlapping edges one name"
+                f"refine[{group!r}] must be (size in m, growth factor), got {value!r}"
+            ) from None
+        if not (0 < local <= size):
+            raise GeometryError(
+                f"refine[{group!r}] size must be in (0, {size}] m (the global size), got {local}"
             )
-        groups.setdefault(matches.pop(), []).append(tag)
+        if not (growth > 1):
+            raise GeometryError(f"refine[{group!r}] growth must be > 1, got {growth}")
+
+
+# ---------------------------------------------------------------------------------------------
+# Geometry
+# ---------------------------------------------------------------------------------------------
+
+
+def _build_regions(shape: Shape, tolerance: float) -> dict[str, list[int]]:
+    """Build ``shape`` in gmsh's OCC kernel; return the surface tags of each region."""
+    node = shape.expanded()
+    if isinstance(node, Renamed):
+        return _build_regions(node.shape, tolerance)
+    if isinstance(node, Composite):
+        built = [_build_surfaces(part) for part in node.parts]
+        flat = [dimtag for part in built for dimtag in part]
+        _, mapping = gmsh.model.occ.fragment(flat[:1], flat[1:])
+        owner: dict[int, str] = {}
+        position = 0
+        for part, dimtags in zip(node.parts, built, strict=True):
+            for _ in dimtags:  # later parts overwrite earlier ones where they overlap
+                for dim, tag in mapping[position]:
+                    if dim == 2:
+                        owner[tag] = part.region
+                position += 1
+        regions: dict[str, list[int]] = {}
+        for tag, region in sorted(owner.items()):
+            regions.setdefault(region, []).append(tag)
+        return regions
+    if isinstance(node, SymmetryCut) and isinstance(node.shape.expanded(), Composite):
+        inner = _build_regions(node.shape, tolerance)
+        flat = [(2, tag) for tags in inner.values() for tag in tags]
+        regions_of = [region for region, tags in inner.items() for _ in tags]
+        _check_symmetric(flat, node)
+        _, mapping = gmsh.model.occ.intersect(
+            flat, [_half_plane(node, node.normal)], removeObject=True, removeTool=True
+        )
+        regions = {}
+        for region, result in zip(regions_of, mapping, strict=False):
+            regions.setdefault(region, []).extend(t for d, t in result if d == 2)
+        return regions
+    return {shape.region: [tag for _, tag in _build_surfaces(node)]}
+
+
+def _build_surfaces(shape: Shape) -> list[tuple[int, int]]:
+    """Build one single-region shape; return its surface dim-tags."""
+    occ = gmsh.model.occ
+    node = shape.expanded()
+    if isinstance(node, Renamed):
+        return _build_surfaces(node.shape)
+    if isinstance(node, Outline):
+        return [(2, occ.addPlaneSurface([_curve_loop(node)]))]
+    if isinstance(node, Union | Composite):
+        parts = [
+            _build_surfaces(s) for s in (node.shapes if isinstance(node, Union) else node.parts)
+        ]
+        result, _ = occ.fuse(parts[0], [d for p in parts[1:] for d in p])
+        return _surfaces(result)
+    if isinstance(node, Difference):
+        result = _build_surfaces(node.base)
+        for tool in node.tools:
+            before = _area(result)
+            result, _ = occ.cut(result, _build_surfaces(tool))
+            result = _surfaces(result)
+            if before - _area(result) <= 1e-9 * before:
+                groups = sorted({e.group for e in tool.edges()})
+                raise GeometryError(
+                    f"a shape removed from the part (edges {groups}) lies outside it and "
+                    "removes nothing"
+                )
+        if not result:
+            raise GeometryError("a difference removes the whole part: nothing is left")
+        return result
+    if isinstance(node, Intersection):
+        parts = [_build_surfaces(s) for s in node.shapes]
+        result = parts[0]
+        for other in parts[1:]:
+            result, _ = occ.intersect(result, other)
+            result = _surfaces(result)
+        if not result or _area(result) == 0:
+            raise GeometryError("the shapes of an intersection have no area in common")
+        return result
+    if isinstance(node, SymmetryCut):
+        whole = _build_surfaces(node.shape)
+        _check_symmetric(whole, node)
+        result, _ = occ.intersect(whole, [_half_plane(node, node.normal)])
+        return _surfaces(result)
+    raise GeometryError(f"cannot build a shape of type {type(node).__name__}")
+
+
+def _surfaces(dimtags) -> list[tuple[int, int]]:
+    return [(d, t) for d, t in dimtags if d == 2]
+
+
+def _area(dimtags) -> float:
+    return float(sum(gmsh.model.occ.getMass(d, t) for d, t in dimtags))
+
+
+def _check_symmetric(whole: list[tuple[int, int]], cut: SymmetryCut) -> None:
+    """Refuse a symmetry cut through a shape that is not symmetric about the line."""
+    occ = gmsh.model.occ
+    halves = []
+    for normal in (cut.normal, -cut.normal):
+        copies = occ.copy(whole)
+        half, _ = occ.intersect(copies, [_half_plane(cut, normal)])
+        halves.append(_area(half))
+        occ.remove(half, recursive=True)
+    total = sum(halves)
+    if total == 0 or abs(halves[0] - halves[1]) > 1e-6 * total:
+        raise GeometryError(
+            f"the section is not symmetric about the cut through {tuple(cut.point)} m "
+            f"(the two sides have areas {halves[0]:.6g} and {halves[1]:.6g} m^2); model the "
+            "whole section or cut on a true symmetry line"
+        )
+
+
+def _half_plane(cut: SymmetryCut, normal: np.ndarray) -> tuple[int, int]:
+    line = cut.cut_line()
+    a, b = np.asarray(line.start), np.asarray(line.end)
+    reach = float(np.linalg.norm(b - a))
+    corners = [a, b, b + reach * normal, a + reach * normal]
+    occ = gmsh.model.occ
+    points = [occ.addPoint(x, y, 0.0) for x, y in corners]
+    lines = [occ.addLine(points[i], points[(i + 1) % 4]) for i in range(4)]
+    return (2, occ.addPlaneSurface([occ.addCurveLoop(lines)]))
+
+
+def _curve_loop(outline: Outline) -> int:
+    occ = gmsh.model.occ
+    pieces = outline.pieces
+    if len(pieces) == 1 and isinstance(pieces[0], EdgeEllipse):
+        return occ.addCurveLoop(_ellipse_curves(pieces[0]))
+    if len(pieces) == 1 and isinstance(pieces[0], EdgeArc):  # a whole circle
+        arc = pieces[0]
+        start = occ.addPoint(*arc.start, 0.0)
+        return occ.addCurveLoop(_arc_curves(arc, start, start))
+    vertices = [occ.addPoint(*piece.start, 0.0) for piece in pieces]
+    curves = []
+    for i, piece in enumerate(pieces):
+        start, end = vertices[i], vertices[(i + 1) % len(pieces)]
+        if isinstance(piece, EdgeSegment):
+            curves.append(occ.addLine(start, end))
+        else:
+            curves.extend(_arc_curves(piece, start, end))
+    return occ.addCurveLoop(curves)
+
+
+def _arc_curves(arc: EdgeArc, start: int, end: int) -> list[int]:
+    occ = gmsh.model.occ
+    n = max(1, math.ceil(abs(arc.sweep) / _MAX_ARC - 1e-9))
+    centre = occ.addPoint(*arc.centre, 0.0)
+    points = [start]
+    for k in range(1, n):
+        angle = arc.start_angle + arc.sweep * k / n
+        points.append(
+            occ.addPoint(
+                arc.centre[0] + arc.radius * math.cos(angle),
+                arc.centre[1] + arc.radius * math.sin(angle),
+                0.0,
+            )
+        )
+    points.append(end)
+    return [occ.addCircleArc(points[k], centre, points[k + 1]) for k in range(n)]
+
+
+def _ellipse_curves(ellipse: EdgeEllipse) -> list[int]:
+    occ = gmsh.model.occ
+    samples = ellipse.sample(5)[:-1]  # the four ends of the semi-axes
+    centre = occ.addPoint(*ellipse.centre, 0.0)
+    major = 0 if ellipse.semi_x >= ellipse.semi_y else 1
+    major_point = occ.addPoint(*samples[major], 0.0)
+    points = [occ.addPoint(x, y, 0.0) for x, y in samples]
+    return [
+        occ.addEllipseArc(points[k], centre, major_point, points[(k + 1) % 4]) for k in range(4)
+    ]
+
+
+# ---------------------------------------------------------------------------------------------
+# Edge groups
+# ---------------------------------------------------------------------------------------------
+
+
+def _name_curves(
+    section: Section,
+    primitives: tuple[EdgePrimitive, ...],
+    regions: dict[str, list[int]],
+    tolerance: float,
+) -> dict[str, list[int]]:
+    """Assign every boundary curve to an edge group: the shapes' names, then the rules, then
+    the axis."""
+    surfaces = [(2, tag) for tags in regions.values() for tag in tags]
+    boundary = gmsh.model.getBoundary(surfaces, combined=True, oriented=False)
+    groups: dict[str, list[int]] = {}
+    for _, tag in sorted({(d, abs(t)) for d, t in boundary}):
+        points = _curve_points(tag)
+        group = None
+        for primitive in primitives:
+            if primitive.distance(points).max() <= tolerance:
+                group = primitive.group  # later primitives have priority
+        for rule in section.rules:
+            if rule.claims(points, tolerance):
+                group = rule.group
+        if section.axisymmetric and np.abs(points[:, 0]).max() <= tolerance:
+            group = AXIS_GROUP
+        if group is None:
+            midpoint = tuple(float(v) for v in np.round(points[_CURVE_SAMPLES // 2], 9))
+            raise GeometryError(
+                f"the boundary curve through {midpoint} m belongs to no edge group; known "
+                f"groups are {sorted({p.group for p in primitives})}"
+            )
+        groups.setdefault(group, []).append(tag)
     return groups
 
 
-def _read_mesh(curve_groups: dict[str, list[int]], region_surfaces: dict[str, list[int]]):
+def _curve_points(tag: int) -> np.ndarray:
+    low, high = gmsh.model.getParametrizationBounds(1, tag)
+    t = np.linspace(low[0], high[0], _CURVE_SAMPLES)
+    return np.reshape(gmsh.model.getValue(1, tag, t), (-1, 3))[:, :2]
+
+
+# ---------------------------------------------------------------------------------------------
+# Sizes and meshing
+# ---------------------------------------------------------------------------------------------
+
+
+def _check_element_count(regions, curve_groups, size, refine, max_elements) -> None:
+    area = sum(gmsh.model.occ.getMass(2, t) for tags in regions.values() for t in tags)
+    estimate = area / (_TRIANGLE_AREA * size**2)
+    for group, (local, growth) in refine.items():
+        length = sum(gmsh.model.occ.getMass(1, c) for c in curve_groups[group])
+        # Triangles in the band where the size grows linearly from ``local`` to ``size``.
+        estimate += length / (_TRIANGLE_AREA * (growth - 1)) * (1 / local - 1 / size)
+    if estimate > max_elements:
+        raise GeometryError(
+            f"this mesh would have about {estimate:,.0f} triangles, more than max_elements = "
+            f"{max_elements:,}; choose a larger size or raise max_elements"
+        )
+
+
+def _set_sizes(size, curve_groups, refine, curvature_elements) -> None:
+    option = gmsh.option.setNumber
+    option("Mesh.MeshSizeMax", size)
+    option("Mesh.MeshSizeMin", 0.0)
+    option("Mesh.MeshSizeFromPoints", 0)
+    option("Mesh.MeshSizeExtendFromBoundary", 0)
+    option("Mesh.MeshSizeFromCurvature", curvature_elements)
+    if not refine:
+        return
+    field = gmsh.model.mesh.field
+    ramps = []
+    for group, (local, growth) in refine.items():
+        distance = field.add("Distance")
+        field.setNumbers(distance, "CurvesList", curve_groups[group])
+        field.setNumber(distance, "Sampling", 200)
+        ramp = field.add("MathEval")
+        field.setString(ramp, "F", f"min({size}, {local} + {growth - 1} * F{distance})")
+        ramps.append(ramp)
+    smallest = field.add("Min")
+    field.setNumbers(smallest, "FieldsList", ramps)
+    field.setAsBackgroundMesh(smallest)
+
+
+def _read_mesh(curve_groups, regions, order, axisymmetric, multiplier) -> SectionMesh:
     node_tags, coordinates, _ = gmsh.model.mesh.getNodes()
     index = np.full(int(node_tags.max()) + 1, -1, dtype=np.int64)
     index[node_tags.astype(np.int64)] = np.arange(len(node_tags))
     points = np.reshape(coordinates, (-1, 3))[:, :2]
+    triangle_nodes = 3 if order == 1 else 6
+    line_nodes = 2 if order == 1 else 3
 
     def connectivity(dim: int, tag: int, nodes_per_element: int) -> np.ndarray:
         types, _, nodes = gmsh.model.mesh.getElements(dim, tag)
@@ -114,19 +426,24 @@ def _read_mesh(curve_groups: dict[str, list[int]], region_surfaces: dict[str, li
             for kind, n in zip(types, nodes, strict=True)
             if gmsh.model.mesh.getElementProperties(kind)[3] == nodes_per_element
         ]
-        return np.vstack(blocks) if blocks else np.empty((0, nodes_per_element), dtype=np.int64)
+        return np.vstack(blocks) if blocks else np.empty((0, nodes_per_element), np.int64)
 
     triangle_blocks, triangle_regions, count = [], {}, 0
-    for region, surfaces in region_surfaces.items():
-        blocks = [connectivity(2, s, 3) for s in surfaces]
+    for region, surfaces in regions.items():
+        blocks = [connectivity(2, s, triangle_nodes) for s in surfaces]
         n = sum(len(b) for b in blocks)
         triangle_blocks.extend(blocks)
         triangle_regions[region] = np.arange(count, count + n)
         count += n
     edge_lines = {
-        name: np.vstack([connectivity(1, c, 2) for c in curves])
+        name: np.vstack([connectivity(1, c, line_nodes) for c in curves])
         for name, curves in curve_groups.items()
     }
     return section_mesh_from_arrays(
-        points, np.vstack(triangle_blocks), edge_lines, triangle_regions
+        points,
+        np.vstack(triangle_blocks),
+        edge_lines,
+        triangle_regions,
+        axisymmetric=axisymmetric,
+        symmetry_multiplier=multiplier,
     )

@@ -62,7 +62,7 @@ def test_model_refuses_missing_and_unknown_edge_groups():
         (lambda: Material(-1.0, 7850.0, 500.0), r"conductivity must be .* > 0 W/\(m\*K\)"),
         (lambda: Convection(0.0, 20.0), "heat_transfer_coefficient must be"),
         (lambda: Convection(10.0, -300.0), "above -273.15 degC, got -300.0"),
-        (lambda: Insulated("adiabatic"), "'insulated' or 'symmetry', got 'adiabatic'"),
+        (lambda: Insulated("adiabatic"), "'insulated', 'symmetry' or 'axis', got 'adiabatic'"),
     ],
 )
 def test_bad_physical_values_are_refused(make, message):

@@ -28,11 +28,16 @@ def summary(assessment: Assessment, files: list[str]) -> dict:
         "caution": CAUTION,
         "inputs": {
             "section": {
-                "kind": "planar, per metre of depth",
+                "kind": "axisymmetric, whole solid of revolution"
+                if facts.axisymmetric
+                else "planar, per metre of depth",
                 "area_m2": facts.area,
                 "centroid_m": list(facts.centroid),
                 "edge_lengths_m": facts.edge_lengths,
                 "region_areas_m2": facts.region_areas,
+                "volume_m3": facts.volume,
+                "surface_areas_m2": facts.surface_areas,
+                "symmetry_multiplier": facts.symmetry_multiplier,
                 "mesh_nodes": int(model.section.mesh.p.shape[1]),
                 "mesh_triangles": int(model.section.mesh.t.shape[1]),
                 "element_order": model.element_order,

@@ -23,8 +23,10 @@ def write_vtk_series(solution: Solution, folder: Path, stem: str = "temperature"
     """
     folder = Path(folder)
     folder.mkdir(parents=True, exist_ok=True)
-    mesh = solution.model.section.mesh
-    points = np.column_stack([mesh.p.T, np.zeros(mesh.p.shape[1])])
+    section = solution.model.section
+    mesh = section.mesh
+    vertices = section.vertices
+    points = np.column_stack([vertices.T, np.zeros(vertices.shape[1])])
     region_id = np.zeros(mesh.t.shape[1], dtype=np.int32)
     for i, name in enumerate(sorted(mesh.subdomains)):
         region_id[mesh.subdomains[name]] = i
