@@ -5,6 +5,7 @@ This package knows geometry only: no heat, no materials.
 
 from . import profiles
 from .errors import GeometryError
+from .mesh_import import read_section_mesh
 from .meshing import mesh_section
 from .primitives import EdgeArc, EdgeEllipse, EdgeSegment, Placement
 from .section import AXIS_GROUP, EdgeRule, Section
@@ -51,5 +52,6 @@ __all__ = [
     "Union",
     "mesh_section",
     "profiles",
+    "read_section_mesh",
     "section_mesh_from_arrays",
 ]
