@@ -54,8 +54,9 @@ def read_section_mesh(
         raise GeometryError(f"mesh file {str(path)!r} does not exist")
     try:
         mesh = meshio.read(path)
-    except Exception as error:  # meshio raises many kinds for unreadable files
-        raise GeometryError(f"meshio cannot read {str(path)!r}: {error}") from None
+    except (Exception, SystemExit) as error:  # meshio may even exit for unreadable files
+        reason = "no reader accepts it" if isinstance(error, SystemExit) else str(error)
+        raise GeometryError(f"meshio cannot read {str(path)!r}: {reason}") from None
 
     points = np.asarray(mesh.points, dtype=float)
     if points.shape[1] == 3:

@@ -8,8 +8,8 @@ comparison time is Fo = alpha t / b^2 = 0.2, when the field is smooth.
 Space: the exact solution is the product of two plane-wall series (Incropera, DeWitt, Bergman &
 Lavine, *Fundamentals of Heat and Mass Transfer*, 6th ed., §5.5.1 eq. 5.39-5.42 and §5.8;
 Carslaw & Jaeger, *Conduction of Heat in Solids*, 2nd ed., §3.10; both from memory), computed
-here with its own root-finding. Time: each run is compared with a much finer-step run on the
-same mesh, so the space error cancels.
+in the test suite with its own root-finding (``tests/exact_series.py``). Time: each run is
+compared with a much finer-step run on the same mesh, so the space error cancels.
 
 The meshes are unstructured (gmsh), so the orders are least-squares slopes of log(error)
 against log(h), with h the mean edge length of the mesh, not ratios of two runs. The material
@@ -22,7 +22,7 @@ from functools import cache
 
 import numpy as np
 import pytest
-from scipy.optimize import brentq
+from exact_series import plane_wall_profile, plane_wall_tail_bound
 
 from fem import Convection, Insulated, Material, ThermalModel, solve
 from geometries import Rectangle, SectionMesh
@@ -36,42 +36,23 @@ END_TIME = FOURIER * HALF_HEIGHT**2 / MATERIAL.diffusivity  # 4 s
 SERIES_TERMS = 50
 
 
-def plane_wall_profile(biot: float, fourier: float, x_star: np.ndarray) -> np.ndarray:
-    """theta/theta0 of a plane wall: sum C_n exp(-zeta_n^2 Fo) cos(zeta_n x*).
-
-    zeta_n is the root of zeta*tan(zeta) = Bi in (n*pi, n*pi + pi/2) and
-    C_n = 4 sin(zeta_n) / (2 zeta_n + sin(2 zeta_n)) (Incropera 6th ed. §5.5.1 eq. 5.39-5.42,
-    from memory).
-    """
-    roots = np.array(
-        [
-            brentq(
-                lambda z: z * np.sin(z) - biot * np.cos(z),
-                n * np.pi,
-                n * np.pi + np.pi / 2,
-                xtol=1e-15,
-                rtol=1e-15,
-            )
-            for n in range(SERIES_TERMS)
-        ]
-    )
-    # Omitted terms: zeta_n > N pi and |C_n| <= 4 / (2 N pi - 1) for n >= N, bounded by a
-    # geometric series because n^2 >= N^2 + 2 N (n - N).
-    n = SERIES_TERMS
-    tail = 4.0 / (2.0 * n * np.pi - 1.0) * np.exp(-((n * np.pi) ** 2) * fourier)
-    tail /= 1.0 - np.exp(-2.0 * n * np.pi**2 * fourier)
-    assert tail < 1e-12, f"series truncated too early at Fo = {fourier}: tail {tail:.1e}"
-    weights = 4.0 * np.sin(roots) / (2.0 * roots + np.sin(2.0 * roots))
-    weights *= np.exp(-(roots**2) * fourier)
-    return np.cos(np.outer(x_star, roots)) @ weights
-
-
 def exact_field(points: np.ndarray) -> np.ndarray:
-    """theta/theta0 of the bar at ``points`` (2, n) at Fo = FOURIER (Incropera §5.8, memory)."""
+    """theta/theta0 of the bar at ``points`` (2, n) at Fo = FOURIER (Incropera §5.8, memory).
+
+    Each factor is the plane-wall series sum C_n exp(-zeta_n^2 Fo) cos(zeta_n x*) of
+    ``exact_series`` (Incropera 6th ed. §5.5.1 eq. 5.39-5.42, from memory) with SERIES_TERMS
+    terms; the bound on the omitted terms must be below 1e-12.
+    """
     ratio = HALF_WIDTH / HALF_HEIGHT
-    across_x = plane_wall_profile(BIOT * ratio, FOURIER / ratio**2, points[0] / HALF_WIDTH)
-    across_y = plane_wall_profile(BIOT, FOURIER, points[1] / HALF_HEIGHT)
-    return across_x * across_y
+    factors = []
+    for biot, fourier, x_star in (
+        (BIOT * ratio, FOURIER / ratio**2, points[0] / HALF_WIDTH),
+        (BIOT, FOURIER, points[1] / HALF_HEIGHT),
+    ):
+        tail = plane_wall_tail_bound(fourier, SERIES_TERMS)
+        assert tail < 1e-12, f"series truncated too early at Fo = {fourier}: tail {tail:.1e}"
+        factors.append(plane_wall_profile(biot, fourier, x_star, terms=SERIES_TERMS))
+    return factors[0] * factors[1]
 
 
 @cache

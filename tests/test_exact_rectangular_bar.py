@@ -13,15 +13,22 @@ a) and one across y (half-width b), each with its own Biot and Fourier numbers. 
   transient conduction), from memory;
 - Carslaw & Jaeger, *Conduction of Heat in Solids*, 2nd ed., §3.10, from memory.
 
-The reference is computed here, with its own root-finding and series; nothing of it comes from
-the code under test. The material values are invented for this test.
+The reference is computed in the test suite, with its own root-finding and series (the shared
+module ``tests/exact_series.py``); nothing of it comes from the code under test. The material
+values are invented for this test.
 """
 
 from __future__ import annotations
 
 import numpy as np
 import pytest
-from scipy.optimize import brentq
+from exact_series import (
+    plane_wall_coefficients,
+    plane_wall_mean,
+    plane_wall_profile,
+    plane_wall_roots,
+    plane_wall_tail_bound,
+)
 
 from fem import Convection, Insulated, Material, ThermalModel, solve
 from geometries import Rectangle
@@ -46,59 +53,21 @@ OUTPUT_INTERVAL = 0.1 * DIFFUSION_TIME
 TOLERANCE = 0.005  # of the initial temperature difference
 
 
-def plane_wall_roots(biot: float, terms: int) -> np.ndarray:
-    """The first ``terms`` positive roots of zeta*tan(zeta) = Bi, one on each branch.
-
-    Root n lies in (n*pi, n*pi + pi/2). The equation is solved as
-    zeta*sin(zeta) - Bi*cos(zeta) = 0, which has the same roots there and no pole.
-    """
-
-    def equation(zeta: float) -> float:
-        return zeta * np.sin(zeta) - biot * np.cos(zeta)
-
-    return np.array(
-        [
-            brentq(equation, n * np.pi, n * np.pi + np.pi / 2, xtol=1e-15, rtol=1e-15)
-            for n in range(terms)
-        ]
-    )
-
-
-def plane_wall_coefficients(roots: np.ndarray) -> np.ndarray:
-    """C_n = 4 sin(zeta_n) / (2 zeta_n + sin(2 zeta_n)).
-
-    Incropera 6th ed. §5.5.1 eq. 5.39-5.42, from memory.
-    """
-    return 4.0 * np.sin(roots) / (2.0 * roots + np.sin(2.0 * roots))
-
-
-def plane_wall_tail_bound(fourier: float, terms: int) -> float:
-    """An upper bound on the sum of the omitted terms |C_n exp(-zeta_n^2 Fo)|, n >= terms.
-
-    For n >= 1, zeta_n > n*pi and |C_n| <= 4 / (2 n pi - 1); with n^2 >= N^2 + 2N(n - N) the
-    omitted terms are bounded by a geometric series. The cosine and sin(zeta)/zeta factors of
-    the centre, face and mean values are at most 1 in magnitude, so this bounds all of them.
-    """
-    n = terms
-    first = 4.0 / (2.0 * n * np.pi - 1.0) * np.exp(-((n * np.pi) ** 2) * fourier)
-    return float(first / (1.0 - np.exp(-2.0 * n * np.pi**2 * fourier)))
-
-
 def plane_wall(biot: float, fourier: float) -> dict[str, float]:
     """Centre (x* = 0), face (x* = 1) and mean theta/theta0 of a plane wall.
 
     theta* = sum C_n exp(-zeta_n^2 Fo) cos(zeta_n x*) and
     mean = sum C_n sin(zeta_n)/zeta_n exp(-zeta_n^2 Fo)
-    (Incropera 6th ed. §5.5.1 eq. 5.39-5.42; Carslaw & Jaeger 2nd ed. §3.10; both from memory).
+    (Incropera 6th ed. §5.5.1 eq. 5.39-5.42; Carslaw & Jaeger 2nd ed. §3.10; both from memory),
+    summed by ``exact_series`` with SERIES_TERMS terms and a tail bound below TAIL_LIMIT.
     """
     tail = plane_wall_tail_bound(fourier, SERIES_TERMS)
     assert tail < TAIL_LIMIT, f"series truncated too early at Fo = {fourier}: tail {tail:.1e}"
-    roots = plane_wall_roots(biot, SERIES_TERMS)
-    terms = plane_wall_coefficients(roots) * np.exp(-(roots**2) * fourier)
+    centre, face = plane_wall_profile(biot, fourier, [0.0, 1.0], terms=SERIES_TERMS)
     return {
-        "centre": float(terms.sum()),
-        "face": float(terms @ np.cos(roots)),
-        "mean": float(terms @ (np.sin(roots) / roots)),
+        "centre": float(centre),
+        "face": float(face),
+        "mean": plane_wall_mean(biot, fourier, terms=SERIES_TERMS),
     }
 
 
