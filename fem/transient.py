@@ -160,6 +160,11 @@ def _check_arguments(end_time, time_step, output_interval, startup_steps):
         or (startup_steps < 0)
     ):
         raise ModelError(f"startup_steps must be a whole number >= 0, got {startup_steps!r}")
+    end_time, time_step, output_interval = (
+        float(end_time),
+        float(time_step),
+        float(output_interval),
+    )
     intervals = math.ceil(end_time / output_interval - 1e-9)
     interval = end_time / intervals
     steps_per_output = math.ceil(interval / time_step - 1e-9)

@@ -1,5 +1,6 @@
 """The advisor refuses requests it cannot answer, naming the value and what would be valid."""
 
+import numpy as np
 import pytest
 
 from advisor import AdvisorError, LumpedModel, assess, biot_numbers
@@ -95,3 +96,30 @@ def test_probe_outside_the_section_is_refused():
 def test_bad_run_controls_are_refused(quench, kwargs, message):
     with pytest.raises(ModelError, match=message):
         solve(quench.model, **kwargs)
+
+
+@pytest.mark.parametrize(
+    ("end_time", "time_step", "output_interval"),
+    [
+        (np.int64(300), np.float32(0.7), np.float32(7.0)),
+        (np.float32(300.0), np.float32(0.7), np.float32(7.0)),
+    ],
+)
+def test_run_controls_accept_numpy_scalars(quench, end_time, time_step, output_interval):
+    # Run controls often arrive as numpy scalars (an element of a sweep's array, a value read
+    # from a file). They must give the run of the plain floats of the same value:
+    # float(np.float32(0.7)) = 0.699999988..., so the step fitted into the 7 s outputs is
+    # 0.69767... s in both. Both runs then do the same float64 arithmetic on the same values,
+    # so the times must agree to round-off: 1e-12 relative, far below one float32 ulp (6e-8).
+    plain = solve(
+        quench.model,
+        float(end_time),
+        time_step=float(time_step),
+        output_interval=float(output_interval),
+    )
+    numpy_run = solve(quench.model, end_time, time_step=time_step, output_interval=output_interval)
+    assert len(numpy_run.times) == len(plain.times)
+    np.testing.assert_allclose(numpy_run.times, plain.times, rtol=1e-12, atol=0.0)
+    np.testing.assert_allclose(numpy_run.output_times, plain.output_times, rtol=1e-12, atol=0.0)
+    assert numpy_run.stats.time_step == pytest.approx(plain.stats.time_step, rel=1e-12)
+    assert numpy_run.stats.steps == plain.stats.steps
