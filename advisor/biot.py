@@ -7,6 +7,7 @@ from dataclasses import dataclass
 from fem import ThermalModel
 
 from .errors import AdvisorError
+from .lumped import LumpedModel, exchange_conductance
 
 COMMON_LIMIT = 0.1  # common practice: lumped estimates are usually accepted below Bi = 0.1
 
@@ -40,19 +41,21 @@ def biot_numbers(model: ThermalModel) -> tuple[BiotNumber, ...]:
     """Biot numbers of the model's section under its convective conditions.
 
     Only edges that exchange heat count as exposed. With several coefficients the mean
-    weighted by surface area is used. V and A_s are the section's volume and exchanging
-    surface (per metre of depth for planar sections, revolved for axisymmetric ones).
+    weighted by surface area is used, at t = 0, radiation linearised at the initial
+    temperature; with several materials the lowest conductivity (the worst case). V and A_s
+    are the section's volume and exchanging surface (per metre of depth for planar sections,
+    revolved for axisymmetric ones).
     """
-    exchange = model.convection
-    if not exchange:
+    groups = model.exchange_groups
+    if not groups:
         raise AdvisorError("the model has no edge that exchanges heat, so it has no Biot number")
     facts = model.section.facts
-    surfaces = {n: facts.surface_areas[n] for n in exchange}
-    exposed = sum(surfaces.values())
-    h_mean = sum(c.heat_transfer_coefficient * surfaces[n] for n, c in exchange.items()) / exposed
-    k = model.material.conductivity
+    exposed = sum(facts.surface_areas[n] for n in groups)
+    lumped = LumpedModel.of(model)
+    h_mean = exchange_conductance(model, lumped.initial_temperature, 0.0)[0] / exposed
+    k = min(m.nominal_conductivity for m in model.materials.values())
     volume_to_surface = facts.volume / exposed
-    farthest = model.section.max_distance_to(exchange)
+    farthest = model.section.max_distance_to(groups)
     return (
         BiotNumber(
             "volume_to_surface",

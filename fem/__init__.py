@@ -3,25 +3,49 @@
 This package knows heat and numerics only: no lumped models, no reports.
 """
 
-from .boundary import BoundaryCondition, Convection, Insulated
-from .errors import ModelError
-from .materials import Material
+from . import library
+from .boundary import (
+    BoundaryCondition,
+    Convection,
+    FixedTemperature,
+    HeatFlux,
+    Insulated,
+    Radiation,
+)
+from .errors import ModelError, SolverError
+from .fields import FieldSeries
+from .materials import Material, PropertyRangeWarning, PropertyTable
 from .model import ThermalModel
+from .schedules import Constant, Periodic, PiecewiseLinear, Sinusoid, Steps
 from .solution import RunChecks, Solution, SolverStats
 from .system import ConductionSystem, assemble
-from .transient import solve
+from .transient import StopWhen, solve
 
 __all__ = [
     "BoundaryCondition",
     "ConductionSystem",
+    "Constant",
     "Convection",
+    "FieldSeries",
+    "FixedTemperature",
+    "HeatFlux",
     "Insulated",
     "Material",
     "ModelError",
+    "Periodic",
+    "PiecewiseLinear",
+    "PropertyRangeWarning",
+    "PropertyTable",
+    "Radiation",
     "RunChecks",
+    "Sinusoid",
     "Solution",
+    "SolverError",
     "SolverStats",
+    "Steps",
+    "StopWhen",
     "ThermalModel",
     "assemble",
+    "library",
     "solve",
 ]

@@ -1,16 +1,21 @@
 """Every scikit-fem form of the project: the weak form of transient conduction.
 
-ρc ∫ ∂T/∂t v dV + ∫ k ∇T·∇v dV + ∫_Γ h T v dS = ∫_Γ h T∞ v dS
+ρc ∂T/∂t (as dH/dt, H = ∫ρc dT) + ∇·(−k ∇T) = q̇ in the section, with on its edges
+q = h (T∞ − T) + εσ (T_sur⁴ − T⁴) + q_s into the part.
 
 Planar sections are per metre of depth (dV = dA, dS = ds). Axisymmetric sections are revolved
 about x = 0 with x the radius: dV = 2πr dA and dS = 2πr ds, so every quantity is for the whole
 solid of revolution, and the axis needs no condition (the weight vanishes there). Coefficients
-come in by keyword (``w.name``) so one form serves every region and edge group.
+come in by keyword (``w.name``): numbers, or arrays at the quadrature points for properties
+that depend on temperature.
 """
 
 import numpy as np
 from skfem import BilinearForm, LinearForm
 from skfem.helpers import dot, grad
+
+STEFAN_BOLTZMANN = 5.670374419e-8  # W/(m²·K⁴), CODATA 2018 exact value
+KELVIN = 273.15  # K at 0 °C: the one place temperatures are converted
 
 
 def _measure(w):
@@ -31,9 +36,46 @@ def conduction(u, v, w):
 
 
 @BilinearForm
+def conduction_tangent(u, v, w):
+    """Derivative of the conduction residual for k(T): ∫ (k ∇δ + k'(T) δ ∇T)·∇φ_i dV.
+
+    ``w.conductivity`` and ``w.conductivity_slope`` (W/(m·K²)) at the quadrature points,
+    ``w.temperature`` the current field."""
+    flux = w.conductivity * grad(u) + w.conductivity_slope * u * grad(w.temperature)
+    return dot(flux, grad(v)) * _measure(w)
+
+
+@LinearForm
+def conduction_residual(v, w):
+    """∫ k(T) ∇T·∇φ_i dV for the current field ``w.temperature``."""
+    return w.conductivity * dot(grad(w.temperature), grad(v)) * _measure(w)
+
+
+@LinearForm
+def enthalpy(v, w):
+    """∫ H(T) φ_i dV with ``w.enthalpy`` = ∫ρc dT (J/m³) at the quadrature points."""
+    return w.enthalpy * v * _measure(w)
+
+
+@BilinearForm
 def surface_exchange(u, v, w):
     """Robin entries ∫_Γ h φ_j φ_i dS; ``w.heat_transfer_coefficient`` in W/(m²·K)."""
     return w.heat_transfer_coefficient * u * v * _measure(w)
+
+
+@LinearForm
+def radiation_residual(v, w):
+    """∫_Γ εσ (T⁴ − T_sur⁴) φ_i dS, the heat radiated out; ``w.temperature`` and
+    ``w.surroundings`` in °C, raised to the fourth power in kelvin."""
+    t, s = w.temperature + KELVIN, w.surroundings + KELVIN
+    return w.emissivity * STEFAN_BOLTZMANN * (t**4 - s**4) * v * _measure(w)
+
+
+@BilinearForm
+def radiation_tangent(u, v, w):
+    """Derivative of the radiated heat: ∫_Γ 4εσ T³ δ φ_i dS (kelvin)."""
+    t = w.temperature + KELVIN
+    return 4.0 * w.emissivity * STEFAN_BOLTZMANN * t**3 * u * v * _measure(w)
 
 
 @LinearForm

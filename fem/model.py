@@ -1,4 +1,5 @@
-"""The thermal model: a meshed section with a material, boundary conditions and a start."""
+"""The thermal model: a meshed section with materials, boundary conditions, sources and a
+starting state."""
 
 from __future__ import annotations
 
@@ -9,9 +10,19 @@ import numpy as np
 
 from geometries import AXIS_GROUP, GeometryError, SectionMesh
 
-from .boundary import BoundaryCondition, Convection, Insulated
+from .boundary import (
+    ABSOLUTE_ZERO,
+    Condition,
+    Convection,
+    FixedTemperature,
+    HeatFlux,
+    Insulated,
+    Radiation,
+    conditions,
+)
 from .errors import ModelError
 from .materials import Material
+from .schedules import Schedule, as_schedule
 
 
 @dataclass(frozen=True)
@@ -23,17 +34,21 @@ class ThermalModel:
     ----------
     section : geometries.SectionMesh
         The meshed section.
-    material : Material
-        Properties of the solid.
-    boundaries : dict of str to boundary condition
-        One condition for *every* edge group of the section, keyed by group name. The axis of
-        an axisymmetric section needs none (it is added as ``Insulated("axis")``).
-    initial_temperature : float
-        Uniform starting temperature in °C.
+    material : Material or dict of str to Material
+        One material for the whole section, or one per region.
+    boundaries : dict of str to condition or tuple of conditions
+        A condition for *every* edge group of the section, keyed by group name; a group may
+        combine Convection, Radiation and HeatFlux in a tuple. The axis of an axisymmetric
+        section needs none (it is added as ``Insulated("axis")``).
+    initial_temperature : float, dict of str to float, or Solution
+        Uniform starting temperature in °C, one per region, or the final field of an earlier
+        run on the same mesh (stages chain: heat, transfer, quench, hold).
     probes : dict of str to (x, y)
         Named points in m whose temperature is recorded every step.
     element_order : int
         1 for linear (P1) or 2 for quadratic (P2) triangles.
+    heat_sources : dict of str to float or schedule
+        Heat generated per unit volume in W/m³, per region.
 
     Examples
     --------
@@ -48,13 +63,65 @@ class ThermalModel:
     """
 
     section: SectionMesh
-    material: Material
-    boundaries: Mapping[str, BoundaryCondition]
-    initial_temperature: float
+    material: Material | Mapping[str, Material]
+    boundaries: Mapping[str, Condition | tuple[Condition, ...]]
+    initial_temperature: float | Mapping[str, float] | np.ndarray
     probes: Mapping[str, tuple[float, float]] = field(default_factory=dict)
     element_order: int = 1
+    heat_sources: Mapping[str, float | Schedule] = field(default_factory=dict)
 
     def __post_init__(self) -> None:
+        if not isinstance(self.section, SectionMesh):
+            raise ModelError(f"section must be a geometries.SectionMesh, got {self.section!r}")
+        regions = set(self.section.regions)
+        self._set("material", self._materials(regions))
+        self._set("boundaries", self._boundaries())
+        if self.element_order not in (1, 2):
+            raise ModelError(f"element_order must be 1 or 2, got {self.element_order!r}")
+        self._set("initial_temperature", self._initial(regions))
+        unknown = sorted(set(self.heat_sources) - regions)
+        if unknown:
+            raise ModelError(
+                f"heat_sources name region(s) {unknown} that the section does not "
+                f"have; its regions are {sorted(regions)}"
+            )
+        self._set(
+            "heat_sources",
+            {
+                r: as_schedule(q, f"heat source of region {r!r}")
+                for r, q in self.heat_sources.items()
+            },
+        )
+        for name, point in self.probes.items():
+            try:
+                self.section.locate(np.asarray(point, dtype=float).reshape(2, 1))
+            except (GeometryError, ValueError):
+                raise ModelError(
+                    f"probe {name!r} at {tuple(point)} m lies outside the section"
+                ) from None
+        self._set("probes", {n: (float(p[0]), float(p[1])) for n, p in self.probes.items()})
+
+    def _set(self, name: str, value) -> None:
+        object.__setattr__(self, name, value)
+
+    def _materials(self, regions: set[str]) -> Material | dict[str, Material]:
+        if isinstance(self.material, Material):
+            return self.material
+        materials = dict(self.material)
+        missing, unknown = sorted(regions - set(materials)), sorted(set(materials) - regions)
+        if missing or unknown:
+            raise ModelError(
+                f"materials must be given for exactly the section's regions {sorted(regions)}; "
+                f"missing {missing}, unknown {unknown}"
+            )
+        for region, material in materials.items():
+            if not isinstance(material, Material):
+                raise ModelError(
+                    f"material of region {region!r} must be a Material, got {material!r}"
+                )
+        return materials
+
+    def _boundaries(self) -> dict[str, tuple[Condition, ...]]:
         groups = set(self.section.edge_groups)
         boundaries = dict(self.boundaries)
         if self.section.axisymmetric and AXIS_GROUP in groups:
@@ -64,7 +131,6 @@ class ThermalModel:
                     f"the axis of an axisymmetric section carries no heat flow; remove the "
                     f"{type(axis).__name__} condition on {AXIS_GROUP!r}"
                 )
-        object.__setattr__(self, "boundaries", boundaries)
         named = set(boundaries)
         if named - groups:
             raise ModelError(
@@ -76,32 +142,90 @@ class ThermalModel:
                 f"edge group(s) {sorted(groups - named)} have no boundary condition; give each "
                 "one a condition (Insulated() for no heat flow)"
             )
-        for name, condition in self.boundaries.items():
-            if not isinstance(condition, Convection | Insulated):
-                raise ModelError(
-                    f"boundary condition for {name!r} must be Convection or Insulated, "
-                    f"got {condition!r}"
-                )
-        if not np.isfinite(self.initial_temperature) or self.initial_temperature <= -273.15:
-            raise ModelError(
-                f"initial_temperature must be above -273.15 degC, got {self.initial_temperature!r}"
-            )
-        if self.element_order not in (1, 2):
-            raise ModelError(f"element_order must be 1 or 2, got {self.element_order!r}")
-        for name, point in self.probes.items():
-            try:
-                self.section.locate(np.asarray(point, dtype=float).reshape(2, 1))
-            except GeometryError:
-                raise ModelError(
-                    f"probe {name!r} at {tuple(point)} m lies outside the section"
-                ) from None
+        return {name: conditions(value, name) for name, value in boundaries.items()}
 
+    def _initial(self, regions: set[str]):
+        value = self.initial_temperature
+        if hasattr(value, "final_state") and hasattr(value, "model"):
+            earlier = value.model
+            same_mesh = (
+                earlier.section.mesh.p.shape == self.section.mesh.p.shape
+                and np.array_equal(earlier.section.mesh.p, self.section.mesh.p)
+            )
+            if not same_mesh or earlier.element_order != self.element_order:
+                raise ModelError(
+                    "an earlier Solution can start this model only on the same mesh and "
+                    "element order"
+                )
+            return np.array(value.final_state, dtype=float)  # the field, not the whole run
+        if isinstance(value, Mapping):
+            missing, unknown = sorted(regions - set(value)), sorted(set(value) - regions)
+            if missing or unknown:
+                raise ModelError(
+                    f"initial temperatures must be given for exactly the regions "
+                    f"{sorted(regions)}; missing {missing}, unknown {unknown}"
+                )
+            for region, t in value.items():
+                _check_temperature(t, f"initial temperature of region {region!r}")
+            return {r: float(t) for r, t in value.items()}
+        _check_temperature(value, "initial_temperature")
+        return float(value)
+
+    # ------------------------------------------------------------------------------------
     @property
-    def exchange_groups(self) -> tuple[str, ...]:
-        """Edge groups that exchange heat with the surroundings, sorted by name."""
-        return tuple(sorted(n for n, c in self.boundaries.items() if isinstance(c, Convection)))
+    def materials(self) -> dict[str, Material]:
+        """The material of each region."""
+        if isinstance(self.material, Material):
+            return dict.fromkeys(self.section.regions, self.material)
+        return dict(self.material)
+
+    def conditions_of(self, kind) -> dict[str, object]:
+        """The conditions of one kind (e.g. ``Convection``), keyed by edge group."""
+        return {n: c for n, cs in self.boundaries.items() for c in cs if isinstance(c, kind)}
 
     @property
     def convection(self) -> dict[str, Convection]:
-        """The convective conditions, keyed by edge group."""
-        return {n: c for n, c in self.boundaries.items() if isinstance(c, Convection)}
+        return self.conditions_of(Convection)
+
+    @property
+    def radiation(self) -> dict[str, Radiation]:
+        return self.conditions_of(Radiation)
+
+    @property
+    def fluxes(self) -> dict[str, HeatFlux]:
+        return self.conditions_of(HeatFlux)
+
+    @property
+    def fixed(self) -> dict[str, FixedTemperature]:
+        return self.conditions_of(FixedTemperature)
+
+    @property
+    def exchange_groups(self) -> tuple[str, ...]:
+        """Edge groups that exchange heat with surroundings (convection or radiation), sorted."""
+        return tuple(sorted(set(self.convection) | set(self.radiation)))
+
+    @property
+    def is_linear(self) -> bool:
+        """True when no property depends on temperature and nothing radiates."""
+        return all(m.is_constant for m in self.materials.values()) and not self.radiation
+
+    @property
+    def starts_from_field(self) -> bool:
+        """True when the initial state is the field of an earlier run."""
+        return isinstance(self.initial_temperature, np.ndarray)
+
+    def initial_range(self) -> tuple[float, float]:
+        """Lowest and highest starting temperature, °C."""
+        value = self.initial_temperature
+        if isinstance(value, float):
+            return (value, value)
+        if isinstance(value, dict):
+            return (min(value.values()), max(value.values()))
+        return (float(np.min(value.final_state)), float(np.max(value.final_state)))
+
+
+def _check_temperature(value, what: str) -> None:
+    if not (
+        isinstance(value, int | float | np.number) and np.isfinite(value) and value > ABSOLUTE_ZERO
+    ):
+        raise ModelError(f"{what} must be above -273.15 degC, got {value!r}")

@@ -4,32 +4,41 @@ from __future__ import annotations
 
 import numpy as np
 
+from .fields import FieldSeries
 from .system import ConductionSystem
 
 
 class HistoryRecorder:
     """Records mean, extremes, probes, edge heat flows and energy after every step."""
 
-    def __init__(self, system: ConductionSystem, dof_locations: np.ndarray, probe_names):
+    def __init__(
+        self,
+        system: ConductionSystem,
+        dof_locations: np.ndarray,
+        fields: FieldSeries,
+        initial_stored: float,
+    ):
         self._system = system
         self._locations = dof_locations  # (2, n_dofs)
-        self._probe_names = list(probe_names)
+        self._probe_names = list(system.model.probes)
+        self._flow_names = sorted(set(system.edges) | set(system.fixed_dofs))
         self._rows: list[tuple] = []
-        self._fields: list[np.ndarray] = []
+        self._fields = fields
         self._output_times: list[float] = []
-        self._initial: np.ndarray | None = None
-        self.absorbed_heat = 0.0
+        self._initial_stored = initial_stored
 
-    def heat_flow_total(self, temperature: np.ndarray) -> float:
-        """Heat flow into the part through all edges in W/m."""
-        return sum(e.heat_flow(temperature) for e in self._system.exchange.values())
-
-    def record(self, time: float, temperature: np.ndarray) -> None:
-        if self._initial is None:
-            self._initial = temperature.copy()
+    def record(
+        self,
+        time: float,
+        temperature: np.ndarray,
+        stored: float,
+        absorbed: float,
+        reactions: dict[str, float],
+    ) -> None:
+        """Add one state; ``stored`` is 1ᵀC(T) (J), ``reactions`` the fixed groups' flows."""
         low, high = int(np.argmin(temperature)), int(np.argmax(temperature))
-        change = temperature - self._initial
-        stored = float(np.ones(self._system.size) @ (self._system.capacity @ change))
+        flows = self._system.edge_heat_flows(temperature, time)
+        flows.update(reactions)
         self._rows.append(
             (
                 time,
@@ -39,15 +48,28 @@ class HistoryRecorder:
                 self._locations[:, low],
                 self._locations[:, high],
                 self._system.probe_matrix @ temperature,
-                [e.heat_flow(temperature) for e in self._system.exchange.values()],
-                stored,
-                self.absorbed_heat,
+                [flows.get(n, 0.0) for n in self._flow_names],
+                self._system.generated(time),
+                stored - self._initial_stored,
+                absorbed,
             )
         )
 
     def store_field(self, time: float, temperature: np.ndarray) -> None:
         self._output_times.append(time)
-        self._fields.append(temperature[self._system.vertex_dofs].copy())
+        self._fields.append(temperature[self._system.vertex_dofs])
+
+    @property
+    def last_time(self) -> float:
+        return self._rows[-1][0]
+
+    def history(self, name: str) -> np.ndarray:
+        """One quantity over the recorded states: mean, minimum, maximum or a probe name."""
+        column = {"mean": 1, "minimum": 2, "maximum": 3}.get(name)
+        if column is not None:
+            return np.array([row[column] for row in self._rows])
+        k = self._probe_names.index(name)
+        return np.array([row[6][k] for row in self._rows])
 
     def histories(self) -> dict[str, object]:
         columns = list(zip(*self._rows, strict=True))
@@ -61,9 +83,10 @@ class HistoryRecorder:
             minimum_location=np.array(columns[4]),
             maximum_location=np.array(columns[5]),
             probes={n: probes[:, i] for i, n in enumerate(self._probe_names)},
-            heat_flow={n: flows[:, i] for i, n in enumerate(self._system.exchange)},
-            stored_energy=np.array(columns[8]),
-            absorbed_heat=np.array(columns[9]),
+            heat_flow={n: flows[:, i] for i, n in enumerate(self._flow_names)},
+            generated=np.array(columns[8]),
+            stored_energy=np.array(columns[9]),
+            absorbed_heat=np.array(columns[10]),
             output_times=np.array(self._output_times),
-            fields=np.array(self._fields),
+            fields=self._fields,
         )

@@ -7,6 +7,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .fields import FieldSeries
 from .model import ThermalModel
 
 
@@ -18,14 +19,24 @@ class SolverStats:
     ----------
     method : str
         Time integration scheme.
+    adaptive : bool
+        Whether the step was controlled by the local error estimate.
     steps : int
-        Time steps taken, start-up half-steps included.
+        Accepted time steps, start-up half-steps included.
+    rejected_steps : int
+        Steps redone with a smaller step because the error estimate was too large.
     startup_steps : int
-        Backward-Euler half-steps at the start.
+        Backward-Euler half-steps at the start (Crank–Nicolson) or first-order steps (BDF2).
     time_step : float
-        Full step in s.
+        The (last) full step in s; fixed-step runs use it throughout.
+    smallest_step, largest_step : float
+        Range of accepted steps in s.
     factorisations : int
-        LU factorisations of the step matrix.
+        LU factorisations of a step matrix.
+    newton_iterations : int
+        Newton iterations over the run (one per step for linear problems).
+    max_newton_iterations : int
+        Most iterations any step needed.
     unknowns : int
         Degrees of freedom.
     assembly_seconds, factorisation_seconds, stepping_seconds : float
@@ -33,10 +44,16 @@ class SolverStats:
     """
 
     method: str
+    adaptive: bool
     steps: int
+    rejected_steps: int
     startup_steps: int
     time_step: float
+    smallest_step: float
+    largest_step: float
     factorisations: int
+    newton_iterations: int
+    max_newton_iterations: int
     unknowns: int
     assembly_seconds: float
     factorisation_seconds: float
@@ -50,14 +67,14 @@ class RunChecks:
     Attributes
     ----------
     energy_balance_error : float
-        |stored energy change − heat taken in through the edges| divided by the largest stored
-        energy change; the scheme conserves energy, so this is round-off unless the assembly
-        is wrong.
+        Sum over the steps of |discrete energy balance residual| (J), divided by the largest
+        stored energy change: round-off for linear problems unless the assembly is wrong, the
+        Newton tolerance's share for nonlinear ones.
     temperature_excursion : float
-        How far in K any nodal temperature went outside the range of the initial and ambient
-        temperatures (0 when it stayed inside).
+        How far in K any nodal temperature went outside the range of the initial and boundary
+        temperatures (0 when it stayed inside, or when sources and fluxes make the check moot).
     step_to_surface_diffusion : float
-        Time step divided by the diffusion time ℓ²/α of the smallest element edge on a
+        Smallest step divided by the diffusion time ℓ²/α of the smallest element edge on a
         heat-exchanging boundary. Large values are fine for smooth fields but can make
         Crank–Nicolson ring without start-up steps.
     warnings : tuple of str
@@ -81,22 +98,31 @@ class Solution:
     times : ndarray
         Time in s of every recorded state, starting at 0.
     mean, minimum, maximum : ndarray
-        Area-weighted mean, lowest and highest nodal temperature in °C at each time.
+        Volume-weighted mean, lowest and highest nodal temperature in °C at each time.
     minimum_location, maximum_location : ndarray, shape (n, 2)
         Where the extremes are, in m.
     probes : dict of str to ndarray
         Temperature in °C at each probe.
     heat_flow : dict of str to ndarray
-        Heat flow into the part through each convective edge group, W per metre of depth.
+        Heat flow into the part through each edge group that exchanges heat or has a fixed
+        temperature, W (planar: W per metre of depth). Fixed-temperature groups report the
+        step-averaged reaction.
+    generated : ndarray
+        Heat generated inside the part, W.
     stored_energy : ndarray
-        Energy stored relative to the initial state, J per metre of depth.
+        Energy stored relative to the initial state, J (planar: J/m).
     absorbed_heat : ndarray
-        Heat taken in through all edges since the start, J per metre of depth, accumulated
-        the way the time scheme integrates it.
+        Heat taken in through the edges and generated since the start, J (planar: J/m),
+        integrated the way the time scheme integrates it.
     output_times : ndarray
         Times in s of the stored fields.
-    fields : ndarray, shape (len(output_times), n_vertices)
+    fields : FieldSeries
         Temperature in °C at the mesh vertices at each output time.
+    final_state : ndarray
+        The last field at every degree of freedom, to start a following stage from.
+    stop_time : float or None
+        When the stop condition was met (interpolated within the step), if one was given and
+        met.
     stats : SolverStats
     checks : RunChecks
     """
@@ -110,10 +136,13 @@ class Solution:
     maximum_location: np.ndarray
     probes: dict[str, np.ndarray]
     heat_flow: dict[str, np.ndarray]
+    generated: np.ndarray
     stored_energy: np.ndarray
     absorbed_heat: np.ndarray
     output_times: np.ndarray
-    fields: np.ndarray
+    fields: FieldSeries
+    final_state: np.ndarray
+    stop_time: float | None
     stats: SolverStats
     checks: RunChecks
 

@@ -1,113 +1,343 @@
-"""Assembly of the semi-discrete system M·dT/dt + A·T = b for a thermal model."""
+"""Assembly of the semi-discrete system C(T)' + G(T, t) = 0 for a thermal model.
+
+C(T) is the heat stored (∫H(T)φ_i dV, J; the capacity matrix M times T when ρc is constant) and
+G(T, t) = K(T)·T + Σ h(t)·H_g·T − b(t) + R(T, t) the net heat leaving each node (W): conduction,
+convection, radiation R, minus fluxes and sources in b. Everything that does not depend on
+temperature is assembled once; temperature-dependent parts (k(T), ρc(T), radiation) are
+assembled when asked for, at the quadrature points of the current field.
+"""
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 import scipy.sparse as sp
 from skfem import Basis, ElementTriP1, ElementTriP2, FacetBasis, asm
 
 from . import forms
+from .materials import Material
 from .model import ThermalModel
 
-
-@dataclass(frozen=True)
-class ExchangeEdge:
-    """What one convective edge group needs to report its heat flow.
-
-    Heat flow into the part through the group, in W (planar: per metre of depth):
-    Q(T) = h·(T∞·S − weights·T), with S the group's surface area.
-    """
-
-    heat_transfer_coefficient: float
-    ambient: float
-    surface_area: float
-    weights: np.ndarray
-
-    def heat_flow(self, temperature: np.ndarray) -> float:
-        h = self.heat_transfer_coefficient
-        return h * (self.ambient * self.surface_area - float(self.weights @ temperature))
+ENTHALPY_REFERENCE = 0.0  # °C: H(T) = ∫ρc dT from here; differences are all that matter
 
 
-@dataclass(frozen=True)
+@dataclass
+class EdgeTerms:
+    """One edge group's basis and the pieces of its conditions."""
+
+    basis: FacetBasis
+    weights: np.ndarray  # ∫ φ_i dS
+    exchange_matrix: sp.csr_matrix | None = None  # ∫ φ_j φ_i dS (for h·…)
+
+
+@dataclass
 class ConductionSystem:
-    """The assembled system of a thermal model (planar: all quantities per metre of depth;
-    axisymmetric: for the whole solid of revolution).
+    """The assembled pieces of a model's equations (planar: per metre of depth).
 
     Attributes
     ----------
+    model : ThermalModel
+    size : int
+        Degrees of freedom.
     capacity : scipy.sparse.csr_matrix
-        M, J/K.
-    operator : scipy.sparse.csr_matrix
-        A = K + H (conduction plus surface exchange), W/K.
-    load : ndarray
-        b, the surface exchange with the ambient, W.
+        M (J/K); the equations use it only when ρc is constant in every region.
+    stiffness : scipy.sparse.csr_matrix
+        K (W/K); the equations use it only when k is constant in every region.
+    edges : dict of str to EdgeTerms
+    source_weights : dict of str to ndarray
+        ∫_region φ_i dV for each heat-generating region.
     volume_weights : ndarray
-        ∫φ_i dV / V: ``volume_weights @ T`` is the volume-weighted mean temperature, °C.
+        ∫φ_i dV / V: ``volume_weights @ T`` is the volume-weighted mean, °C.
     probe_matrix : scipy.sparse.csr_matrix
-        Interpolation to the model's probes.
+        Interpolation to the probes.
     vertex_dofs : ndarray
         Degrees of freedom at the mesh vertices, in vertex order.
-    exchange : dict of str to ExchangeEdge
-        Heat-flow functionals of the convective edge groups.
+    fixed_dofs : dict of str to ndarray
+        Degrees of freedom of each fixed-temperature group (a shared corner goes to the first).
     """
 
+    model: ThermalModel
+    basis: Basis
+    region_bases: dict[str, Basis]
+    size: int
     capacity: sp.csr_matrix
-    operator: sp.csr_matrix
-    load: np.ndarray
+    stiffness: sp.csr_matrix
+    edges: dict[str, EdgeTerms]
+    source_weights: dict[str, np.ndarray]
     volume_weights: np.ndarray
     probe_matrix: sp.csr_matrix
     vertex_dofs: np.ndarray
-    exchange: dict[str, ExchangeEdge]
+    fixed_dofs: dict[str, np.ndarray]
+    free_dofs: np.ndarray = field(default_factory=lambda: np.empty(0, dtype=np.int64))
 
     @property
-    def size(self) -> int:
-        return self.load.shape[0]
+    def axisymmetric(self) -> bool:
+        return self.model.section.axisymmetric
+
+    # -- linear pieces --------------------------------------------------------------------
+    def exchange_operator(self, time: float) -> sp.csr_matrix:
+        """A(t) = K + Σ h_g(t)·H_g for constant conductivity (W/K)."""
+        operator = self.stiffness
+        for name, condition in self.model.convection.items():
+            operator = (
+                operator
+                + condition.heat_transfer_coefficient(time) * self.edges[name].exchange_matrix
+            )
+        return operator.tocsr()
+
+    def exchange_key(self, time: float) -> tuple[float, ...]:
+        """The coefficients A(t) depends on: equal keys mean equal matrices."""
+        return tuple(c.heat_transfer_coefficient(time) for c in self.model.convection.values())
+
+    def load(self, time: float) -> np.ndarray:
+        """b(t): convection towards the ambient, fluxes and sources (W)."""
+        b = np.zeros(self.size)
+        for name, c in self.model.convection.items():
+            b += c.heat_transfer_coefficient(time) * c.ambient(time) * self.edges[name].weights
+        for name, c in self.model.fluxes.items():
+            b += c.flux(time) * self.edges[name].weights
+        for region, q in self.model.heat_sources.items():
+            b += q(time) * self.source_weights[region]
+        return b
+
+    # -- the full residual pieces -----------------------------------------------------------
+    def stored(self, temperature: np.ndarray) -> np.ndarray:
+        """C(T): ∫ H(T) φ_i dV per node, J (planar: J/m)."""
+        if self._constant_capacity:
+            return self.capacity @ temperature
+        total = np.zeros(self.size)
+        for region, basis in self.region_bases.items():
+            material = self.model.materials[region]
+            t = basis.interpolate(temperature)
+            total += asm(
+                forms.enthalpy,
+                basis,
+                enthalpy=material.enthalpy(t.value, ENTHALPY_REFERENCE),
+                axisymmetric=self.axisymmetric,
+            )
+        return total
+
+    def capacity_tangent(self, temperature: np.ndarray) -> sp.csr_matrix:
+        """dC/dT: ∫ ρc(T) φ_j φ_i dV (J/K)."""
+        if self._constant_capacity:
+            return self.capacity
+        total = None
+        for region, basis in self.region_bases.items():
+            t = basis.interpolate(temperature)
+            part = asm(
+                forms.heat_capacity,
+                basis,
+                volumetric_heat_capacity=self.model.materials[region].heat_capacity_at(t.value),
+                axisymmetric=self.axisymmetric,
+            )
+            total = part if total is None else total + part
+        return total.tocsr()
+
+    def net_outflow(self, temperature: np.ndarray, time: float) -> np.ndarray:
+        """G(T, t): heat leaving each node (W), conduction included."""
+        g = self._conduction(temperature) - self.load(time)
+        for name, c in self.model.convection.items():
+            g += c.heat_transfer_coefficient(time) * (
+                self.edges[name].exchange_matrix @ temperature
+            )
+        for name, r in self.model.radiation.items():
+            edge = self.edges[name]
+            t = edge.basis.interpolate(temperature)
+            g += asm(
+                forms.radiation_residual,
+                edge.basis,
+                temperature=t,
+                emissivity=r.emissivity,
+                surroundings=r.surroundings(time),
+                axisymmetric=self.axisymmetric,
+            )
+        return g
+
+    def outflow_tangent(self, temperature: np.ndarray, time: float) -> sp.csr_matrix:
+        """dG/dT (W/K)."""
+        if self._constant_conductivity:
+            total = self.exchange_operator(time)
+        else:
+            total = self.exchange_operator(time) - self.stiffness
+            for region, basis in self.region_bases.items():
+                material = self.model.materials[region]
+                t = basis.interpolate(temperature)
+                total = total + asm(
+                    forms.conduction_tangent,
+                    basis,
+                    temperature=t,
+                    conductivity=material.conductivity_at(t.value),
+                    conductivity_slope=material.conductivity_slope(t.value),
+                    axisymmetric=self.axisymmetric,
+                )
+        for name, r in self.model.radiation.items():
+            edge = self.edges[name]
+            t = edge.basis.interpolate(temperature)
+            total = total + asm(
+                forms.radiation_tangent,
+                edge.basis,
+                temperature=t,
+                emissivity=r.emissivity,
+                axisymmetric=self.axisymmetric,
+            )
+        return total.tocsr()
+
+    def _conduction(self, temperature: np.ndarray) -> np.ndarray:
+        if self._constant_conductivity:
+            return self.stiffness @ temperature
+        total = np.zeros(self.size)
+        for region, basis in self.region_bases.items():
+            t = basis.interpolate(temperature)
+            total += asm(
+                forms.conduction_residual,
+                basis,
+                temperature=t,
+                conductivity=self.model.materials[region].conductivity_at(t.value),
+                axisymmetric=self.axisymmetric,
+            )
+        return total
+
+    # -- what the histories report ----------------------------------------------------------
+    def edge_heat_flows(self, temperature: np.ndarray, time: float) -> dict[str, float]:
+        """Heat flow into the part through each convective, radiating or flux edge group (W)."""
+        flows: dict[str, float] = {}
+        for name, c in self.model.convection.items():
+            edge = self.edges[name]
+            flows[name] = flows.get(name, 0.0) + c.heat_transfer_coefficient(time) * (
+                c.ambient(time) * edge.weights.sum() - edge.weights @ temperature
+            )
+        for name, r in self.model.radiation.items():
+            edge = self.edges[name]
+            t = edge.basis.interpolate(temperature)
+            out = asm(
+                forms.radiation_residual,
+                edge.basis,
+                temperature=t,
+                emissivity=r.emissivity,
+                surroundings=r.surroundings(time),
+                axisymmetric=self.axisymmetric,
+            ).sum()
+            flows[name] = flows.get(name, 0.0) - float(out)
+        for name, c in self.model.fluxes.items():
+            flows[name] = flows.get(name, 0.0) + c.flux(time) * float(
+                self.edges[name].weights.sum()
+            )
+        return flows
+
+    def generated(self, time: float) -> float:
+        """Heat generated in the part (W)."""
+        return float(
+            sum(q(time) * self.source_weights[r].sum() for r, q in self.model.heat_sources.items())
+        )
+
+    @property
+    def _constant_capacity(self) -> bool:
+        return all(isinstance(m.specific_heat, float) for m in self.model.materials.values())
+
+    @property
+    def _constant_conductivity(self) -> bool:
+        return all(isinstance(m.conductivity, float) for m in self.model.materials.values())
+
+
+def element_for(model: ThermalModel):
+    return ElementTriP1() if model.element_order == 1 else ElementTriP2()
 
 
 def assemble(model: ThermalModel) -> ConductionSystem:
-    """Assemble M, A and b once for the whole run."""
+    """Assemble everything that does not change during the run."""
     mesh = model.section.mesh
-    element = ElementTriP1() if model.element_order == 1 else ElementTriP2()
-    basis = Basis(mesh, element)
-    material = model.material
+    element = element_for(model)
     axisymmetric = model.section.axisymmetric
+    basis = Basis(mesh, element)
+    region_bases = {r: Basis(mesh, element, elements=e) for r, e in mesh.subdomains.items()}
+    materials = model.materials
 
-    capacity = asm(
-        forms.heat_capacity,
-        basis,
-        volumetric_heat_capacity=material.volumetric_heat_capacity,
-        axisymmetric=axisymmetric,
-    )
-    operator = asm(
-        forms.conduction, basis, conductivity=material.conductivity, axisymmetric=axisymmetric
-    )
-    load = np.zeros(basis.N)
-    exchange = {}
-    for name, condition in model.convection.items():
-        edge = FacetBasis(mesh, element, facets=mesh.boundaries[name])
-        h = condition.heat_transfer_coefficient
-        operator = operator + asm(
-            forms.surface_exchange, edge, heat_transfer_coefficient=h, axisymmetric=axisymmetric
+    capacity = stiffness = None
+    for region, region_basis in region_bases.items():
+        material: Material = materials[region]
+        rho_c = (
+            material.density * material.specific_heat
+            if isinstance(material.specific_heat, float)
+            else material.heat_capacity_at(0.0)
         )
-        weights = asm(forms.shape_integral, edge, axisymmetric=axisymmetric)
-        load += h * condition.ambient * weights
-        exchange[name] = ExchangeEdge(h, condition.ambient, float(weights.sum()), weights)
+        k = (
+            material.conductivity
+            if isinstance(material.conductivity, float)
+            else float(material.conductivity_at(0.0))
+        )
+        c = asm(
+            forms.heat_capacity,
+            region_basis,
+            volumetric_heat_capacity=float(rho_c),
+            axisymmetric=axisymmetric,
+        )
+        s = asm(forms.conduction, region_basis, conductivity=k, axisymmetric=axisymmetric)
+        capacity = c if capacity is None else capacity + c
+        stiffness = s if stiffness is None else stiffness + s
 
+    edges: dict[str, EdgeTerms] = {}
+    exchanging = set(model.convection) | set(model.radiation) | set(model.fluxes)
+    for name in exchanging:
+        edge = FacetBasis(mesh, element, facets=mesh.boundaries[name])
+        terms = EdgeTerms(edge, asm(forms.shape_integral, edge, axisymmetric=axisymmetric))
+        if name in model.convection:
+            terms.exchange_matrix = asm(
+                forms.surface_exchange,
+                edge,
+                heat_transfer_coefficient=1.0,
+                axisymmetric=axisymmetric,
+            ).tocsr()
+        edges[name] = terms
+
+    source_weights = {
+        r: asm(forms.shape_integral, region_bases[r], axisymmetric=axisymmetric)
+        for r in model.heat_sources
+    }
     volume_weights = asm(forms.shape_integral, basis, axisymmetric=axisymmetric)
     volume_weights /= volume_weights.sum()
+
+    fixed_dofs: dict[str, np.ndarray] = {}
+    taken: set[int] = set()
+    for name in model.fixed:
+        dofs = [d for d in basis.get_dofs(facets=mesh.boundaries[name]).all() if d not in taken]
+        taken.update(dofs)
+        fixed_dofs[name] = np.array(sorted(dofs), dtype=np.int64)
+    free = np.setdiff1d(np.arange(basis.N), np.array(sorted(taken), dtype=np.int64))
+
     points = np.array([model.probes[name] for name in model.probes], dtype=float).reshape(-1, 2)
     probe_matrix = _probe_matrix(basis, points.T, model.section.locate(points.T))
     return ConductionSystem(
+        model=model,
+        basis=basis,
+        region_bases=region_bases,
+        size=basis.N,
         capacity=capacity.tocsr(),
-        operator=operator.tocsr(),
-        load=load,
+        stiffness=stiffness.tocsr(),
+        edges=edges,
+        source_weights=source_weights,
         volume_weights=volume_weights,
         probe_matrix=probe_matrix,
         vertex_dofs=basis.nodal_dofs[0].copy(),
-        exchange=exchange,
+        fixed_dofs=fixed_dofs,
+        free_dofs=free,
     )
+
+
+def initial_field(system: ConductionSystem) -> np.ndarray:
+    """The model's initial state as a field (°C at every degree of freedom)."""
+    model = system.model
+    value = model.initial_temperature
+    if isinstance(value, np.ndarray):
+        return value.copy()
+    if isinstance(value, float):
+        return np.full(system.size, value)
+    # One temperature per region: a node on an interface takes the later region's value.
+    field_ = np.empty(system.size)
+    for region, basis in system.region_bases.items():
+        dofs = np.unique(basis.element_dofs[:, model.section.mesh.subdomains[region]])
+        field_[dofs] = value[region]
+    return field_
 
 
 def _probe_matrix(basis: Basis, points: np.ndarray, cells: np.ndarray) -> sp.csr_matrix:

@@ -1,12 +1,12 @@
-"""The time-stepping driver: Crank–Nicolson with backward-Euler start-up half-steps.
+"""The time-stepping driver.
 
-With A = K + H the scheme is
-
-    (M + θ·Δt·A) T⁺ = (M − (1 − θ)·Δt·A) T + Δt·b,
-
-Crank–Nicolson (θ = ½, step Δt) after a few backward-Euler half-steps (θ = 1, step Δt/2) that
-damp the fast modes a sudden plunge excites (Rannacher's start-up). Both use the same matrix
-M + ½·Δt·A, so one LU factorisation serves the whole run.
+Schemes (see :mod:`fem.integrators`): Crank–Nicolson with backward-Euler start-up half-steps
+(Rannacher's start-up: they damp the fast modes a sudden plunge excites and use the same matrix
+M + ½·Δt·A as Crank–Nicolson), BDF2 started by backward Euler, or backward Euler. Steps are
+fixed or chosen by a local error estimate; no step crosses a schedule breakpoint or an output
+time. Each step is solved by Newton's method on the free degrees of freedom; a linear problem
+converges in one iteration with a factorisation kept in a small cache, so a linear run with a
+fixed step factorises once.
 """
 
 from __future__ import annotations
@@ -14,30 +14,73 @@ from __future__ import annotations
 import math
 import numbers
 import time as clock
+from collections import OrderedDict
+from collections.abc import Callable
+from dataclasses import dataclass
 
 import numpy as np
 import scipy.sparse.linalg as spla
-from skfem import Basis, ElementTriP1, ElementTriP2
 
-from .errors import ModelError
+from .errors import ModelError, SolverError
+from .fields import FieldSeries
+from .integrators import (
+    METHODS,
+    StepFormula,
+    bdf2_formula,
+    local_error,
+    predict,
+    theta_formula,
+)
 from .model import ThermalModel
 from .recorder import HistoryRecorder
 from .solution import RunChecks, Solution, SolverStats
-from .system import assemble
+from .system import assemble, initial_field
 
 DEFAULT_STEPS = 500
 DEFAULT_OUTPUTS = 50
 ENERGY_BALANCE_TOLERANCE = 1e-8
 EXCURSION_TOLERANCE = 1e-3  # as a fraction of the temperature range
+DEFAULT_RELATIVE_TOLERANCE = 1e-4  # local error, as a fraction of the temperature range
+FACTOR_CACHE = 4
+LADDER = 2.0  # adaptive steps take values initial_step · 2^k, so few factorisations are made
+ORDERING = "MMD_AT_PLUS_A"  # fill-reducing ordering measured fastest here for these matrices
+
+
+@dataclass(frozen=True)
+class StopWhen:
+    """End the run when a quantity reaches a target.
+
+    Parameters
+    ----------
+    quantity : str
+        ``"mean"``, ``"minimum"``, ``"maximum"`` or the name of a probe.
+    target : float
+        Temperature in °C; the run stops at the first step that reaches or crosses it, and
+        the crossing time is interpolated within that step.
+    """
+
+    quantity: str
+    target: float
 
 
 def solve(
     model: ThermalModel,
     end_time: float,
     *,
+    method: str = "crank-nicolson",
     time_step: float | None = None,
+    adaptive: bool | None = None,
+    tolerance: float | None = None,
+    min_step: float | None = None,
+    max_step: float | None = None,
     output_interval: float | None = None,
-    startup_steps: int = 2,
+    output_times=None,
+    startup_steps: int | None = None,
+    stop: StopWhen | None = None,
+    newton_tolerance: float = 1e-6,
+    max_newton_iterations: int = 30,
+    field_folder=None,
+    progress: Callable[[float, float, int], None] | None = None,
 ) -> Solution:
     """Solve the transient conduction problem from t = 0 to ``end_time``.
 
@@ -46,16 +89,40 @@ def solve(
     model : ThermalModel
         The problem.
     end_time : float
-        Duration in s; > 0.
+        Duration in s; > 0. With ``stop`` it is the longest the run may take.
+    method : str
+        ``"crank-nicolson"`` (default), ``"bdf2"`` or ``"backward-euler"``.
     time_step : float, optional
-        Largest step in s. The step actually used is the largest one not above it that fits a
-        whole number of times into every output interval. Default: ``end_time / 500``.
+        Fixed step in s; for fixed steps without ``output_times``, the step used is the largest
+        one not above it that fits a whole number of times into every output interval. With
+        ``adaptive`` it is the first step.
+    adaptive : bool, optional
+        Control the step by the local error estimate. Default: adaptive when no ``time_step``
+        is given.
+    tolerance : float, optional
+        Largest local error per step in K for adaptive steps. Default: 1e-4 of the range of
+        initial and boundary temperatures.
+    min_step, max_step : float, optional
+        Bounds of adaptive steps in s (default 1e-9·end_time and end_time).
     output_interval : float, optional
-        Time in s between stored fields (the first is at t = 0, the last at ``end_time``).
+        Time in s between stored fields (the first at t = 0, the last at ``end_time``).
         Default: ``end_time / 50``.
-    startup_steps : int
-        Number of leading Crank–Nicolson steps replaced by two backward-Euler half-steps each;
-        0 for plain Crank–Nicolson.
+    output_times : sequence of float, optional
+        Explicit times in s for the stored fields, instead of ``output_interval``.
+    startup_steps : int, optional
+        Crank–Nicolson: leading steps replaced by two backward-Euler half-steps each (default
+        2; 0 for plain Crank–Nicolson). BDF2: backward-Euler steps before BDF2 (default 1).
+    stop : StopWhen, optional
+        End the run when a quantity reaches a target.
+    newton_tolerance : float
+        Newton's method stops when the largest temperature change is below this, K.
+    max_newton_iterations : int
+        Iterations allowed per step before :class:`SolverError`.
+    field_folder : str or Path, optional
+        Write the output fields to this folder as they are produced instead of keeping them in
+        memory.
+    progress : callable, optional
+        Called after every step as ``progress(time, end_time, steps)``.
 
     Returns
     -------
@@ -71,148 +138,578 @@ def solve(
     >>> model = ThermalModel(section, Material(45.0, 7850.0, 475.0),
     ...     boundaries={"symmetry": Insulated("symmetry"), "right": oil, "top": oil},
     ...     initial_temperature=850.0)
-    >>> result = solve(model, end_time=600.0)
+    >>> result = solve(model, end_time=600.0, time_step=1.0)
     >>> result.stats.factorisations
     1
     >>> bool(result.mean[-1] < 850.0)
     True
     """
-    step, steps_per_output, intervals = _check_arguments(
-        end_time, time_step, output_interval, startup_steps
+    controls = _RunControls.check(
+        model,
+        end_time,
+        method,
+        time_step,
+        adaptive,
+        tolerance,
+        min_step,
+        max_step,
+        output_interval,
+        output_times,
+        startup_steps,
+        stop,
+        newton_tolerance,
+        max_newton_iterations,
     )
-    started = clock.perf_counter()
-    system = assemble(model)
-    element = ElementTriP1() if model.element_order == 1 else ElementTriP2()
-    dof_locations = Basis(model.section.mesh, element).doflocs
-    assembled = clock.perf_counter()
+    return _Run(model, controls, field_folder, progress).execute()
 
-    M, A, b = system.capacity, system.operator, system.load
-    left = (M + 0.5 * step * A).tocsc()
-    factor = spla.splu(left, permc_spec="MMD_AT_PLUS_A")
-    factorised = clock.perf_counter()
 
-    recorder = HistoryRecorder(system, dof_locations, model.probes)
-    temperature = np.full(system.size, float(model.initial_temperature))
-    recorder.record(0.0, temperature)
-    recorder.store_field(0.0, temperature)
+# ---------------------------------------------------------------------------------------------
+# Run controls
+# ---------------------------------------------------------------------------------------------
 
-    n_steps = steps_per_output * intervals
-    startup = min(startup_steps, n_steps)
-    half_steps = 0
-    now = 0.0
-    for k in range(1, n_steps + 1):
-        if k <= startup:
-            for _ in range(2):  # backward Euler over Δt/2, same matrix M + ½·Δt·A
-                previous = temperature
-                temperature = factor.solve(M @ previous + 0.5 * step * b)
-                recorder.absorbed_heat += 0.5 * step * recorder.heat_flow_total(temperature)
-                half_steps += 1
-                now += 0.5 * step
-                if half_steps % 2:
-                    recorder.record(now, temperature)
+
+@dataclass(frozen=True)
+class _RunControls:
+    end_time: float
+    method: str
+    adaptive: bool
+    step: float
+    tolerance: float
+    min_step: float
+    max_step: float
+    output_times: tuple[float, ...]
+    startup_steps: int
+    stop: StopWhen | None
+    newton_tolerance: float
+    max_newton_iterations: int
+
+    @classmethod
+    def check(
+        cls,
+        model,
+        end_time,
+        method,
+        time_step,
+        adaptive,
+        tolerance,
+        min_step,
+        max_step,
+        output_interval,
+        output_times,
+        startup_steps,
+        stop,
+        newton_tolerance,
+        max_newton_iterations,
+    ) -> _RunControls:
+        if not _positive(end_time):
+            raise ModelError(f"end_time must be a finite time > 0 s, got {end_time!r}")
+        end = float(end_time)
+        if method not in METHODS:
+            raise ModelError(f"method must be one of {METHODS}, got {method!r}")
+        if time_step is not None and (not _positive(time_step) or time_step > end):
+            raise ModelError(
+                f"time_step must be a time in (0, end_time = {end_time}] s, got {time_step!r}"
+            )
+        adaptive = time_step is None if adaptive is None else bool(adaptive)
+        if startup_steps is None:
+            startup_steps = 2 if method == "crank-nicolson" else 1
+        if (
+            not isinstance(startup_steps, numbers.Integral)
+            or isinstance(startup_steps, bool)
+            or startup_steps < 0
+        ):
+            raise ModelError(f"startup_steps must be a whole number >= 0, got {startup_steps!r}")
+        if method == "bdf2" and startup_steps < 1:
+            raise ModelError("BDF2 needs at least one backward-Euler start-up step")
+
+        times = cls._outputs(end, output_interval, output_times)
+        span = _temperature_span(model)
+        if tolerance is None:
+            tolerance = max(DEFAULT_RELATIVE_TOLERANCE * span, 1e-6)
+        elif not _positive(tolerance):
+            raise ModelError(
+                f"tolerance must be a temperature difference > 0 K, got {tolerance!r}"
+            )
+        min_step = 1e-9 * end if min_step is None else min_step
+        max_step = end if max_step is None else max_step
+        for name, value in (("min_step", min_step), ("max_step", max_step)):
+            if not _positive(value) or value > end:
+                raise ModelError(f"{name} must be a time in (0, end_time] s, got {value!r}")
+        if min_step > max_step:
+            raise ModelError(f"min_step {min_step} s is above max_step {max_step} s")
+
+        if time_step is not None:
+            step = float(time_step)
+        elif adaptive:
+            step = min(0.1 * _surface_diffusion_time(model), end / 100)
         else:
-            previous = temperature
-            temperature = factor.solve(M @ previous - 0.5 * step * (A @ previous) + step * b)
-            midpoint = 0.5 * (previous + temperature)
-            recorder.absorbed_heat += step * recorder.heat_flow_total(midpoint)
-        now = k * step  # no drift from repeated additions
-        recorder.record(now, temperature)
-        if k % steps_per_output == 0:
-            recorder.store_field(now, temperature)
-    finished = clock.perf_counter()
+            step = end / DEFAULT_STEPS
+        if not adaptive and output_times is None:
+            interval = times[1] - times[0] if len(times) > 1 else end
+            step = interval / math.ceil(interval / step - 1e-9)
+        step = float(min(max(step, min_step), max_step))
 
-    histories = recorder.histories()
-    stats = SolverStats(
-        method="crank-nicolson",
-        steps=n_steps + startup,
-        startup_steps=2 * startup,
-        time_step=step,
-        factorisations=1,
-        unknowns=system.size,
-        assembly_seconds=assembled - started,
-        factorisation_seconds=factorised - assembled,
-        stepping_seconds=finished - factorised,
-    )
-    checks = _run_checks(model, histories, step, startup)
-    return Solution(model=model, stats=stats, checks=checks, **histories)
-
-
-def _check_arguments(end_time, time_step, output_interval, startup_steps):
-    """Validate the run controls; return the step, steps per output and output intervals."""
-    if not _positive(end_time):
-        raise ModelError(f"end_time must be a finite time > 0 s, got {end_time!r}")
-    if output_interval is None:
-        output_interval = end_time / DEFAULT_OUTPUTS
-    if not _positive(output_interval) or output_interval > end_time:
-        raise ModelError(
-            f"output_interval must be a time in (0, end_time = {end_time}] s, "
-            f"got {output_interval!r}"
+        if stop is not None:
+            if not isinstance(stop, StopWhen):
+                raise ModelError(f"stop must be a StopWhen, got {stop!r}")
+            names = ("mean", "minimum", "maximum", *model.probes)
+            if stop.quantity not in names:
+                raise ModelError(
+                    f"stop quantity must be one of {list(names)}, got {stop.quantity!r}"
+                )
+        if not _positive(newton_tolerance):
+            raise ModelError(f"newton_tolerance must be > 0 K, got {newton_tolerance!r}")
+        if not isinstance(max_newton_iterations, int) or max_newton_iterations < 1:
+            raise ModelError(
+                f"max_newton_iterations must be a whole number >= 1, got {max_newton_iterations!r}"
+            )
+        return cls(
+            end,
+            method,
+            adaptive,
+            step,
+            float(tolerance),
+            float(min_step),
+            float(max_step),
+            times,
+            int(startup_steps),
+            stop,
+            float(newton_tolerance),
+            max_newton_iterations,
         )
-    if time_step is None:
-        time_step = end_time / DEFAULT_STEPS
-    if not _positive(time_step) or time_step > end_time:
-        raise ModelError(
-            f"time_step must be a time in (0, end_time = {end_time}] s, got {time_step!r}"
-        )
-    if (
-        not isinstance(startup_steps, numbers.Integral)
-        or isinstance(startup_steps, bool)
-        or (startup_steps < 0)
-    ):
-        raise ModelError(f"startup_steps must be a whole number >= 0, got {startup_steps!r}")
-    end_time, time_step, output_interval = (
-        float(end_time),
-        float(time_step),
-        float(output_interval),
-    )
-    intervals = math.ceil(end_time / output_interval - 1e-9)
-    interval = end_time / intervals
-    steps_per_output = math.ceil(interval / time_step - 1e-9)
-    return interval / steps_per_output, steps_per_output, intervals
+
+    @staticmethod
+    def _outputs(end: float, interval, explicit) -> tuple[float, ...]:
+        if explicit is not None:
+            values = sorted({float(t) for t in explicit})
+            if not values or values[0] <= 0 or values[-1] > end * (1 + 1e-12):
+                raise ModelError(
+                    f"output_times must lie in (0, end_time = {end}] s, got {list(explicit)!r}"
+                )
+            return tuple(values)
+        if interval is None:
+            interval = end / DEFAULT_OUTPUTS
+        if not _positive(interval) or interval > end:
+            raise ModelError(
+                f"output_interval must be a time in (0, end_time = {end}] s, got {interval!r}"
+            )
+        count = math.ceil(end / float(interval) - 1e-9)
+        return tuple(end * k / count for k in range(1, count + 1))
 
 
 def _positive(value) -> bool:
-    return isinstance(value, numbers.Real) and math.isfinite(value) and value > 0
-
-
-def _run_checks(model: ThermalModel, histories: dict, step: float, startup: int) -> RunChecks:
-    warnings = []
-    stored, absorbed = histories["stored_energy"], histories["absorbed_heat"]
-    scale = max(np.abs(stored).max(), np.finfo(float).tiny)
-    balance = float(np.abs(stored - absorbed).max() / scale)
-    if balance > ENERGY_BALANCE_TOLERANCE:
-        warnings.append(
-            f"energy balance is off by {balance:.1e} of the stored energy change "
-            f"(expected below {ENERGY_BALANCE_TOLERANCE:.0e})"
-        )
-
-    bounds = [model.initial_temperature] + [c.ambient for c in model.convection.values()]
-    low, high = min(bounds), max(bounds)
-    excursion = float(
-        max(low - histories["minimum"].min(), histories["maximum"].max() - high, 0.0)
+    return (
+        isinstance(value, numbers.Real)
+        and not isinstance(value, bool)
+        and math.isfinite(value)
+        and value > 0
     )
-    if excursion > EXCURSION_TOLERANCE * max(high - low, 1.0):
-        warnings.append(
-            f"temperatures left the range of initial and ambient values [{low}, {high}] degC "
-            f"by {excursion:.3g} K; consistent-capacity elements overshoot when the step is far "
-            "below the diffusion time of the surface elements: refine the mesh near the "
-            "heat-exchanging edges or take a larger step"
-        )
-
-    ratio = _step_to_surface_diffusion(model, step)
-    if ratio > 1.0 and startup == 0:
-        warnings.append(
-            f"the time step is {ratio:.3g} times the diffusion time of the smallest surface "
-            "element and no start-up steps were taken: Crank-Nicolson may oscillate"
-        )
-    return RunChecks(balance, excursion, ratio, tuple(warnings))
 
 
-def _step_to_surface_diffusion(model: ThermalModel, step: float) -> float:
+def _boundary_temperatures(model: ThermalModel, end: float) -> list[float]:
+    values = [*model.initial_range()]
+    for c in model.convection.values():
+        values.extend(c.ambient.extremes(end))
+    for r in model.radiation.values():
+        values.extend(r.surroundings.extremes(end))
+    for f in model.fixed.values():
+        values.extend(f.temperature.extremes(end))
+    return values
+
+
+def _temperature_span(model: ThermalModel) -> float:
+    values = _boundary_temperatures(model, 1e30)
+    return max(max(values) - min(values), 1.0)
+
+
+def _smallest_surface_edge(model: ThermalModel) -> float:
     mesh = model.section.mesh
-    facets = [mesh.boundaries[name] for name in model.exchange_groups]
-    if not facets:
-        return 0.0
-    ends = mesh.p[:, mesh.facets[:, np.concatenate(facets)]]
-    smallest = float(np.linalg.norm(ends[:, 0] - ends[:, 1], axis=0).min())
-    return step / (smallest**2 / model.material.diffusivity)
+    groups = model.exchange_groups or tuple(model.fixed) or tuple(mesh.boundaries)
+    facets = np.concatenate([mesh.boundaries[g] for g in groups])
+    ends = mesh.p[:, mesh.facets[:, facets]]
+    return float(np.linalg.norm(ends[:, 0] - ends[:, 1], axis=0).min())
+
+
+def _surface_diffusion_time(model: ThermalModel) -> float:
+    fastest = max(m.diffusivity for m in model.materials.values())
+    return _smallest_surface_edge(model) ** 2 / fastest
+
+
+# ---------------------------------------------------------------------------------------------
+# The run
+# ---------------------------------------------------------------------------------------------
+
+
+class _Run:
+    def __init__(self, model: ThermalModel, controls: _RunControls, field_folder, progress):
+        self.model = model
+        self.c = controls
+        self.progress = progress
+        self.fields = FieldSeries(field_folder)
+        self.factors: OrderedDict = OrderedDict()
+        self.factorisations = 0
+        self.factorisation_seconds = 0.0
+        self.newton_iterations = 0
+        self.max_iterations = 0
+        self.balance_residual = 0.0
+
+    # -- linear algebra ---------------------------------------------------------------------
+    def _factor(self, matrix):
+        started = clock.perf_counter()
+        free = self.system.free_dofs
+        factor = spla.splu(matrix[free][:, free].tocsc(), permc_spec=ORDERING)
+        self.factorisations += 1
+        self.factorisation_seconds += clock.perf_counter() - started
+        return factor
+
+    def _linear_factor(self, formula: StepFormula, step: float, time: float):
+        scale = formula.matrix_scale(step)
+        key = (float(f"{scale:.12e}"), self.system.exchange_key(time))
+        if key in self.factors:
+            self.factors.move_to_end(key)
+            return self.factors[key]
+        factor = self._factor(self.system.capacity + scale * self.system.exchange_operator(time))
+        self.factors[key] = factor
+        if len(self.factors) > FACTOR_CACHE:
+            self.factors.popitem(last=False)
+        return factor
+
+    # -- one step ---------------------------------------------------------------------------
+    def _step(
+        self,
+        formula: StepFormula,
+        step: float,
+        t0: float,
+        t1: float,
+        states: list[np.ndarray],
+        guess: np.ndarray,
+    ):
+        """Solve one step; return the new field and its full residual (reactions on fixed
+        degrees of freedom, ~0 elsewhere)."""
+        s = self.system
+        inside0, inside1 = t0 + 1e-9 * step, t1 - 1e-9 * step
+        known = sum(a * s.stored(u) for a, u in zip(formula.a[1:], states, strict=False)) / step
+        if formula.beta < 1:
+            known = known + (1 - formula.beta) * s.net_outflow(states[0], inside0)
+        u = guess.copy()
+        for name, c in self.model.fixed.items():
+            u[s.fixed_dofs[name]] = c.temperature(inside1)
+        free = s.free_dofs
+
+        def residual(field):
+            return (
+                formula.a[0] * s.stored(field) / step
+                + known
+                + formula.beta * s.net_outflow(field, inside1)
+            )
+
+        linear = self.model.is_linear
+        iteration = 0
+        while iteration < self.c.max_newton_iterations:
+            iteration += 1
+            r = residual(u)
+            if linear:
+                factor = self._linear_factor(formula, step, inside1)
+                change = factor.solve(-r[free] * (step / formula.a[0]))
+            else:
+                jacobian = (formula.a[0] / step) * s.capacity_tangent(u) + formula.beta * (
+                    s.outflow_tangent(u, inside1)
+                )
+                change = self._factor(jacobian).solve(-r[free])
+            u[free] += change
+            largest = float(np.abs(change).max(initial=0.0))
+            if linear or largest <= self.c.newton_tolerance:
+                break
+        else:
+            raise SolverError(
+                f"Newton's method did not converge at t = {t1:.6g} s (step {step:.3g} s) in "
+                f"{self.c.max_newton_iterations} iterations; the last change was {largest:.3g} "
+                f"K and the residual {float(np.abs(residual(u)[free]).max()):.3g} W. Try a "
+                "smaller time step or a looser newton_tolerance"
+            )
+        self.newton_iterations += iteration
+        self.max_iterations = max(self.max_iterations, iteration)
+        return u, residual(u)
+
+    # -- the loop ---------------------------------------------------------------------------
+    def execute(self) -> Solution:
+        c, model = self.c, self.model
+        started = clock.perf_counter()
+        self.system = s = assemble(model)
+        dof_locations = s.basis.doflocs
+        assembled = clock.perf_counter()
+
+        u = initial_field(s)
+        for name, fixed in model.fixed.items():
+            u[s.fixed_dofs[name]] = fixed.temperature(0.0)
+        stored = float(s.stored(u).sum())
+        recorder = HistoryRecorder(s, dof_locations, self.fields, stored)
+        recorder.record(0.0, u, stored, 0.0, dict.fromkeys(s.fixed_dofs, 0.0))
+        recorder.store_field(0.0, u)
+        initial_stored = stored
+
+        events = sorted(set(c.output_times) | set(_breakpoints(model, c.end_time)) | {c.end_time})
+        outputs = set(c.output_times)
+        history: list[tuple[float, np.ndarray]] = [(0.0, u)]
+        step = c.step
+        ladder_base = c.step
+        absorbed = 0.0
+        steps = rejected = startup_done = 0
+        startup_total = c.startup_steps
+        smallest, largest = math.inf, 0.0
+        previous_step = None
+        stop_time = None
+        stop_side = None
+        stop_value = None
+        if c.stop is not None:
+            stop_value = self._quantity(u, c.stop.quantity)
+            stop_side = np.sign(stop_value - c.stop.target)
+        t = 0.0
+        event = 0
+        while t < c.end_time * (1 - 1e-12):
+            while events[event] <= t * (1 + 1e-12):
+                event += 1
+            gap = events[event] - t
+            startup = startup_done < startup_total
+            h = step
+            if c.method == "bdf2" and previous_step is not None and not startup:
+                h = min(h, 2.0 * previous_step)  # BDF2 is zero-stable for ratios below 1 + √2
+            if abs(gap - h) <= 1e-9 * h:
+                t1 = events[event]  # the step lands on the event: snap away the round-off
+            elif gap < h or (c.adaptive and not startup and gap <= 1.5 * h and gap <= c.max_step):
+                h, t1 = gap, events[event]
+            else:
+                t1 = t + h
+
+            past = [state for _, state in reversed(history[-3:])]
+            if startup and c.method == "crank-nicolson":
+                half = theta_formula(1.0)
+                middle, r_mid = self._step(half, h / 2, t, t + h / 2, past[:1], past[0])
+                absorbed += self._ledger(half, h / 2, r_mid, middle, t + h / 2)
+                recorder.record(
+                    t + h / 2,
+                    middle,
+                    float(s.stored(middle).sum()),
+                    absorbed,
+                    self._reactions(r_mid),
+                )
+                u1, r1 = self._step(half, h / 2, t + h / 2, t1, [middle], middle)
+                formula = half
+                ledger_step = h / 2
+                steps += 1
+            elif startup or c.method == "backward-euler":
+                formula = theta_formula(1.0)
+                u1, r1 = self._step(formula, h, t, t1, past[:1], past[0])
+                ledger_step = h
+            elif c.method == "crank-nicolson":
+                formula = theta_formula(0.5)
+                guess = (
+                    past[0]
+                    if len(history) < 3
+                    else predict((t1, *[tt for tt, _ in reversed(history[-3:])]), past)
+                )
+                u1, r1 = self._step(
+                    formula, h, t, t1, past[:1], guess if not model.is_linear else past[0]
+                )
+                ledger_step = h
+            else:
+                formula = bdf2_formula(h / previous_step)
+                guess = (
+                    past[0]
+                    if len(history) < 3
+                    else predict((t1, *[tt for tt, _ in reversed(history[-3:])]), past)
+                )
+                u1, r1 = self._step(
+                    formula, h, t, t1, past[:2], guess if not model.is_linear else past[0]
+                )
+                ledger_step = h
+
+            if c.adaptive and not startup and len(history) >= 3:
+                times = (t1, *[tt for tt, _ in reversed(history[-3:])])
+                error = float(
+                    np.abs(local_error(formula, times, u1, past)[s.free_dofs]).max(initial=0.0)
+                )
+                factor = 0.9 * (c.tolerance / max(error, 1e-300)) ** (1 / 3)
+                if error > c.tolerance and h > c.min_step * (1 + 1e-9):
+                    rejected += 1
+                    step = self._on_ladder(max(h * max(factor, 0.2), c.min_step), ladder_base)
+                    continue
+                if error > c.tolerance:
+                    raise SolverError(
+                        f"the local error {error:.3g} K at t = {t1:.6g} s exceeds the tolerance "
+                        f"{c.tolerance:.3g} K at the smallest step {c.min_step:.3g} s"
+                    )
+                proposal = min(max(h * min(factor, 2.0), c.min_step), c.max_step)
+                if h < step * (1 - 1e-9):  # shortened to meet an event: keep the step earned
+                    proposal = step if factor >= 1 else min(step, proposal)
+                step = self._on_ladder(proposal, ladder_base)
+            elif not c.adaptive:
+                step = c.step
+
+            absorbed += self._ledger(formula, ledger_step, r1, u1, t1, past)
+            stored = float(s.stored(u1).sum())
+            recorder.record(t1, u1, stored, absorbed, self._reactions(r1))
+            steps += 1
+            if startup:
+                startup_done += 1
+            smallest, largest = min(smallest, h), max(largest, h)
+            previous_step = h
+            history.append((t1, u1))
+            history = history[-3:]
+            t = t1
+            if any(abs(t - o) <= 1e-9 * max(h, 1.0) for o in outputs):
+                recorder.store_field(t, u1)
+            if self.progress is not None:
+                self.progress(t, c.end_time, steps)
+            if c.stop is not None:
+                v0, v1 = stop_value, self._quantity(u1, c.stop.quantity)
+                stop_value = v1
+                if np.sign(v1 - c.stop.target) != stop_side:
+                    fraction = 1.0 if v1 == v0 else (c.stop.target - v0) / (v1 - v0)
+                    stop_time = float(t - h + h * min(max(fraction, 0.0), 1.0))
+                    if not any(abs(t - o) <= 1e-9 * max(h, 1.0) for o in outputs):
+                        recorder.store_field(t, u1)
+                    break
+        finished = clock.perf_counter()
+
+        histories = recorder.histories()
+        stats = SolverStats(
+            method=c.method,
+            adaptive=c.adaptive,
+            steps=steps,
+            rejected_steps=rejected,
+            startup_steps=2 * min(startup_done, startup_total)
+            if c.method == "crank-nicolson"
+            else min(startup_done, startup_total),
+            time_step=float(previous_step if c.adaptive and previous_step else c.step),
+            smallest_step=float(smallest if steps else c.step),
+            largest_step=float(largest if steps else c.step),
+            factorisations=self.factorisations,
+            newton_iterations=self.newton_iterations,
+            max_newton_iterations=self.max_iterations,
+            unknowns=s.size,
+            assembly_seconds=assembled - started,
+            factorisation_seconds=self.factorisation_seconds,
+            stepping_seconds=finished - assembled - self.factorisation_seconds,
+        )
+        checks = self._checks(
+            histories, initial_stored, smallest if steps else c.step, startup_done
+        )
+        return Solution(
+            model=model,
+            stats=stats,
+            checks=checks,
+            final_state=u1.copy() if steps else u.copy(),
+            stop_time=stop_time,
+            **histories,
+        )
+
+    # -- bookkeeping ------------------------------------------------------------------------
+    def _quantity(self, field: np.ndarray, name: str) -> float:
+        if name == "mean":
+            return float(self.system.volume_weights @ field)
+        if name == "minimum":
+            return float(field.min())
+        if name == "maximum":
+            return float(field.max())
+        k = list(self.model.probes).index(name)
+        return float((self.system.probe_matrix @ field)[k])
+
+    @staticmethod
+    def _on_ladder(step: float, base: float) -> float:
+        return base * LADDER ** math.floor(math.log(step / base, LADDER) + 1e-9)
+
+    def _inflow(self, field: np.ndarray, time: float) -> float:
+        return -float(self.system.net_outflow(field, time).sum())
+
+    def _ledger(self, formula, step, residual, field, t1, past=None) -> float:
+        """Heat absorbed over the step as the scheme integrates it; adds the step's balance
+        residual (the free rows' sum) to the check."""
+        s = self.system
+        free = s.free_dofs
+        self.balance_residual += step * abs(float(residual[free].sum()))
+        reactions = float(sum(residual[d].sum() for d in s.fixed_dofs.values()))
+        inflow = formula.beta * self._inflow(field, t1 - 1e-9 * step)
+        if formula.beta < 1 and past is not None:
+            inflow += (1 - formula.beta) * self._inflow(past[0], t1 - step + 1e-9 * step)
+        return step * (inflow + reactions)
+
+    def _reactions(self, residual: np.ndarray) -> dict[str, float]:
+        return {name: float(residual[d].sum()) for name, d in self.system.fixed_dofs.items()}
+
+    def _checks(self, histories, initial_stored, smallest_step, startup) -> RunChecks:
+        c, model = self.c, self.model
+        warnings = []
+        stored = histories["stored_energy"]
+        scale = max(float(np.abs(stored).max()), np.finfo(float).tiny)
+        balance = self.balance_residual / scale
+        limit = (
+            ENERGY_BALANCE_TOLERANCE
+            if model.is_linear
+            else max(
+                ENERGY_BALANCE_TOLERANCE,
+                1e3
+                * c.newton_tolerance
+                * model.section.facts.volume
+                * max(m.volumetric_heat_capacity for m in model.materials.values())
+                / scale,
+            )
+        )
+        if balance > limit:
+            warnings.append(
+                f"energy balance is off by {balance:.1e} of the stored energy change "
+                f"(expected below {limit:.0e})"
+            )
+
+        excursion = 0.0
+        if not (model.fluxes or model.heat_sources):
+            bounds = _boundary_temperatures(model, c.end_time)
+            low, high = min(bounds), max(bounds)
+            excursion = float(
+                max(low - histories["minimum"].min(), histories["maximum"].max() - high, 0.0)
+            )
+            if excursion > EXCURSION_TOLERANCE * max(high - low, 1.0):
+                warnings.append(
+                    f"temperatures left the range of initial and boundary values [{low:.6g}, "
+                    f"{high:.6g}] degC by {excursion:.3g} K; consistent-capacity elements "
+                    "overshoot when the step is far below the diffusion time of the surface "
+                    "elements: refine the mesh near the heat-exchanging edges or take a larger "
+                    "step"
+                )
+
+        ratio = smallest_step / _surface_diffusion_time(model)
+        if ratio > 1.0 and startup == 0 and c.method == "crank-nicolson":
+            warnings.append(
+                f"the time step is {ratio:.3g} times the diffusion time of the smallest surface "
+                "element and no start-up steps were taken: Crank-Nicolson may oscillate"
+            )
+        if (
+            c.stop is not None
+            and histories["times"][-1] >= c.end_time * (1 - 1e-12)
+            and not (_reached(histories, c.stop))
+        ):
+            warnings.append(
+                f"the stop condition ({c.stop.quantity} reaching {c.stop.target:g} degC) was "
+                f"not met by end_time = {c.end_time:g} s"
+            )
+        return RunChecks(balance, excursion, ratio, tuple(warnings))
+
+
+def _reached(histories, stop: StopWhen) -> bool:
+    values = histories["probes"].get(stop.quantity, histories.get(stop.quantity))
+    values = np.asarray(values)
+    return bool(np.any(np.sign(values - stop.target) != np.sign(values[0] - stop.target)))
+
+
+def _breakpoints(model: ThermalModel, end: float) -> set[float]:
+    points: set[float] = set()
+    schedules = []
+    for c in model.convection.values():
+        schedules += [c.heat_transfer_coefficient, c.ambient]
+    schedules += [r.surroundings for r in model.radiation.values()]
+    schedules += [f.flux for f in model.fluxes.values()]
+    schedules += [f.temperature for f in model.fixed.values()]
+    schedules += list(model.heat_sources.values())
+    for schedule in schedules:
+        points.update(schedule.breakpoints(end))
+    return points

@@ -5,11 +5,14 @@ Every number carries its unit in its key (``_s``, ``_degC``, ``_K``, ``_m``, ...
 
 from __future__ import annotations
 
+import dataclasses
 import json
 from importlib.metadata import PackageNotFoundError, version
 from pathlib import Path
 
-from fem import Convection
+import numpy as np
+
+from fem import Constant
 
 from ..assessment import Assessment
 from ..caution import CAUTION
@@ -21,7 +24,6 @@ def summary(assessment: Assessment, files: list[str]) -> dict:
     solution = assessment.solution
     model = solution.model
     facts = model.section.facts
-    material = model.material
     stats, checks = solution.stats, solution.checks
     return {
         "soakwise_version": _version(),
@@ -42,14 +44,10 @@ def summary(assessment: Assessment, files: list[str]) -> dict:
                 "mesh_triangles": int(model.section.mesh.t.shape[1]),
                 "element_order": model.element_order,
             },
-            "material": {
-                "name": material.name,
-                "conductivity_W_per_m_K": material.conductivity,
-                "density_kg_per_m3": material.density,
-                "specific_heat_J_per_kg_K": material.specific_heat,
-            },
+            "materials": {region: _material(m) for region, m in model.materials.items()},
             "boundaries": {name: _boundary(c) for name, c in model.boundaries.items()},
-            "initial_temperature_degC": model.initial_temperature,
+            "initial_temperature_degC": _initial(model.initial_temperature),
+            "heat_sources_W_per_m3": {r: _schedule(q) for r, q in model.heat_sources.items()},
             "probes_m": {name: list(point) for name, point in model.probes.items()},
             "end_time_s": float(solution.times[-1]),
             "target_degC": assessment.target,
@@ -115,17 +113,81 @@ def summary(assessment: Assessment, files: list[str]) -> dict:
 
 def write_summary_json(assessment: Assessment, path: Path, files: list[str]) -> None:
     """Write :func:`summary` to ``path`` atomically."""
-    write_text(Path(path), json.dumps(summary(assessment, files), indent=2) + "\n")
+    text = json.dumps(summary(assessment, files), indent=2, default=_plain)
+    write_text(Path(path), text + "\n")
 
 
-def _boundary(condition) -> dict:
-    if isinstance(condition, Convection):
-        return {
-            "kind": "convection",
-            "heat_transfer_coefficient_W_per_m2_K": condition.heat_transfer_coefficient,
-            "ambient_degC": condition.ambient,
-        }
-    return {"kind": condition.reason}
+def _plain(value):
+    """numpy numbers and arrays as plain JSON numbers and lists."""
+    if isinstance(value, np.generic):
+        return value.item()
+    if isinstance(value, np.ndarray):
+        return value.tolist()
+    raise TypeError(f"cannot write {type(value).__name__} to JSON")
+
+
+def _boundary(conditions) -> list[dict]:
+    """Each condition of an edge group as JSON data, schedules spelled out."""
+    described = []
+    for condition in conditions:
+        entry = {"kind": _KINDS[type(condition).__name__]}
+        for field in dataclasses.fields(condition):
+            value = getattr(condition, field.name)
+            key = field.name + _UNITS.get(field.name, "")
+            entry[key] = _schedule(value) if not isinstance(value, str) else value
+        described.append(entry)
+    return described
+
+
+_KINDS = {
+    "Convection": "convection",
+    "Radiation": "radiation",
+    "HeatFlux": "heat flux",
+    "FixedTemperature": "fixed temperature",
+    "Insulated": "no heat flow",
+}
+_UNITS = {
+    "heat_transfer_coefficient": "_W_per_m2_K",
+    "ambient": "_degC",
+    "surroundings": "_degC",
+    "flux": "_W_per_m2",
+    "temperature": "_degC",
+}
+
+
+def _schedule(value):
+    """A number stays a number; a schedule becomes its kind and parameters."""
+    if isinstance(value, Constant):
+        return value.value
+    if dataclasses.is_dataclass(value):
+        data = {"schedule": type(value).__name__}
+        for field in dataclasses.fields(value):
+            data[field.name] = _schedule(getattr(value, field.name))
+        return data
+    return value
+
+
+def _material(material) -> dict:
+    def value(v):
+        if isinstance(v, float):
+            return v
+        return {"temperatures_degC": list(v.temperatures), "values": list(v.values)}
+
+    return {
+        "name": material.name,
+        "source": material.source,
+        "conductivity_W_per_m_K": value(material.conductivity),
+        "density_kg_per_m3": material.density,
+        "specific_heat_J_per_kg_K": value(material.specific_heat),
+    }
+
+
+def _initial(value):
+    if isinstance(value, float | dict):
+        return value
+    return {
+        "field of an earlier run": {"minimum": float(value.min()), "maximum": float(value.max())}
+    }
 
 
 def _version() -> str:
