@@ -102,7 +102,7 @@ def mesh_section(
     tolerance = _MATCH_TOLERANCE * shape.size
 
     with _gmsh_session():
-        regions = _build_regions(shape, tolerance)
+        regions = _build_regions(shape)
         gmsh.model.occ.synchronize()
         curve_groups = _name_curves(section, primitives, regions, tolerance)
         unknown = sorted(set(refine or {}) - set(curve_groups))
@@ -117,7 +117,11 @@ def mesh_section(
         if order == 2:
             gmsh.model.mesh.setOrder(2)
         return _read_mesh(
-            curve_groups, regions, order, section.axisymmetric, shape.symmetry_multiplier()
+            curve_groups,
+            regions,
+            order,
+            section.axisymmetric,
+            shape.symmetry_multiplier(axisymmetric=section.axisymmetric),
         )
 
 
@@ -157,86 +161,111 @@ def _check_options(shape, size, order, refine, max_elements, curvature_elements)
 # ---------------------------------------------------------------------------------------------
 
 
-def _build_regions(shape: Shape, tolerance: float) -> dict[str, list[int]]:
+def _build_regions(shape: Shape) -> dict[str, list[int]]:
     """Build ``shape`` in gmsh's OCC kernel; return the surface tags of each region."""
-    node = shape.expanded()
-    if isinstance(node, Renamed):
-        return _build_regions(node.shape, tolerance)
-    if isinstance(node, Composite):
-        built = [_build_surfaces(part) for part in node.parts]
-        flat = [dimtag for part in built for dimtag in part]
-        _, mapping = gmsh.model.occ.fragment(flat[:1], flat[1:])
-        owner: dict[int, str] = {}
-        position = 0
-        for part, dimtags in zip(node.parts, built, strict=True):
-            for _ in dimtags:  # later parts overwrite earlier ones where they overlap
-                for dim, tag in mapping[position]:
-                    if dim == 2:
-                        owner[tag] = part.region
-                position += 1
-        regions: dict[str, list[int]] = {}
-        for tag, region in sorted(owner.items()):
-            regions.setdefault(region, []).append(tag)
-        return regions
-    if isinstance(node, SymmetryCut) and isinstance(node.shape.expanded(), Composite):
-        inner = _build_regions(node.shape, tolerance)
-        flat = [(2, tag) for tags in inner.values() for tag in tags]
-        regions_of = [region for region, tags in inner.items() for _ in tags]
-        _check_symmetric(flat, node)
-        _, mapping = gmsh.model.occ.intersect(
-            flat, [_half_plane(node, node.normal)], removeObject=True, removeTool=True
-        )
-        regions = {}
-        for region, result in zip(regions_of, mapping, strict=False):
-            regions.setdefault(region, []).extend(t for d, t in result if d == 2)
-        return regions
-    return {shape.region: [tag for _, tag in _build_surfaces(node)]}
+    regions = _build(shape)
+    tags = {
+        region: sorted({t for d, t in dimtags if d == 2}) for region, dimtags in regions.items()
+    }
+    return {region: t for region, t in tags.items() if t}
 
 
-def _build_surfaces(shape: Shape) -> list[tuple[int, int]]:
-    """Build one single-region shape; return its surface dim-tags."""
+Regions = dict[str, list[tuple[int, int]]]
+
+
+def _build(shape: Shape) -> Regions:
+    """Build one node of the shape tree; return its surfaces by region.
+
+    Unions and intersections make one region; differences, cuts and renaming keep the
+    regions of what they act on; composites fragment their parts so the regions share nodes
+    along their interfaces, later parts owning overlaps.
+    """
     occ = gmsh.model.occ
     node = shape.expanded()
     if isinstance(node, Renamed):
-        return _build_surfaces(node.shape)
+        return _build(node.shape)
     if isinstance(node, Outline):
-        return [(2, occ.addPlaneSurface([_curve_loop(node)]))]
-    if isinstance(node, Union | Composite):
-        parts = [
-            _build_surfaces(s) for s in (node.shapes if isinstance(node, Union) else node.parts)
-        ]
+        return {node.region: [(2, occ.addPlaneSurface([_curve_loop(node)]))]}
+    if isinstance(node, Union):
+        parts = [_flat(_build(s)) for s in node.shapes]
         result, _ = occ.fuse(parts[0], [d for p in parts[1:] for d in p])
-        return _surfaces(result)
-    if isinstance(node, Difference):
-        result = _build_surfaces(node.base)
-        for tool in node.tools:
-            before = _area(result)
-            result, _ = occ.cut(result, _build_surfaces(tool))
-            result = _surfaces(result)
-            if before - _area(result) <= 1e-9 * before:
-                groups = sorted({e.group for e in tool.edges()})
-                raise GeometryError(
-                    f"a shape removed from the part (edges {groups}) lies outside it and "
-                    "removes nothing"
-                )
-        if not result:
-            raise GeometryError("a difference removes the whole part: nothing is left")
-        return result
+        return {node.region: _surfaces(result)}
     if isinstance(node, Intersection):
-        parts = [_build_surfaces(s) for s in node.shapes]
+        parts = [_flat(_build(s)) for s in node.shapes]
         result = parts[0]
         for other in parts[1:]:
             result, _ = occ.intersect(result, other)
             result = _surfaces(result)
         if not result or _area(result) == 0:
             raise GeometryError("the shapes of an intersection have no area in common")
-        return result
+        return {node.region: result}
+    if isinstance(node, Difference):
+        regions = _build(node.base)
+        for tool in node.tools:
+            before = _area(_flat(regions))
+            objects, owners = _objects(regions)
+            _, mapping = occ.cut(objects, _flat(_build(tool)))
+            regions = _remap(owners, mapping)
+            if before - _area(_flat(regions)) <= 1e-9 * before:
+                groups = sorted({e.group for e in tool.edges()})
+                raise GeometryError(
+                    f"a shape removed from the part (edges {groups}) lies outside it and "
+                    "removes nothing"
+                )
+        if not _flat(regions):
+            raise GeometryError("a difference removes the whole part: nothing is left")
+        return regions
+    if isinstance(node, Composite):
+        built = [_build(part) for part in node.parts]
+        objects, owners = [], []
+        for regions in built:  # later parts come later: their claim on an overlap wins
+            o, w = _objects(regions)
+            objects += o
+            owners += w
+        _, mapping = occ.fragment(objects[:1], objects[1:])
+        owner_of: dict[int, str] = {}
+        for region, results in zip(owners, mapping, strict=False):
+            for dim, tag in results:
+                if dim == 2:
+                    owner_of[tag] = region
+        regions: Regions = {}
+        for tag, region in sorted(owner_of.items()):
+            regions.setdefault(region, []).append((2, tag))
+        hidden = sorted(set(owners) - set(regions))
+        if hidden:
+            raise GeometryError(
+                f"region(s) {hidden} of a composite are wholly covered by later parts and "
+                "would vanish; list them after the parts that overlap them"
+            )
+        return regions
     if isinstance(node, SymmetryCut):
-        whole = _build_surfaces(node.shape)
-        _check_symmetric(whole, node)
-        result, _ = occ.intersect(whole, [_half_plane(node, node.normal)])
-        return _surfaces(result)
+        regions = _build(node.shape)
+        _check_symmetric(_flat(regions), node)
+        objects, owners = _objects(regions)
+        _, mapping = occ.intersect(objects, [_half_plane(node, node.normal)])
+        return _remap(owners, mapping)
     raise GeometryError(f"cannot build a shape of type {type(node).__name__}")
+
+
+def _flat(regions: Regions) -> list[tuple[int, int]]:
+    return [d for dimtags in regions.values() for d in dimtags]
+
+
+def _objects(regions: Regions) -> tuple[list[tuple[int, int]], list[str]]:
+    """The surfaces of ``regions`` as one list, with the region of each."""
+    objects, owners = [], []
+    for region, dimtags in regions.items():
+        objects += dimtags
+        owners += [region] * len(dimtags)
+    return objects, owners
+
+
+def _remap(owners: list[str], mapping) -> Regions:
+    """Regions after a boolean, from its map of each input surface to its results."""
+    regions: Regions = {}
+    for region, results in zip(owners, mapping, strict=False):
+        regions.setdefault(region, []).extend((d, t) for d, t in results if d == 2)
+    return {r: sorted(set(d)) for r, d in regions.items() if d}
 
 
 def _surfaces(dimtags) -> list[tuple[int, int]]:
@@ -248,20 +277,22 @@ def _area(dimtags) -> float:
 
 
 def _check_symmetric(whole: list[tuple[int, int]], cut: SymmetryCut) -> None:
-    """Refuse a symmetry cut through a shape that is not symmetric about the line."""
+    """Refuse a symmetry cut through a shape that is not its own mirror image in the line."""
     occ = gmsh.model.occ
-    halves = []
-    for normal in (cut.normal, -cut.normal):
-        copies = occ.copy(whole)
-        half, _ = occ.intersect(copies, [_half_plane(cut, normal)])
-        halves.append(_area(half))
-        occ.remove(half, recursive=True)
-    total = sum(halves)
-    if total == 0 or abs(halves[0] - halves[1]) > 1e-6 * total:
+    original = occ.copy(whole)
+    mirrored = occ.copy(whole)
+    n = cut.normal
+    occ.mirror(mirrored, float(n[0]), float(n[1]), 0.0, -float(n @ np.asarray(cut.point)))
+    total = _area(original)
+    common, _ = occ.intersect(original, mirrored)
+    overlap = _area(common)
+    occ.remove(common, recursive=True)
+    if total == 0 or total - overlap > 1e-6 * total:
         raise GeometryError(
             f"the section is not symmetric about the cut through {tuple(cut.point)} m "
-            f"(the two sides have areas {halves[0]:.6g} and {halves[1]:.6g} m^2); model the "
-            "whole section or cut on a true symmetry line"
+            f"perpendicular to {tuple(np.round(n, 6))}: {100 * (total - overlap) / total:.3g} % "
+            "of its area has no mirror image; model the whole section or cut on a true "
+            "symmetry line"
         )
 
 
@@ -342,15 +373,17 @@ def _name_curves(
     surfaces = [(2, tag) for tags in regions.values() for tag in tags]
     boundary = gmsh.model.getBoundary(surfaces, combined=True, oriented=False)
     groups: dict[str, list[int]] = {}
+    claimed = [False] * len(section.rules)
     for _, tag in sorted({(d, abs(t)) for d, t in boundary}):
         points = _curve_points(tag)
         group = None
         for primitive in primitives:
             if primitive.distance(points).max() <= tolerance:
                 group = primitive.group  # later primitives have priority
-        for rule in section.rules:
+        for k, rule in enumerate(section.rules):
             if rule.claims(points, tolerance):
                 group = rule.group
+                claimed[k] = True
         if section.axisymmetric and np.abs(points[:, 0]).max() <= tolerance:
             group = AXIS_GROUP
         if group is None:
@@ -360,6 +393,12 @@ def _name_curves(
                 f"groups are {sorted({p.group for p in primitives})}"
             )
         groups.setdefault(group, []).append(tag)
+    idle = [rule.group for rule, used in zip(section.rules, claimed, strict=True) if not used]
+    if idle:
+        raise GeometryError(
+            f"edge rule(s) for group(s) {idle} name no boundary curve: a box or predicate must "
+            "hold a whole curve (every sample along it), not part of one"
+        )
     return groups
 
 

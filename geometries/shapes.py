@@ -61,9 +61,10 @@ class Shape:
     def placed(self, placement: Placement) -> Shape:
         return self.expanded().placed(placement)
 
-    def symmetry_multiplier(self) -> int:
-        """How many copies of this shape make the whole part (2 per symmetry cut)."""
-        return self.expanded().symmetry_multiplier()
+    def symmetry_multiplier(self, axisymmetric: bool = False) -> int:
+        """How many copies of this shape make the whole part (2 per symmetry cut; a cut along
+        the axis of an axisymmetric section does not count: the revolution covers it)."""
+        return self.expanded().symmetry_multiplier(axisymmetric)
 
     # Placement -----------------------------------------------------------------------------
     def moved(self, dx: float, dy: float) -> Shape:
@@ -193,7 +194,7 @@ class Outline(Shape):
         pieces = tuple(p.placed(placement) for p in self.pieces)
         return Outline(pieces, self.region)
 
-    def symmetry_multiplier(self) -> int:
+    def symmetry_multiplier(self, axisymmetric: bool = False) -> int:
         return 1
 
 
@@ -523,7 +524,7 @@ class Union(Shape):
     def placed(self, placement):
         return Union(tuple(s.placed(placement) for s in self.shapes), self.region)
 
-    def symmetry_multiplier(self) -> int:
+    def symmetry_multiplier(self, axisymmetric: bool = False) -> int:
         return 1
 
 
@@ -556,8 +557,8 @@ class Difference(Shape):
             self.region,
         )
 
-    def symmetry_multiplier(self) -> int:
-        return self.base.symmetry_multiplier()
+    def symmetry_multiplier(self, axisymmetric: bool = False) -> int:
+        return self.base.symmetry_multiplier(axisymmetric)
 
 
 @dataclass(frozen=True)
@@ -583,7 +584,7 @@ class Intersection(Shape):
     def placed(self, placement):
         return Intersection(tuple(s.placed(placement) for s in self.shapes), self.region)
 
-    def symmetry_multiplier(self) -> int:
+    def symmetry_multiplier(self, axisymmetric: bool = False) -> int:
         return 1
 
 
@@ -615,7 +616,7 @@ class Composite(Shape):
     def placed(self, placement):
         return Composite(tuple(s.placed(placement) for s in self.parts))
 
-    def symmetry_multiplier(self) -> int:
+    def symmetry_multiplier(self, axisymmetric: bool = False) -> int:
         return 1
 
 
@@ -674,8 +675,9 @@ class SymmetryCut(Shape):
             self.name,
         )
 
-    def symmetry_multiplier(self) -> int:
-        return 2 * self.shape.symmetry_multiplier()
+    def symmetry_multiplier(self, axisymmetric: bool = False) -> int:
+        on_axis = axisymmetric and abs(self.normal[1]) < 1e-12 and abs(self.point[0]) < 1e-12
+        return (1 if on_axis else 2) * self.shape.symmetry_multiplier(axisymmetric)
 
 
 @dataclass(frozen=True)
@@ -711,5 +713,5 @@ class Renamed(Shape):
     def bounds(self):
         return self.shape.bounds()
 
-    def symmetry_multiplier(self) -> int:
-        return self.shape.symmetry_multiplier()
+    def symmetry_multiplier(self, axisymmetric: bool = False) -> int:
+        return self.shape.symmetry_multiplier(axisymmetric)

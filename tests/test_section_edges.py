@@ -226,12 +226,6 @@ def test_later_rule_wins():
     assert "first" not in section.edge_groups
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="a name_edges rule whose box holds no whole boundary curve (here half of the bottom "
-    "side) names nothing, and its group silently does not exist; DESIGN.md asks that edge "
-    "groups tagged after the booleans fail loudly when empty",
-)
 def test_rule_that_names_no_edge_is_refused():
     section = Section(Rectangle(0.04, 0.02)).name_edges("clamp", box=(0.0, 0.0, 0.02, 0.0))
     with pytest.raises(GeometryError, match="clamp"):
@@ -388,12 +382,6 @@ def test_half_of_a_composite_keeps_both_regions():
     assert facts.symmetry_multiplier == 2
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="regions of a Composite survive only at the top of the shape tree or directly under "
-    "one symmetry_cut: under a second cut, a renamed() inside a cut, or a difference, "
-    "meshing.py's _build_surfaces fuses all parts into the first part's region ('coat')",
-)
 @pytest.mark.parametrize(
     ("wrap", "fraction", "bore"),
     [
@@ -418,12 +406,6 @@ def test_wrapped_composite_keeps_both_regions(wrap, fraction, bore):
         assert areas["core"] == pytest.approx(core, rel=ROUND_OFF)
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="a Composite part wholly covered by a later part leaves its region empty and the "
-    "region silently disappears; DESIGN.md asks that regions tagged after the booleans fail "
-    "loudly when empty",
-)
 def test_composite_part_covered_by_a_later_part_is_refused():
     insert = Rectangle(0.01, 0.01, (0.005, 0.005), region="insert")
     body = Rectangle(0.02, 0.02, region="body")
@@ -484,12 +466,6 @@ def test_cut_off_the_symmetry_line_is_refused():
         bar.symmetry_cut((0.01, 0.0), (1.0, 0.0)).mesh(0.002)
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="meshing.py's _check_symmetric compares only the areas of the two sides, so a "
-    "point-symmetric but not mirror-symmetric section (a parallelogram cut through its centre) "
-    "is accepted and modelled as half with an insulated 'symmetry' edge",
-)
 def test_cut_through_a_parallelogram_is_refused():
     parallelogram = Polygon([(0.0, 0.0), (0.04, 0.0), (0.05, 0.01), (0.01, 0.01)])
     with pytest.raises(GeometryError, match="not symmetric"):

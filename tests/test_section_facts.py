@@ -427,12 +427,6 @@ def test_axisymmetric_half_disk_is_a_sphere():
     assert_between(exact_volume - lost_volume, facts.part_volume, exact_volume, exact_volume)
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="symmetry_cut along r = 0 of an axisymmetric section still counts as a symmetric "
-    "copy: symmetry_multiplier is 2 and part_volume twice the revolved solid, although the cut "
-    "edge is renamed 'axis' and the revolution already covers the whole part",
-)
 def test_axisymmetric_half_disk_by_symmetry_cut_is_one_sphere():
     half = Circle(SPHERE_RADIUS, name="surface").symmetry_cut((0.0, 0.0), (1.0, 0.0))
     section = Section(half, axisymmetric=True).mesh(0.001)
