@@ -7,14 +7,15 @@ A step from t_n to t_n+1 = t_n + h solves
 theta-method: a = (1, −1), β = θ (Crank–Nicolson θ = ½, backward Euler θ = 1); BDF2 with step
 ratio ω = h_n / h_n−1: a = ((1 + 2ω)/(1 + ω), −(1 + ω), ω²/(1 + ω)), β = 1.
 
-The local error is estimated without derivatives (Milne's device): a quadratic through the last
-three states predicts T_n+1, and since both the scheme and the predictor are exact for
-quadratics, their difference is proportional to T''' with constants found by applying each to
-t³/6 — so the estimate holds for any step ratios.
+The local error is estimated without derivatives (Milne's device): a polynomial of the
+scheme's order p through the last p + 1 states predicts T_n+1; both are exact for polynomials
+of degree p, so their difference is proportional to the (p+1)-th derivative, with constants
+found by applying each to t^(p+1)/(p+1)! — so the estimate holds for any step ratios.
 """
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -24,10 +25,11 @@ METHODS = ("crank-nicolson", "bdf2", "backward-euler")
 
 @dataclass(frozen=True)
 class StepFormula:
-    """Coefficients of one step: ``a`` on (T_n+1, T_n, T_n−1, ...) and ``beta``."""
+    """Coefficients of one step: ``a`` on (T_n+1, T_n, T_n−1, ...), ``beta``, and the order."""
 
     a: tuple[float, ...]
     beta: float
+    order: int = 2
 
     @property
     def history(self) -> int:
@@ -39,11 +41,13 @@ class StepFormula:
         return self.beta * step / self.a[0]
 
     def local_error_constant(self, times: tuple[float, ...]) -> float:
-        """Local error per unit T''' of one step over ``times`` = (t_n+1, t_n, t_n−1, ...)."""
+        """Local error of one step over ``times`` = (t_n+1, t_n, t_n−1, ...) per unit
+        (p+1)-th derivative, p the order."""
+        p = self.order
         t1, t0 = times[0], times[1]
         h = t1 - t0
-        y = [(t - t0) ** 3 / 6 for t in times[: len(self.a)]]
-        dy1, dy0 = (t1 - t0) ** 2 / 2, 0.0
+        y = [(t - t0) ** (p + 1) / math.factorial(p + 1) for t in times[: len(self.a)]]
+        dy1, dy0 = (t1 - t0) ** p / math.factorial(p), 0.0
         residual = sum(a * v for a, v in zip(self.a, y, strict=False)) - h * (
             self.beta * dy1 + (1 - self.beta) * dy0
         )
@@ -51,35 +55,38 @@ class StepFormula:
 
 
 def theta_formula(theta: float) -> StepFormula:
-    return StepFormula((1.0, -1.0), theta)
+    return StepFormula((1.0, -1.0), theta, 2 if theta == 0.5 else 1)
 
 
 def bdf2_formula(ratio: float) -> StepFormula:
     """BDF2 for a step ``ratio`` times the previous one."""
     w = ratio
-    return StepFormula(((1 + 2 * w) / (1 + w), -(1 + w), w * w / (1 + w)), 1.0)
+    return StepFormula(((1 + 2 * w) / (1 + w), -(1 + w), w * w / (1 + w)), 1.0, 2)
 
 
-def predictor_error_constant(times: tuple[float, ...]) -> float:
-    """Error per unit T''' of the quadratic through (t_n, t_n−1, t_n−2) at t_n+1."""
-    t1, t0, tm1, tm2 = times[:4]
-    return -(t1 - t0) * (t1 - tm1) * (t1 - tm2) / 6
+def predictor_error_constant(times: tuple[float, ...], order: int) -> float:
+    """Error per unit (p+1)-th derivative of the degree-p polynomial through the last p + 1
+    states, at t_n+1."""
+    t1 = times[0]
+    return -math.prod(t1 - t for t in times[1 : order + 2]) / math.factorial(order + 1)
 
 
 def predict(times: tuple[float, ...], states: list[np.ndarray]) -> np.ndarray:
-    """The quadratic through ``states`` at times[1:4], evaluated at times[0]."""
-    t, (x0, x1, x2) = times[0], times[1:4]
-    l0 = (t - x1) * (t - x2) / ((x0 - x1) * (x0 - x2))
-    l1 = (t - x0) * (t - x2) / ((x1 - x0) * (x1 - x2))
-    l2 = (t - x0) * (t - x1) / ((x2 - x0) * (x2 - x1))
-    return l0 * states[0] + l1 * states[1] + l2 * states[2]
+    """The polynomial through ``states`` at times[1:], evaluated at times[0]."""
+    t, nodes = times[0], times[1 : len(states) + 1]
+    result = np.zeros_like(states[0])
+    for j, (xj, state) in enumerate(zip(nodes, states, strict=True)):
+        weight = math.prod((t - xk) / (xj - xk) for k, xk in enumerate(nodes) if k != j)
+        result = result + weight * state
+    return result
 
 
 def local_error(
     formula: StepFormula, times: tuple[float, ...], result: np.ndarray, states: list[np.ndarray]
 ) -> np.ndarray:
-    """Estimated local error of ``result`` (the scheme's T_n+1), from the last three states."""
+    """Estimated local error of ``result`` (the scheme's T_n+1) from the last p + 1 states."""
+    p = formula.order
     c_scheme = formula.local_error_constant(times)
-    c_predictor = predictor_error_constant(times)
-    prediction = predict(times, states)
+    c_predictor = predictor_error_constant(times, p)
+    prediction = predict(times, states[: p + 1])
     return c_scheme / (c_scheme - c_predictor) * (result - prediction)

@@ -18,7 +18,7 @@ class PropertyRangeWarning(UserWarning):
 @dataclass(frozen=True)
 class PropertyTable:
     """A property as a piecewise-linear function of temperature, held constant beyond the
-    table's ends (with a :class:`PropertyRangeWarning`, once per table and run).
+    table's ends (with a :class:`PropertyRangeWarning`).
 
     Parameters
     ----------
@@ -55,7 +55,8 @@ class PropertyTable:
         """Value at ``temperature`` (°C, scalar or array)."""
         t = np.asarray(temperature, dtype=float)
         low, high = self.temperatures[0], self.temperatures[-1]
-        if np.any(t < low) or np.any(t > high):
+        slack = 1e-9 * (high - low)  # interpolation round-off at a table end is not leaving it
+        if np.any(t < low - slack) or np.any(t > high + slack):
             warnings.warn(
                 f"temperature {float(t.min()):.4g}..{float(t.max()):.4g} degC leaves the "
                 f"property table's range [{low:g}, {high:g}] degC; the end value is used "

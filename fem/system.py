@@ -113,7 +113,7 @@ class ConductionSystem:
             total += asm(
                 forms.enthalpy,
                 basis,
-                enthalpy=material.enthalpy(t.value, ENTHALPY_REFERENCE),
+                enthalpy=material.enthalpy(np.asarray(t), ENTHALPY_REFERENCE),
                 axisymmetric=self.axisymmetric,
             )
         return total
@@ -128,7 +128,7 @@ class ConductionSystem:
             part = asm(
                 forms.heat_capacity,
                 basis,
-                volumetric_heat_capacity=self.model.materials[region].heat_capacity_at(t.value),
+                volumetric_heat_capacity=self.model.materials[region].heat_capacity_at(np.asarray(t)),
                 axisymmetric=self.axisymmetric,
             )
             total = part if total is None else total + part
@@ -167,8 +167,8 @@ class ConductionSystem:
                     forms.conduction_tangent,
                     basis,
                     temperature=t,
-                    conductivity=material.conductivity_at(t.value),
-                    conductivity_slope=material.conductivity_slope(t.value),
+                    conductivity=material.conductivity_at(np.asarray(t)),
+                    conductivity_slope=material.conductivity_slope(np.asarray(t)),
                     axisymmetric=self.axisymmetric,
                 )
         for name, r in self.model.radiation.items():
@@ -193,7 +193,7 @@ class ConductionSystem:
                 forms.conduction_residual,
                 basis,
                 temperature=t,
-                conductivity=self.model.materials[region].conductivity_at(t.value),
+                conductivity=self.model.materials[region].conductivity_at(np.asarray(t)),
                 axisymmetric=self.axisymmetric,
             )
         return total
@@ -256,16 +256,10 @@ def assemble(model: ThermalModel) -> ConductionSystem:
     capacity = stiffness = None
     for region, region_basis in region_bases.items():
         material: Material = materials[region]
-        rho_c = (
-            material.density * material.specific_heat
-            if isinstance(material.specific_heat, float)
-            else material.heat_capacity_at(0.0)
-        )
-        k = (
-            material.conductivity
-            if isinstance(material.conductivity, float)
-            else float(material.conductivity_at(0.0))
-        )
+        # Temperature-dependent properties are assembled later at the field's temperatures;
+        # these constant matrices then only hold the pattern and are not used.
+        rho_c = material.volumetric_heat_capacity
+        k = material.nominal_conductivity
         c = asm(
             forms.heat_capacity,
             region_basis,
@@ -311,7 +305,7 @@ def assemble(model: ThermalModel) -> ConductionSystem:
         model=model,
         basis=basis,
         region_bases=region_bases,
-        size=basis.N,
+        size=int(basis.N),
         capacity=capacity.tocsr(),
         stiffness=stiffness.tocsr(),
         edges=edges,

@@ -241,7 +241,7 @@ class _RunControls:
         if time_step is not None:
             step = float(time_step)
         elif adaptive:
-            step = min(0.1 * _surface_diffusion_time(model), end / 100)
+            step = min(_surface_diffusion_time(model), end / 100)
         else:
             step = end / DEFAULT_STEPS
         if not adaptive and output_times is None:
@@ -466,6 +466,7 @@ class _Run:
             stop_side = np.sign(stop_value - c.stop.target)
         t = 0.0
         event = 0
+        retrying = False
         while t < c.end_time * (1 - 1e-12):
             while events[event] <= t * (1 + 1e-12):
                 event += 1
@@ -476,7 +477,13 @@ class _Run:
                 h = min(h, 2.0 * previous_step)  # BDF2 is zero-stable for ratios below 1 + √2
             if abs(gap - h) <= 1e-9 * h:
                 t1 = events[event]  # the step lands on the event: snap away the round-off
-            elif gap < h or (c.adaptive and not startup and gap <= 1.5 * h and gap <= c.max_step):
+            elif gap < h or (
+                c.adaptive
+                and not startup
+                and not retrying
+                and gap <= 1.5 * h
+                and gap <= c.max_step
+            ):
                 h, t1 = gap, events[event]
             else:
                 t1 = t + h
@@ -529,9 +536,10 @@ class _Run:
                 error = float(
                     np.abs(local_error(formula, times, u1, past)[s.free_dofs]).max(initial=0.0)
                 )
-                factor = 0.9 * (c.tolerance / max(error, 1e-300)) ** (1 / 3)
+                factor = 0.9 * (c.tolerance / max(error, 1e-300)) ** (1 / (formula.order + 1))
                 if error > c.tolerance and h > c.min_step * (1 + 1e-9):
                     rejected += 1
+                    retrying = True  # no stretching to the next event until a step succeeds
                     step = self._on_ladder(max(h * max(factor, 0.2), c.min_step), ladder_base)
                     continue
                 if error > c.tolerance:
@@ -546,6 +554,7 @@ class _Run:
             elif not c.adaptive:
                 step = c.step
 
+            retrying = False
             absorbed += self._ledger(formula, ledger_step, r1, u1, t1, past)
             stored = float(s.stored(u1).sum())
             recorder.record(t1, u1, stored, absorbed, self._reactions(r1))
