@@ -4,10 +4,12 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+import numpy as np
+
 from fem import ThermalModel
 
 from .errors import AdvisorError
-from .lumped import LumpedModel, exchange_conductance
+from .lumped import mean_initial, radiation_coefficient
 
 COMMON_LIMIT = 0.1  # common practice: lumped estimates are usually accepted below Bi = 0.1
 
@@ -21,11 +23,14 @@ class BiotNumber:
     name : str
         Short identifier of the length scale.
     value : float
-        The Biot number (dimensionless).
+        The Biot number at the start (dimensionless).
     length : float
         The length scale L in m.
     heat_transfer_coefficient : float
-        The surface-weighted mean h over the heat-exchanging edges in W/(m²·K).
+        The surface-weighted mean h (radiation linearised) at the start, W/(m²·K).
+    low, high : float
+        The range of the number over the run, as coefficients and conductivity vary with time
+        and temperature; ``high`` is the worst case.
     explanation : str
         What the length is and how to read the number.
     """
@@ -34,46 +39,103 @@ class BiotNumber:
     value: float
     length: float
     heat_transfer_coefficient: float
+    low: float
+    high: float
     explanation: str
 
 
-def biot_numbers(model: ThermalModel) -> tuple[BiotNumber, ...]:
-    """Biot numbers of the model's section under its convective conditions.
+def mean_coefficient(model: ThermalModel, temperature: float, time: float) -> float:
+    """Surface-weighted mean of h over the exchanging edges, radiation linearised, W/(m²·K)."""
+    surfaces = model.section.facts.surface_areas
+    groups = model.exchange_groups
+    total = 0.0
+    for name, c in model.convection.items():
+        total += c.heat_transfer_coefficient(time) * surfaces[name]
+    for name, r in model.radiation.items():
+        total += (
+            radiation_coefficient(r.emissivity, temperature, r.surroundings(time))
+            * (surfaces[name])
+        )
+    return total / sum(surfaces[g] for g in groups)
 
-    Only edges that exchange heat count as exposed. With several coefficients the mean
-    weighted by surface area is used, at t = 0, radiation linearised at the initial
-    temperature; with several materials the lowest conductivity (the worst case). V and A_s
-    are the section's volume and exchanging surface (per metre of depth for planar sections,
-    revolved for axisymmetric ones).
+
+def biot_numbers(
+    model: ThermalModel,
+    *,
+    end_time: float = 0.0,
+    temperature_range: tuple[float, float] | None = None,
+) -> tuple[BiotNumber, ...]:
+    """Biot numbers of the model's section under its surface conditions.
+
+    Only edges that exchange heat count as exposed. With several coefficients the mean weighted
+    by surface area is used; radiation enters as εσ(T² + T_s²)(T + T_s). The value is for the
+    start; the range covers coefficients over [0, ``end_time``] and temperatures in
+    ``temperature_range`` (°C; default the initial temperature). With several materials the
+    lowest conductivity is used (the worst case). V and A_s are the section's volume and
+    exchanging surface (per metre of depth for planar sections, revolved for axisymmetric ones).
     """
     groups = model.exchange_groups
     if not groups:
         raise AdvisorError("the model has no edge that exchanges heat, so it has no Biot number")
     facts = model.section.facts
-    exposed = sum(facts.surface_areas[n] for n in groups)
-    lumped = LumpedModel.of(model)
-    h_mean = exchange_conductance(model, lumped.initial_temperature, 0.0)[0] / exposed
-    k = min(m.nominal_conductivity for m in model.materials.values())
-    volume_to_surface = facts.volume / exposed
+    t0 = mean_initial(model)
+    low_t, high_t = temperature_range or (t0, t0)
+    h0 = mean_coefficient(model, t0, 0.0)
+    k0 = min(float(m.conductivity_at(t0)) for m in model.materials.values())
+    hs, ks = _coefficient_range(model, end_time, low_t, high_t)
+
+    exposed_surface = sum(facts.surface_areas[g] for g in groups)
+    exposed_length = sum(facts.edge_lengths[g] for g in groups)
+    volume_to_surface = facts.volume / exposed_surface
     farthest = model.section.max_distance_to(groups)
-    return (
-        BiotNumber(
+
+    def number(name, length, explanation):
+        return BiotNumber(
+            name,
+            h0 * length / k0,
+            length,
+            h0,
+            min(hs) * length / max(ks),
+            max(hs) * length / min(ks),
+            explanation,
+        )
+
+    numbers = [
+        number(
             "volume_to_surface",
-            h_mean * volume_to_surface / k,
             volume_to_surface,
-            h_mean,
-            "length = volume / exchanging surface (V/A_s; planar: area / exposed perimeter); "
-            "the number the lumped rule of thumb "
-            f"uses: below {COMMON_LIMIT} (common practice) one temperature usually stands for "
-            "the part",
+            "L = V / A_s (planar: area / exposed perimeter), the length of the lumped rule "
+            f"of thumb: below {COMMON_LIMIT} (common practice) one temperature usually "
+            "stands for the part",
         ),
-        BiotNumber(
+        number(
             "conduction_distance",
-            h_mean * farthest / k,
             farthest,
-            h_mean,
-            "length = largest distance from any point of the section to a heat-exchanging "
-            "edge; the ratio of the slowest internal path's resistance to the surface "
-            "resistance",
+            "L = the largest distance from any point to a heat-exchanging edge: the "
+            "half-thickness of a plate, the radius of a round; it measures the slowest "
+            "internal path against the surface",
         ),
-    )
+    ]
+    if not facts.axisymmetric:
+        numbers.insert(
+            1,
+            number(
+                "four_area_over_perimeter",
+                4 * facts.area / exposed_length,
+                "L = 4 × area / exposed perimeter (the hydraulic-diameter convention), twice the "
+                "planar V/A_s length: numbers quoted this way are larger by 2 for the same part",
+            ),
+        )
+    return tuple(numbers)
+
+
+def _coefficient_range(model, end_time, low_t, high_t):
+    times = np.linspace(0.0, max(end_time, 0.0), 65)
+    temperatures = np.linspace(low_t, high_t, 9)
+    hs = [mean_coefficient(model, float(t_), float(time)) for time in times for t_ in temperatures]
+    ks = [
+        float(m.conductivity_at(float(t_)))
+        for m in model.materials.values()
+        for t_ in temperatures
+    ]
+    return hs, ks

@@ -102,13 +102,11 @@ def _report(assessment, folder: Path, files: list[Path]) -> None:
         f"at {assessment.peak_internal_difference_time:.4g} s"
     )
     verdict = assessment.verdict
-    log.info(
-        "Lumped estimate "
-        + ("ADEQUATE" if verdict.adequate else "NOT ADEQUATE")
-        + f" for the {verdict.quantity} point:".replace("mean point", "mean")
-    )
+    log.info(f"Classical lumped estimate {verdict.rating.upper()} for {verdict.subject}:")
     for reason in verdict.reasons:
         log.info(f"  - {reason}")
+    log.info(f"Direction: {verdict.direction}.")
+    log.info(f"Advice: {verdict.advice}")
     for warning in solution.checks.warnings:
         log.warning(f"check: {warning}")
     log.info(f"Wrote {len(files)} files to {folder}/ (summary.json, histories.png, fields/)")

@@ -1,20 +1,30 @@
-"""The lumped-capacitance model: one temperature for the whole part.
+"""The lumped-capacitance family: one (or two) temperatures for the whole part.
 
-ρ·c·V·dT/dt = Σ h_i·A_i·(T∞,i − T) + Σ ε_i·σ·A_i·(T_sur,i⁴ − T⁴) + Σ q_i·A_i + q̇·V.
-
-With constant coefficients and no radiation, T(t) = T∞ + (T0 − T∞)·exp(−t/τ) with
+Classical: ρ·c·V·dT/dt = Σ h_i·A_i·(T∞,i − T) + Σ ε_i·σ·A_i·(T_sur,i⁴ − T⁴) + Σ q_i·A_i + q̇·V.
+With constant coefficients and no radiation, T(t) = T∞ + (T0 − T∞)·exp(−t/τ),
 τ = ρ·c·V / Σ h·A and T∞ the h·A-weighted ambient (Incropera et al., *Fundamentals of Heat
-and Mass Transfer*, 6th ed., §5.1, eq. 5.6 — from memory). Otherwise the same balance is
+and Mass Transfer*, 6th ed., §5.1, eq. 5.6 — from memory); otherwise the same balance is
 integrated in time with the model's own schedules and properties.
+
+Corrected: the same model with every coefficient replaced by h_eff = h / (1 + Bi/β), the
+improved lumped model of Cotta & Mikhailov, *Heat Conduction: Lumped Analysis, Integral
+Transforms, Symbolic Computation*, Wiley 1997, ch. 2 (Hermite H1,1/H0,0 approximation; from
+memory): β = 3 for a slab, 4 for a long cylinder, 5 for a sphere, with Bi on the half-thickness
+or radius. It matches the exact first eigenvalue to second order in Bi.
+
+Fitted: a single exponential fitted to the late-time field mean, and a two-node (core and
+skin) model fitted to the field mean and slowest point, with parameters to export.
 """
 
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 from scipy.integrate import solve_ivp
+from scipy.linalg import expm
+from scipy.optimize import least_squares
 
 from fem import ThermalModel
 from fem.forms import KELVIN, STEFAN_BOLTZMANN
@@ -22,72 +32,8 @@ from fem.forms import KELVIN, STEFAN_BOLTZMANN
 from .errors import AdvisorError
 
 
-@dataclass(frozen=True)
-class LumpedModel:
-    """The lumped model of a part (planar: per metre of depth; axisymmetric: revolved).
-
-    Attributes
-    ----------
-    time_constant : float
-        τ = ρ·c·V / Σ h·A_s in s, with the coefficients at t = 0 (radiation linearised there).
-    ambient : float
-        h·A-weighted ambient temperature T∞ in °C at t = 0.
-    initial_temperature : float
-        T0 in °C: the volume-weighted mean of the initial state.
-    classical : bool
-        True when the closed-form exponential is exact for the model's conditions.
-    """
-
-    time_constant: float
-    ambient: float
-    initial_temperature: float
-    classical: bool
-    model: ThermalModel
-
-    @classmethod
-    def of(cls, model: ThermalModel, initial_temperature: float | None = None) -> LumpedModel:
-        """The lumped model for the same part, materials and conditions as ``model``."""
-        if not model.exchange_groups:
-            raise AdvisorError(
-                "the model has no edge that exchanges heat, so a lumped model has no time "
-                "constant; give at least one edge group a Convection or Radiation condition"
-            )
-        t0 = _mean_initial(model) if initial_temperature is None else initial_temperature
-        conductance, weighted = exchange_conductance(model, t0, 0.0)
-        capacity = _capacity(model, t0)
-        classical = (
-            not model.radiation
-            and not model.fixed
-            and not model.fluxes
-            and not model.heat_sources
-            and all(
-                c.heat_transfer_coefficient.is_constant and c.ambient.is_constant
-                for c in model.convection.values()
-            )
-            and all(m.is_constant for m in model.materials.values())
-        )
-        return cls(capacity / conductance, weighted / conductance, float(t0), classical, model)
-
-    def temperature(self, times: np.ndarray) -> np.ndarray:
-        """T(t) in °C at ``times`` in s."""
-        times = np.asarray(times, dtype=float)
-        if self.classical:
-            decay = np.exp(-times / self.time_constant)
-            return self.ambient + (self.initial_temperature - self.ambient) * decay
-        return _integrate(self, times)
-
-    def time_to(self, target: float) -> float | None:
-        """Time in s at which T reaches ``target`` °C (classical model); ``None`` if never."""
-        if not self.classical:
-            return None
-        start = self.initial_temperature - self.ambient
-        remaining = target - self.ambient
-        if start == 0 or remaining / start <= 0 or remaining / start > 1:
-            return None
-        return self.time_constant * math.log(start / remaining)
-
-
-def _mean_initial(model: ThermalModel) -> float:
+def mean_initial(model: ThermalModel) -> float:
+    """Volume-weighted mean of the initial state, °C."""
     value = model.initial_temperature
     if isinstance(value, float):
         return value
@@ -97,7 +43,8 @@ def _mean_initial(model: ThermalModel) -> float:
     return float(np.mean(value))  # a field: the nodal mean is close enough for T0
 
 
-def _capacity(model: ThermalModel, temperature: float) -> float:
+def heat_capacity(model: ThermalModel, temperature: float) -> float:
+    """Σ ρ·c(T)·V over the regions, J/K (planar: J/(K·m))."""
     facts = model.section.facts
     return float(
         sum(
@@ -108,59 +55,318 @@ def _capacity(model: ThermalModel, temperature: float) -> float:
 
 
 def exchange_conductance(
-    model: ThermalModel, temperature: float, time: float
+    model: ThermalModel, temperature: float, time: float, scale: float = 1.0
 ) -> tuple[float, float]:
-    """Σ h·A (W/K, radiation linearised at ``temperature``) and Σ h·A·T∞ (W)."""
+    """Σ h·A (W/K; radiation linearised at ``temperature``) and Σ h·A·T∞ (W), coefficients
+    multiplied by ``scale``."""
     surfaces = model.section.facts.surface_areas
     conductance = weighted = 0.0
     for name, c in model.convection.items():
-        ha = c.heat_transfer_coefficient(time) * surfaces[name]
+        ha = scale * c.heat_transfer_coefficient(time) * surfaces[name]
         conductance += ha
         weighted += ha * c.ambient(time)
     for name, r in model.radiation.items():
-        t, s = temperature + KELVIN, r.surroundings(time) + KELVIN
-        ha = r.emissivity * STEFAN_BOLTZMANN * (t * t + s * s) * (t + s) * surfaces[name]
+        ha = (
+            scale
+            * radiation_coefficient(r.emissivity, temperature, r.surroundings(time))
+            * (surfaces[name])
+        )
         conductance += ha
         weighted += ha * r.surroundings(time)
     return conductance, weighted
 
 
-def _integrate(lumped: LumpedModel, times: np.ndarray) -> np.ndarray:
-    model = lumped.model
-    facts = model.section.facts
-    surfaces = facts.surface_areas
+def radiation_coefficient(emissivity: float, temperature: float, surroundings: float) -> float:
+    """h_r = εσ(T² + T_s²)(T + T_s) in W/(m²·K), temperatures in °C converted to kelvin."""
+    t, s = temperature + KELVIN, surroundings + KELVIN
+    return emissivity * STEFAN_BOLTZMANN * (t * t + s * s) * (t + s)
 
-    def rate(t, y):
-        temperature = y[0]
-        heat = 0.0
-        for name, c in model.convection.items():
-            heat += c.heat_transfer_coefficient(t) * surfaces[name] * (c.ambient(t) - temperature)
-        for name, r in model.radiation.items():
-            heat += (
-                r.emissivity
-                * STEFAN_BOLTZMANN
-                * surfaces[name]
-                * ((r.surroundings(t) + KELVIN) ** 4 - (temperature + KELVIN) ** 4)
+
+@dataclass(frozen=True)
+class LumpedModel:
+    """One temperature for the whole part, for the same conditions as a thermal model.
+
+    Attributes
+    ----------
+    name : str
+        ``"classical"`` or ``"corrected"``.
+    time_constant : float
+        τ = ρ·c·V / Σ h·A_s in s at t = 0 (radiation linearised there).
+    ambient : float
+        h·A-weighted ambient temperature in °C at t = 0.
+    initial_temperature : float
+        T0 in °C, the volume-weighted mean of the initial state.
+    closed_form : bool
+        True when the exponential is exact (constant conditions, no radiation or sources).
+    coefficient_scale : float
+        Factor on every surface coefficient (1 for the classical model).
+    """
+
+    name: str
+    time_constant: float
+    ambient: float
+    initial_temperature: float
+    closed_form: bool
+    coefficient_scale: float
+    model: ThermalModel = field(repr=False)
+
+    @classmethod
+    def of(
+        cls,
+        model: ThermalModel,
+        *,
+        scale: float = 1.0,
+        name: str = "classical",
+        initial_temperature: float | None = None,
+    ) -> LumpedModel:
+        """The lumped model for the same part, materials and conditions as ``model``."""
+        if not model.exchange_groups:
+            raise AdvisorError(
+                "the model has no edge that exchanges heat, so a lumped model has no time "
+                "constant; give at least one edge group a Convection or Radiation condition"
             )
-        for name, f in model.fluxes.items():
-            heat += f.flux(t) * surfaces[name]
-        for region, q in model.heat_sources.items():
-            heat += q(t) * facts.region_volumes[region]
-        return [heat / _capacity(model, temperature)]
+        if model.fixed:
+            raise AdvisorError(
+                "a lumped model cannot hold a fixed surface temperature; "
+                "compare it on a model with convection or radiation instead"
+            )
+        t0 = mean_initial(model) if initial_temperature is None else initial_temperature
+        conductance, weighted = exchange_conductance(model, t0, 0.0, scale)
+        closed = (
+            not model.radiation
+            and not model.fluxes
+            and not model.heat_sources
+            and all(
+                c.heat_transfer_coefficient.is_constant and c.ambient.is_constant
+                for c in model.convection.values()
+            )
+            and all(m.is_constant for m in model.materials.values())
+        )
+        return cls(
+            name,
+            heat_capacity(model, t0) / conductance,
+            weighted / conductance,
+            float(t0),
+            closed,
+            scale,
+            model,
+        )
 
-    end = float(times.max(initial=0.0))
-    if end == 0:
-        return np.full(times.shape, lumped.initial_temperature)
-    result = solve_ivp(
-        rate,
-        (0.0, end),
-        [lumped.initial_temperature],
-        method="LSODA",
-        t_eval=np.clip(times, 0.0, end),
-        rtol=1e-8,
-        atol=1e-8,
-        max_step=end / 200,
-    )
-    if not result.success:
-        raise AdvisorError(f"the lumped model could not be integrated: {result.message}")
-    return result.y[0]
+    def temperature(self, times) -> np.ndarray:
+        """T(t) in °C at ``times`` in s."""
+        times = np.asarray(times, dtype=float)
+        if self.closed_form:
+            decay = np.exp(-times / self.time_constant)
+            return self.ambient + (self.initial_temperature - self.ambient) * decay
+        return self._integrate(times)
+
+    def time_to(self, target: float, horizon: float | None = None) -> float | None:
+        """Time in s at which T reaches ``target`` °C; ``None`` if never (or, for integrated
+        models, not within ``horizon`` s)."""
+        if self.closed_form:
+            start = self.initial_temperature - self.ambient
+            remaining = target - self.ambient
+            if start == 0 or remaining / start <= 0 or remaining / start > 1:
+                return None
+            return self.time_constant * math.log(start / remaining)
+        if horizon is None:
+            return None
+        times = np.linspace(0.0, horizon, 2001)
+        return crossing_time(
+            times, self.temperature(times), target, self.initial_temperature - self.ambient
+        )
+
+    def parameters(self) -> dict[str, float]:
+        return {
+            "time_constant_s": self.time_constant,
+            "ambient_degC": self.ambient,
+            "coefficient_scale": self.coefficient_scale,
+        }
+
+    def _integrate(self, times: np.ndarray) -> np.ndarray:
+        model = self.model
+        facts = model.section.facts
+        surfaces = facts.surface_areas
+        k = self.coefficient_scale
+
+        def rate(t, y):
+            temperature = y[0]
+            heat = 0.0
+            for name, c in model.convection.items():
+                heat += (
+                    k
+                    * c.heat_transfer_coefficient(t)
+                    * surfaces[name]
+                    * (c.ambient(t) - temperature)
+                )
+            for name, r in model.radiation.items():
+                heat += (
+                    k
+                    * r.emissivity
+                    * STEFAN_BOLTZMANN
+                    * surfaces[name]
+                    * ((r.surroundings(t) + KELVIN) ** 4 - (temperature + KELVIN) ** 4)
+                )
+            for name, f in model.fluxes.items():
+                heat += f.flux(t) * surfaces[name]
+            for region, q in model.heat_sources.items():
+                heat += q(t) * facts.region_volumes[region]
+            return [heat / heat_capacity(model, temperature)]
+
+        end = float(times.max(initial=0.0))
+        if end == 0:
+            return np.full(times.shape, self.initial_temperature)
+        result = solve_ivp(
+            rate,
+            (0.0, end),
+            [self.initial_temperature],
+            method="LSODA",
+            t_eval=np.clip(times, 0.0, end),
+            rtol=1e-9,
+            atol=1e-9,
+            max_step=end / 400,
+        )
+        if not result.success:
+            raise AdvisorError(f"the lumped model could not be integrated: {result.message}")
+        return result.y[0]
+
+
+@dataclass(frozen=True)
+class FittedExponential:
+    """T = T∞ + amplitude·exp(−t/τ), fitted to the late-time field mean.
+
+    ``amplitude`` differs from T0 − T∞ by the energy the fast modes carry off early: the
+    intercept of the late-time straight line in log(T̄ − T∞).
+    """
+
+    time_constant: float
+    amplitude: float
+    ambient: float
+    name: str = "fitted exponential"
+
+    def temperature(self, times) -> np.ndarray:
+        return self.ambient + self.amplitude * np.exp(
+            -np.asarray(times, float) / self.time_constant
+        )
+
+    def time_to(self, target: float, horizon: float | None = None) -> float | None:
+        ratio = (target - self.ambient) / self.amplitude
+        if ratio <= 0:
+            return None
+        return max(self.time_constant * math.log(1 / ratio), 0.0)
+
+    def parameters(self) -> dict[str, float]:
+        return {
+            "time_constant_s": self.time_constant,
+            "amplitude_K": self.amplitude,
+            "ambient_degC": self.ambient,
+        }
+
+
+def fit_exponential(times, mean, ambient: float, initial: float) -> FittedExponential | None:
+    """Fit the late decay of ``mean`` (between 50 % and 2 % of the initial difference left);
+    ``None`` when the run does not get that far."""
+    theta = (np.asarray(mean) - ambient) / (initial - ambient)
+    late = (theta < 0.5) & (theta > 0.02)
+    if np.count_nonzero(late) < 5:
+        return None
+    slope, intercept = np.polyfit(np.asarray(times)[late], np.log(theta[late]), 1)
+    if slope >= 0:
+        return None
+    return FittedExponential(-1.0 / slope, (initial - ambient) * math.exp(intercept), ambient)
+
+
+@dataclass(frozen=True)
+class TwoNodeModel:
+    """A core and a skin node: C_core·T_c' = G·(T_s − T_c), C_skin·T_s' = G·(T_c − T_s) +
+    H·(T∞ − T_s). Capacities in J/K, conductances in W/K (planar: per metre of depth); the
+    mean is (C_core·T_c + C_skin·T_s)/(C_core + C_skin) and the core is the slowest point."""
+
+    core_capacity: float
+    skin_capacity: float
+    internal_conductance: float
+    surface_conductance: float
+    ambient: float
+    initial_temperature: float
+    name: str = "two-node"
+
+    def states(self, times) -> np.ndarray:
+        """(core, skin, mean) temperatures at ``times``, shape (3, n)."""
+        c1, c2, g, h = (
+            self.core_capacity,
+            self.skin_capacity,
+            self.internal_conductance,
+            self.surface_conductance,
+        )
+        system = np.array([[-g / c1, g / c1], [g / c2, -(g + h) / c2]])
+        start = np.full(2, self.initial_temperature - self.ambient)
+        values = np.array([expm(system * t) @ start for t in np.asarray(times, float)]).T
+        mean = (c1 * values[0] + c2 * values[1]) / (c1 + c2)
+        return np.vstack([values, mean]) + self.ambient
+
+    def temperature(self, times) -> np.ndarray:
+        """The mean temperature, °C."""
+        return self.states(times)[2]
+
+    def time_to(self, target: float, horizon: float | None = None) -> float | None:
+        """When the core (the slowest point) reaches ``target``."""
+        if horizon is None:
+            return None
+        times = np.linspace(0.0, horizon, 801)
+        return crossing_time(
+            times, self.states(times)[0], target, self.initial_temperature - self.ambient
+        )
+
+    def parameters(self) -> dict[str, float]:
+        return {
+            "core_capacity_J_per_K": self.core_capacity,
+            "skin_capacity_J_per_K": self.skin_capacity,
+            "internal_conductance_W_per_K": self.internal_conductance,
+            "surface_conductance_W_per_K": self.surface_conductance,
+            "ambient_degC": self.ambient,
+        }
+
+
+def fit_two_node(times, mean, slowest, lumped: LumpedModel) -> TwoNodeModel | None:
+    """Fit the skin's share of the capacity and the internal conductance to the field's mean
+    and slowest point (total capacity and surface conductance stay those of the part)."""
+    if not lumped.closed_form:
+        return None
+    capacity = heat_capacity(lumped.model, lumped.initial_temperature)
+    surface = capacity / lumped.time_constant
+    drive = lumped.initial_temperature - lumped.ambient
+    sample = np.linspace(0, len(times) - 1, min(len(times), 120)).astype(int)
+    t = np.asarray(times)[sample]
+    targets = np.concatenate([np.asarray(mean)[sample], np.asarray(slowest)[sample]])
+
+    def model_of(x):
+        share, log_ratio = x
+        return TwoNodeModel(
+            capacity * (1 - share),
+            capacity * share,
+            surface * math.exp(log_ratio),
+            surface,
+            lumped.ambient,
+            lumped.initial_temperature,
+        )
+
+    def residual(x):
+        states = model_of(x).states(t)
+        return (np.concatenate([states[2], states[0]]) - targets) / abs(drive)
+
+    fit = least_squares(residual, x0=[0.5, math.log(5.0)], bounds=([0.02, -3.0], [0.98, 8.0]))
+    return model_of(fit.x) if fit.success else None
+
+
+def crossing_time(times, history, target: float, drive: float) -> float | None:
+    """First time ``history`` reaches ``target`` coming from the side of the initial value
+    (``drive`` = T0 − T∞ gives the direction), interpolated linearly within the step."""
+    remaining = (np.asarray(history) - target) * np.sign(drive)  # > 0 until reached
+    reached = np.flatnonzero(remaining <= 0)
+    if len(reached) == 0:
+        return None
+    i = int(reached[0])
+    if i == 0:
+        return float(times[0])
+    r0, r1 = remaining[i - 1], remaining[i]
+    return float(times[i - 1] + (times[i] - times[i - 1]) * r0 / (r0 - r1))

@@ -221,7 +221,7 @@ class ThermalModel:
             return (value, value)
         if isinstance(value, dict):
             return (min(value.values()), max(value.values()))
-        return (float(np.min(value.final_state)), float(np.max(value.final_state)))
+        return (float(np.min(value)), float(np.max(value)))
 
 
 def _check_temperature(value, what: str) -> None:

@@ -171,7 +171,14 @@ class Periodic:
             raise ModelError(f"Periodic period must be a time > 0 s, got {self.period!r}")
 
     def __call__(self, time: float) -> float:
-        return self.schedule(math.fmod(time, self.period))
+        # The phase within the period, robust to the round-off of k·period + s at a
+        # breakpoint (which must give the value that starts there, as Steps does).
+        cycles = math.floor(time / self.period + 1e-12)
+        phase = max(time - cycles * self.period, 0.0)
+        for t in self.schedule.times:
+            if abs(phase - t) <= 1e-12 * self.period:
+                phase = t
+        return self.schedule(phase)
 
     def breakpoints(self, end_time: float) -> tuple[float, ...]:
         inner = [t for t in self.schedule.times if 0 <= t < self.period] + [0.0]

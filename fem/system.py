@@ -128,7 +128,9 @@ class ConductionSystem:
             part = asm(
                 forms.heat_capacity,
                 basis,
-                volumetric_heat_capacity=self.model.materials[region].heat_capacity_at(np.asarray(t)),
+                volumetric_heat_capacity=self.model.materials[region].heat_capacity_at(
+                    np.asarray(t)
+                ),
                 axisymmetric=self.axisymmetric,
             )
             total = part if total is None else total + part
@@ -275,7 +277,7 @@ def assemble(model: ThermalModel) -> ConductionSystem:
     for name in exchanging:
         edge = FacetBasis(mesh, element, facets=mesh.boundaries[name])
         terms = EdgeTerms(edge, asm(forms.shape_integral, edge, axisymmetric=axisymmetric))
-        if name in model.convection:
+        if name in model.convection or name in model.radiation:
             terms.exchange_matrix = asm(
                 forms.surface_exchange,
                 edge,
@@ -329,7 +331,7 @@ def initial_field(system: ConductionSystem) -> np.ndarray:
     # One temperature per region: a node on an interface takes the later region's value.
     field_ = np.empty(system.size)
     for region, basis in system.region_bases.items():
-        dofs = np.unique(basis.element_dofs[:, model.section.mesh.subdomains[region]])
+        dofs = np.unique(basis.element_dofs)  # a region basis holds only its own elements
         field_[dofs] = value[region]
     return field_
 

@@ -440,6 +440,7 @@ class _Run:
         assembled = clock.perf_counter()
 
         u = initial_field(s)
+        self.system_initial = u.copy()
         for name, fixed in model.fixed.items():
             u[s.fixed_dofs[name]] = fixed.temperature(0.0)
         stored = float(s.stored(u).sum())
@@ -650,7 +651,10 @@ class _Run:
         c, model = self.c, self.model
         warnings = []
         stored = histories["stored_energy"]
-        scale = max(float(np.abs(stored).max()), np.finfo(float).tiny)
+        # Relative to the stored-energy change, or (for a part that only redistributes its
+        # heat) to the energy of moving the whole part across the temperature span.
+        capacity = float(self.system.capacity_tangent(self.system_initial).sum())
+        scale = max(float(np.abs(stored).max()), capacity * _temperature_span(model))
         balance = self.balance_residual / scale
         limit = (
             ENERGY_BALANCE_TOLERANCE

@@ -27,7 +27,8 @@ def quench():
         ({"target": 60.0}, "strictly between"),
         ({"tolerance": 0.0}, r"tolerance must be a fraction in \(0, 1\), got 0.0"),
         ({"tolerance": 5}, "tolerance must be a fraction"),
-        ({"quantity": "core"}, r"quantity must be one of \('slowest', 'mean'\), got 'core'"),
+        ({"quantity": "core"}, r"quantity must be one of \('slowest', 'mean', .*\), got 'core'"),
+        ({"quantity": "time_to_target"}, "needs a target temperature"),
     ],
 )
 def test_bad_requests_are_refused(quench, kwargs, message):

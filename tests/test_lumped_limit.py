@@ -60,4 +60,4 @@ def test_verdict_accepts_lumped_at_small_biot(low_biot_run):
     assessment = assess(solution, target=60.0, tolerance=0.01, quantity="slowest")
     assert assessment.biot[0].value == pytest.approx(BIOT, rel=1e-9)
     assert assessment.verdict.adequate
-    assert assessment.errors["mean"].fraction < 0.002
+    assert assessment.errors["classical vs mean"].fraction < 0.002

@@ -56,7 +56,15 @@ def write_history_plot(assessment: Assessment, path: Path) -> None:
         color=LUMPED,
         lw=1.8,
         ls=(0, (6, 3)),
-        label=f"lumped, τ = {assessment.lumped.time_constant:.4g} s",
+        label=f"classical lumped, τ = {assessment.lumped.time_constant:.4g} s",
+    )
+    top.plot(
+        t,
+        assessment.model_temperatures["corrected"],
+        color=LUMPED,
+        lw=1.2,
+        ls=(0, (1.5, 1.5)),
+        label=f"corrected lumped, τ = {assessment.corrected.time_constant:.4g} s",
     )
     if assessment.target is not None:
         top.axhline(assessment.target, color=TARGET, lw=0.8, ls="-.")
@@ -70,10 +78,10 @@ def write_history_plot(assessment: Assessment, path: Path) -> None:
         )
     top.set_ylabel("temperature (°C)")
     top.legend(fontsize=8, frameon=False, ncols=2)
+    verdict = assessment.verdict
     top.set_title(
-        f"Bi (V/A_s) = {assessment.biot[0].value:.3g} — lumped estimate "
-        + ("adequate" if assessment.verdict.adequate else "not adequate")
-        + f" for the {assessment.verdict.quantity} point".replace("mean point", "mean"),
+        f"Bi (V/A_s) = {assessment.biot[0].value:.3g} — classical lumped estimate "
+        f"{verdict.rating} for {verdict.subject}",
         fontsize=10,
         loc="left",
     )

@@ -57,31 +57,41 @@ def summary(assessment: Assessment, files: list[str]) -> dict:
             {
                 "name": b.name,
                 "value": b.value,
+                "range_over_run": [b.low, b.high],
                 "length_m": b.length,
                 "heat_transfer_coefficient_W_per_m2_K": b.heat_transfer_coefficient,
                 "explanation": b.explanation,
             }
             for b in assessment.biot
         ],
-        "lumped": {
-            "time_constant_s": assessment.lumped.time_constant,
-            "ambient_degC": assessment.lumped.ambient,
+        "lumped_models": _models(assessment),
+        "slowest_mode": {
+            "rate_per_s": assessment.mode.rate,
+            "lumped_rate_per_s": assessment.mode.lumped_rate,
+            "ratio": assessment.mode.ratio,
+            "equivalent_coefficient_W_per_m2_K": assessment.mode.equivalent_coefficient,
+            "core_to_mean": assessment.mode.core_to_mean,
         },
         "lumped_errors": {
-            name: {
+            key: {
                 "largest_K": e.largest,
                 "fraction_of_initial_difference": e.fraction,
                 "time_s": e.time,
                 "lumped_ahead": e.lumped_ahead,
             }
-            for name, e in assessment.errors.items()
+            for key, e in assessment.errors.items()
         },
+        "energy_error_fraction": assessment.energy_error,
         "peak_internal_difference_K": assessment.peak_internal_difference,
         "peak_internal_difference_time_s": assessment.peak_internal_difference_time,
         "time_to_target_s": assessment.time_to_target,
         "verdict": {
+            "rating": assessment.verdict.rating,
             "lumped_adequate": assessment.verdict.adequate,
             "quantity": assessment.verdict.quantity,
+            "error_fraction": assessment.verdict.error,
+            "direction": assessment.verdict.direction,
+            "advice": assessment.verdict.advice,
             "reasons": list(assessment.verdict.reasons),
         },
         "final": {
@@ -100,7 +110,12 @@ def summary(assessment: Assessment, files: list[str]) -> dict:
             "method": stats.method,
             "steps": stats.steps,
             "startup_steps": stats.startup_steps,
+            "adaptive": stats.adaptive,
+            "rejected_steps": stats.rejected_steps,
             "time_step_s": stats.time_step,
+            "smallest_step_s": stats.smallest_step,
+            "largest_step_s": stats.largest_step,
+            "newton_iterations": stats.newton_iterations,
             "factorisations": stats.factorisations,
             "unknowns": stats.unknowns,
             "assembly_s": stats.assembly_seconds,
@@ -113,7 +128,7 @@ def summary(assessment: Assessment, files: list[str]) -> dict:
 
 def write_summary_json(assessment: Assessment, path: Path, files: list[str]) -> None:
     """Write :func:`summary` to ``path`` atomically."""
-    text = json.dumps(summary(assessment, files), indent=2, default=_plain)
+    text = json.dumps(summary(assessment, files), indent=2, default=_plain, ensure_ascii=False)
     write_text(Path(path), text + "\n")
 
 
@@ -165,6 +180,22 @@ def _schedule(value):
             data[field.name] = _schedule(getattr(value, field.name))
         return data
     return value
+
+
+def _models(assessment: Assessment) -> dict:
+    models = {
+        "classical": assessment.lumped.parameters(),
+        "corrected": {
+            **assessment.corrected.parameters(),
+            "beta": assessment.correction_shape,
+            "note": assessment.correction_note,
+        },
+    }
+    if assessment.fitted is not None:
+        models["fitted exponential"] = assessment.fitted.parameters()
+    if assessment.two_node is not None:
+        models["two-node"] = assessment.two_node.parameters()
+    return models
 
 
 def _material(material) -> dict:
