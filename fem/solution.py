@@ -67,8 +67,9 @@ class RunChecks:
     Attributes
     ----------
     energy_balance_error : float
-        Sum over the steps of |discrete energy balance residual| (J), divided by the largest
-        stored energy change: round-off for linear problems unless the assembly is wrong, the
+        Largest |stored energy change − heat absorbed| over the run, divided by the larger of
+        the largest stored energy change and the energy of moving the whole part across the
+        temperature span: round-off for linear problems unless the assembly is wrong, the
         Newton tolerance's share for nonlinear ones.
     temperature_excursion : float
         How far in K any nodal temperature went outside the range of the initial and boundary
