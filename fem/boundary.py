@@ -67,7 +67,7 @@ class Radiation:
 
     def __post_init__(self) -> None:
         e = self.emissivity
-        if not (isinstance(e, int | float) and 0 <= e <= 1):
+        if not (isinstance(e, int | float) and not isinstance(e, bool) and 0 <= e <= 1):
             raise ModelError(f"Radiation emissivity must be in [0, 1], got {e!r}")
         object.__setattr__(
             self, "surroundings", _temperature(self.surroundings, "Radiation surroundings")

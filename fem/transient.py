@@ -449,7 +449,8 @@ class _Run:
         recorder.store_field(0.0, u)
         initial_stored = stored
 
-        events = sorted(set(c.output_times) | set(_breakpoints(model, c.end_time)) | {c.end_time})
+        breakpoints = _breakpoints(model, c.end_time)
+        events = sorted(set(c.output_times) | breakpoints | {c.end_time})
         outputs = set(c.output_times)
         history: list[tuple[float, np.ndarray]] = [(0.0, u)]
         step = c.step
@@ -569,6 +570,13 @@ class _Run:
             t = t1
             if any(abs(t - o) <= 1e-9 * max(h, 1.0) for o in outputs):
                 recorder.store_field(t, u1)
+            if any(abs(t - b) <= 1e-9 * max(h, 1.0) for b in breakpoints):
+                # A schedule jumps or kinks here: start again as at t = 0, so BDF2 does not
+                # difference across the jump and Crank-Nicolson does not ring after it.
+                history = [(t, u1)]
+                startup_done = 0
+                startup_total = max(c.startup_steps, 1 if c.method == "bdf2" else 0)
+                previous_step = None
             if self.progress is not None:
                 self.progress(t, c.end_time, steps)
             if c.stop is not None:
