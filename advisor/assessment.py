@@ -162,7 +162,7 @@ class Assessment:
     @property
     def heating(self) -> bool:
         """True when the part warms up towards the ambient."""
-        return self.lumped.ambient > self.lumped.initial_temperature
+        return self.lumped.equilibrium > self.lumped.initial_temperature
 
     @property
     def slowest(self) -> np.ndarray:
@@ -233,7 +233,7 @@ def assess(
     """
     model = solution.model
     lumped = LumpedModel.of(model)
-    drive = lumped.initial_temperature - lumped.ambient
+    drive = lumped.initial_temperature - lumped.equilibrium  # > 0 cooling, < 0 heating
     _check_arguments(lumped, drive, target, tolerance, quantity)
     times = solution.times
     end = float(times[-1])
@@ -332,17 +332,17 @@ def _check_arguments(lumped, drive, target, tolerance, quantity) -> None:
         raise AdvisorError(f"quantity must be one of {QUANTITIES}, got {quantity!r}")
     if not (isinstance(tolerance, int | float) and 0 < tolerance < 1):
         raise AdvisorError(f"tolerance must be a fraction in (0, 1), got {tolerance!r}")
-    if drive == 0:
+    if abs(drive) <= 1e-9 * max(abs(lumped.initial_temperature), 1.0):
         raise AdvisorError(
-            f"the initial temperature equals the ambient ({lumped.ambient} degC): "
-            "nothing heats or cools, so there is nothing to assess"
+            f"the initial temperature equals the lumped equilibrium ({lumped.equilibrium:.6g} "
+            "degC): nothing heats or cools at the start, so there is nothing to assess"
         )
     if target is not None:
-        low, high = sorted((lumped.initial_temperature, lumped.ambient))
+        low, high = sorted((lumped.initial_temperature, lumped.equilibrium))
         if not (isinstance(target, int | float) and low < target < high):
             raise AdvisorError(
                 f"target must be a temperature strictly between the initial temperature and "
-                f"the ambient, ({low}, {high}) degC, got {target!r}"
+                f"where the part is heading, ({low:.6g}, {high:.6g}) degC, got {target!r}"
             )
     elif quantity == "time_to_target":
         raise AdvisorError("quantity 'time_to_target' needs a target temperature")
@@ -381,7 +381,7 @@ def _verdict(a: dict, quantity: str, tolerance: float, drive: float) -> Verdict:
         error = e.fraction
         reasons.append(
             f"largest lumped error against {subject}: {e.largest:.3g} K, "
-            f"{100 * e.fraction:.2f} % of the initial temperature difference (at "
+            f"{100 * e.fraction:.2f} % of the driving difference of {abs(drive):.4g} K (at "
             f"t = {e.time:.4g} s); the tolerance is {100 * tolerance:.3g} %"
         )
         if e.lumped_ahead:
@@ -403,9 +403,9 @@ def _verdict(a: dict, quantity: str, tolerance: float, drive: float) -> Verdict:
         error = a["peak_internal_difference"] / abs(drive)
         reasons.append(
             f"the section's largest internal temperature difference is "
-            f"{a['peak_internal_difference']:.3g} K ({100 * error:.2f} % of the initial "
-            f"difference) at t = {a['peak_internal_difference_time']:.4g} s; a lumped model "
-            "has none"
+            f"{a['peak_internal_difference']:.3g} K ({100 * error:.2f} % of the driving "
+            f"difference of {abs(drive):.4g} K) at t = {a['peak_internal_difference_time']:.4g} "
+            "s; a lumped model has none"
         )
         direction = (
             "the lumped estimate says the part stays uniform: it hides the "

@@ -98,6 +98,9 @@ class LumpedModel:
         T0 in °C, the volume-weighted mean of the initial state.
     closed_form : bool
         True when the exponential is exact (constant conditions, no radiation or sources).
+    equilibrium : float
+        Where the lumped model heads under the t = 0 conditions, °C: the ambient raised by
+        sources and fluxes, (Σh·A·T∞ + Σq·A + q̇·V) / Σh·A.
     coefficient_scale : float
         Factor on every surface coefficient (1 for the classical model).
     """
@@ -108,6 +111,7 @@ class LumpedModel:
     initial_temperature: float
     closed_form: bool
     coefficient_scale: float
+    equilibrium: float
     model: ThermalModel = field(repr=False)
 
     @classmethod
@@ -142,6 +146,9 @@ class LumpedModel:
             )
             and all(m.is_constant for m in model.materials.values())
         )
+        facts = model.section.facts
+        supplied = sum(f.flux(0.0) * facts.surface_areas[n] for n, f in model.fluxes.items())
+        supplied += sum(q(0.0) * facts.region_volumes[r] for r, q in model.heat_sources.items())
         return cls(
             name,
             heat_capacity(model, t0) / conductance,
@@ -149,6 +156,7 @@ class LumpedModel:
             float(t0),
             closed,
             scale,
+            (weighted + supplied) / conductance,
             model,
         )
 
@@ -173,7 +181,7 @@ class LumpedModel:
             return None
         times = np.linspace(0.0, horizon, 2001)
         return crossing_time(
-            times, self.temperature(times), target, self.initial_temperature - self.ambient
+            times, self.temperature(times), target, self.initial_temperature - self.equilibrium
         )
 
     def parameters(self) -> dict[str, float]:
@@ -334,7 +342,7 @@ def fit_two_node(times, mean, slowest, lumped: LumpedModel) -> TwoNodeModel | No
         return None
     capacity = heat_capacity(lumped.model, lumped.initial_temperature)
     surface = capacity / lumped.time_constant
-    drive = lumped.initial_temperature - lumped.ambient
+    drive = lumped.initial_temperature - lumped.equilibrium
     sample = np.linspace(0, len(times) - 1, min(len(times), 120)).astype(int)
     t = np.asarray(times)[sample]
     targets = np.concatenate([np.asarray(mean)[sample], np.asarray(slowest)[sample]])

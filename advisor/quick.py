@@ -58,9 +58,9 @@ def quick_check(model: ThermalModel, *, target: float | None = None) -> QuickChe
     True
     """
     lumped = LumpedModel.of(model)
-    drive = lumped.initial_temperature - lumped.ambient
+    drive = lumped.initial_temperature - lumped.equilibrium
     if target is not None:
-        low, high = sorted((lumped.initial_temperature, lumped.ambient))
+        low, high = sorted((lumped.initial_temperature, lumped.equilibrium))
         if not (isinstance(target, int | float) and low < target < high):
             raise AdvisorError(
                 f"target must be a temperature strictly between the initial "
@@ -77,7 +77,7 @@ def quick_check(model: ThermalModel, *, target: float | None = None) -> QuickChe
         horizon = 20 * lumped.time_constant
         times["classical"] = lumped.time_to(target, horizon)
         times["corrected"] = corrected.time_to(target, horizon)
-        ratio = mode.core_to_mean * drive / (target - lumped.ambient)
+        ratio = mode.core_to_mean * drive / (target - lumped.equilibrium)
         times["slowest (modal estimate)"] = math.log(ratio) / mode.rate if ratio > 1 else None
 
     heating = drive < 0

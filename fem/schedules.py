@@ -211,11 +211,17 @@ class Sinusoid:
     def __post_init__(self) -> None:
         for name in ("mean", "amplitude", "phase"):
             value = getattr(self, name)
-            if not (isinstance(value, int | float | np.number) and not isinstance(value, bool)
-                    and math.isfinite(value)):
+            if not (
+                isinstance(value, int | float | np.number)
+                and not isinstance(value, bool)
+                and math.isfinite(value)
+            ):
                 raise ModelError(f"Sinusoid {name} must be a finite number, got {value!r}")
-        if not (isinstance(self.period, int | float | np.number) and math.isfinite(self.period)
-                and self.period > 0):
+        if not (
+            isinstance(self.period, int | float | np.number)
+            and math.isfinite(self.period)
+            and self.period > 0
+        ):
             raise ModelError(f"Sinusoid period must be a time > 0 s, got {self.period!r}")
 
     def __call__(self, time: float) -> float:

@@ -331,8 +331,8 @@ def _smallest_surface_edge(model: ThermalModel) -> float:
 
 
 def _surface_diffusion_time(model: ThermalModel) -> float:
-    fastest = max(m.diffusivity for m in model.materials.values())
-    return _smallest_surface_edge(model) ** 2 / fastest
+    slowest = min(m.diffusivity for m in model.materials.values())
+    return _smallest_surface_edge(model) ** 2 / slowest
 
 
 # ---------------------------------------------------------------------------------------------

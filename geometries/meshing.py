@@ -125,6 +125,19 @@ def mesh_section(
         )
 
 
+def boundary_groups(section: Section | Shape) -> set[str]:
+    """The edge groups the section's boundary will have, found by building its geometry
+    (booleans included) without meshing it: edges that end up inside the part are absent."""
+    if not isinstance(section, Section):
+        section = Section(section)
+    shape = section.shape
+    tolerance = _MATCH_TOLERANCE * shape.size
+    with _gmsh_session():
+        regions = _build_regions(shape)
+        gmsh.model.occ.synchronize()
+        return set(_name_curves(section, shape.edges(), regions, tolerance))
+
+
 def _check_options(shape, size, order, refine, max_elements, curvature_elements) -> None:
     if not isinstance(size, int | float | np.floating) or not (math.isfinite(size) and size > 0):
         raise GeometryError(f"mesh size must be a finite length > 0 m, got {size!r}")

@@ -95,6 +95,12 @@ class Section:
         rule = EdgeRule(group, None if box is None else tuple(box), where)
         return Section(self.shape, self.axisymmetric, (*self.rules, rule))
 
+    def boundary_groups(self) -> set[str]:
+        """The edge groups of the section's boundary (its geometry is built, not meshed)."""
+        from .meshing import boundary_groups
+
+        return boundary_groups(self)
+
     def mesh(
         self,
         size: float,

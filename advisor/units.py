@@ -1,0 +1,77 @@
+"""Quantities with units from case files, parsed with pint.
+
+A value is a number (SI, temperatures in °C) or a string "<number> <unit>" such as "25 mm",
+"150 W/(m^2*K)", "480 degC", "10 min". Each key expects one kind of quantity; a string of the
+wrong kind ("25 kg" for a length) is an error that names what was expected.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from functools import lru_cache
+
+import pint
+
+# kind: (SI unit pint converts to, what the user is told)
+KINDS = {
+    "length": ("m", "a length such as '25 mm'"),
+    "time": ("s", "a time such as '10 min'"),
+    "temperature": ("degC", "a temperature such as '480 degC'"),
+    "temperature_difference": ("K", "a temperature difference such as '0.1 K'"),
+    "heat_transfer_coefficient": ("W/(m^2*K)", "a coefficient such as '150 W/(m^2*K)'"),
+    "conductivity": ("W/(m*K)", "a conductivity such as '45 W/(m*K)'"),
+    "density": ("kg/m^3", "a density such as '7850 kg/m^3'"),
+    "specific_heat": ("J/(kg*K)", "a specific heat such as '480 J/(kg*K)'"),
+    "heat_flux": ("W/m^2", "a heat flux such as '2 kW/m^2'"),
+    "power_density": ("W/m^3", "a heat generation such as '5 MW/m^3'"),
+    "angle": ("degree", "an angle such as '30 deg'"),
+    "number": ("", "a plain number"),
+}
+
+_NUMBER = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
+
+
+class UnitError(ValueError):
+    """A value that is not a quantity of the expected kind; the message says what is."""
+
+
+@lru_cache(maxsize=1)
+def registry() -> pint.UnitRegistry:
+    return pint.UnitRegistry()
+
+
+def quantity(value, kind: str) -> float:
+    """The magnitude of ``value`` in the SI unit of ``kind`` (°C for temperatures)."""
+    unit, described = KINDS[kind]
+    if isinstance(value, bool):
+        raise UnitError(f"expected {described}, got {value!r}")
+    if isinstance(value, int | float):
+        number = float(value)
+    elif isinstance(value, str):
+        match = _NUMBER.match(value)
+        if match is None:
+            raise UnitError(f"expected {described}, got {value!r} (a number, then a unit)")
+        magnitude, text = float(match.group(1)), match.group(2)
+        if not text:
+            number = magnitude
+        elif kind == "number":
+            raise UnitError(f"expected a plain number, got {value!r}")
+        else:
+            ureg = registry()
+            try:
+                given = ureg.Quantity(magnitude, ureg.parse_units(text.replace("^", "**")))
+                number = float(given.to(unit.replace("^", "**")).magnitude)
+            except pint.errors.DimensionalityError:
+                raise UnitError(
+                    f"expected {described}, got {value!r}: '{text}' is a different kind of unit"
+                ) from None
+            except (pint.errors.UndefinedUnitError, AttributeError, TypeError, ValueError):
+                raise UnitError(
+                    f"expected {described}, got {value!r}: unknown unit '{text}'"
+                ) from None
+    else:
+        raise UnitError(f"expected {described}, got {value!r}")
+    if not math.isfinite(number):
+        raise UnitError(f"expected {described}, got {value!r} (not finite)")
+    return number
