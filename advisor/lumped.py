@@ -261,7 +261,7 @@ class FittedExponential:
         ratio = (target - self.ambient) / self.amplitude
         if ratio <= 0:
             return None
-        return max(self.time_constant * math.log(1 / ratio), 0.0)
+        return float(max(self.time_constant * math.log(1 / ratio), 0.0))
 
     def parameters(self) -> dict[str, float]:
         return {
@@ -281,7 +281,9 @@ def fit_exponential(times, mean, ambient: float, initial: float) -> FittedExpone
     slope, intercept = np.polyfit(np.asarray(times)[late], np.log(theta[late]), 1)
     if slope >= 0:
         return None
-    return FittedExponential(-1.0 / slope, (initial - ambient) * math.exp(intercept), ambient)
+    return FittedExponential(
+        float(-1.0 / slope), float((initial - ambient) * math.exp(intercept)), float(ambient)
+    )
 
 
 @dataclass(frozen=True)
@@ -350,9 +352,9 @@ def fit_two_node(times, mean, slowest, lumped: LumpedModel) -> TwoNodeModel | No
     def model_of(x):
         share, log_ratio = x
         return TwoNodeModel(
-            capacity * (1 - share),
-            capacity * share,
-            surface * math.exp(log_ratio),
+            float(capacity * (1 - share)),
+            float(capacity * share),
+            float(surface * math.exp(log_ratio)),
             surface,
             lumped.ambient,
             lumped.initial_temperature,
