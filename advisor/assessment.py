@@ -327,6 +327,20 @@ def assess(
     return Assessment(**partial, verdict=verdict)
 
 
+def check_request(
+    model: ThermalModel,
+    *,
+    target: float | None = None,
+    tolerance: float = 0.05,
+    quantity: str = "slowest",
+) -> None:
+    """Refuse, before any solve, an assessment that :func:`assess` would refuse."""
+    lumped = LumpedModel.of(model)
+    _check_arguments(
+        lumped, lumped.initial_temperature - lumped.equilibrium, target, tolerance, quantity
+    )
+
+
 def _check_arguments(lumped, drive, target, tolerance, quantity) -> None:
     if quantity not in QUANTITIES:
         raise AdvisorError(f"quantity must be one of {QUANTITIES}, got {quantity!r}")

@@ -13,6 +13,7 @@ import argparse
 import json
 import logging
 import sys
+import warnings
 from importlib.metadata import PackageNotFoundError, version
 from pathlib import Path
 
@@ -162,7 +163,7 @@ def main(argv: list[str] | None = None) -> int:
 def _run(args) -> int:
     from fem import solve
 
-    from .assessment import assess
+    from .assessment import assess, check_request
     from .case import load_case
     from .results import check_results_folder, write_results
 
@@ -173,6 +174,7 @@ def _run(args) -> int:
     check_results_folder(out, force=args.force)
     log.info(f"Meshing and solving {case.title!r} ...")
     model = case.model()
+    check_request(model, **case.advisor_options)  # a bad target fails before the solve
     solution = solve(model, case.end_time, progress=_progress(), **case.run_options)
     assessment = assess(solution, **case.advisor_options)
     files = write_results(assessment, out, force=args.force, **_output_options(case))
@@ -320,8 +322,14 @@ def _report(assessment, folder: Path, files: list[Path]) -> None:
     log.info(f"Caution: {CAUTION}")
 
 
+def _show_warning(message, category, filename, lineno, file=None, line=None) -> None:
+    """Library warnings (a property table left, ...) as one plain line each."""
+    log.warning(f"warning: {message}")
+
+
 def _configure_logging(level: int) -> None:
     """Our messages to stderr at ``level``; other libraries' chatter only when verbose."""
+    warnings.showwarning = _show_warning
     handler = logging.StreamHandler(sys.stderr)
     handler.setFormatter(logging.Formatter("%(message)s"))
     log.handlers[:] = [handler]

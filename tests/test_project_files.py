@@ -22,3 +22,16 @@ def test_readme_setup_has_two_commands():
 def test_ci_runs_the_readme_test_command_exactly():
     ci_lines = [line.strip() for line in (ROOT / ".ci" / "run").read_text().splitlines()]
     assert readme_commands()[1] in ci_lines
+
+
+def test_readme_case_example_is_a_valid_case(tmp_path):
+    from advisor.case import load_case
+
+    text = (ROOT / "README.md").read_text(encoding="utf-8")
+    example = text.split("A complete annotated example", 1)[1].split("```toml\n", 1)[1]
+    case_file = tmp_path / "example.toml"
+    case_file.write_text(example.split("```", 1)[0], encoding="utf-8")
+    case = load_case(case_file)
+    assert case.title == "Bored steel block, furnace then oil"
+    assert set(case.boundaries) == {"outside", "corners", "bore", "symmetry", "clamped"}
+    assert case.run_options["stop"].quantity == "core"
