@@ -76,28 +76,47 @@ class _Context:
 
 
 def _line_of(lines: list[str], key_path: str) -> int | None:
-    """Best-effort line of a key: the first ``key =`` after the header of its table."""
-    parts = [p for p in re.split(r"\.|\[\d+\]", key_path) if p]
-    if not parts:
-        return None
-    key, tables = parts[-1], parts[:-1]
-    header = None
+    """The line of a key, or None when it is not written out (a wrong line is worse than none).
+
+    The file is cut into tables at their headers (``[a.b]``, ``[[a.b]]`` numbered in order);
+    the key is looked up in the table whose path is the longest prefix of ``key_path``, on a
+    line that assigns the next part of the path and, for keys inside an inline table, holds the
+    rest of it.
+    """
+    blocks: list[tuple[str, int, int]] = [("", 1, len(lines))]  # path, first line, last line
+    counts: dict[str, int] = {}
     for number, text in enumerate(lines, start=1):
         stripped = text.strip()
-        if stripped.startswith("["):
-            name = stripped.strip("[]").strip()
-            header = name.split(".")
-        elif re.match(rf"^{re.escape(key)}\s*=", stripped) and (
-            header is None
-            and not tables
-            or header is not None
-            and [h for h in header if h] == tables[: len(header)]
-        ):
+        match = re.match(r"^(\[\[?)\s*([^\]]+?)\s*\]\]?", stripped)
+        if not match:
+            continue
+        name = match.group(2).replace(" ", "")
+        if match.group(1) == "[[":
+            counts[name] = counts.get(name, -1) + 1
+            name = f"{name}[{counts[name]}]"
+        path, start, _ = blocks[-1]
+        blocks[-1] = (path, start, number - 1)
+        blocks.append((name, number, len(lines)))
+    best = None
+    for path, start, end in blocks:
+        if path == "" or key_path == path or key_path.startswith(path + "."):
+            if best is None or len(path) > len(best[0]):
+                best = (path, start, end)
+    if best is None:
+        return None
+    path, start, end = best
+    rest = key_path[len(path) + 1 :] if path else key_path
+    if not rest:
+        return start
+    parts = rest.split(".")
+    for number in range(start, end + 1):
+        text = lines[number - 1].split("#", 1)[0]
+        head = text.split("=", 1)[0].strip().replace(" ", "") if "=" in text else None
+        if head is None or text.strip().startswith("["):
+            continue
+        if head == rest:
             return number
-        elif re.search(rf"\b{re.escape(key)}\s*=", stripped) and header == tables:
-            return number
-    for number, text in enumerate(lines, start=1):  # anywhere, as a last resort
-        if re.search(rf"\b{re.escape(key)}\s*=", text):
+        if head == parts[0] and all(re.search(rf"\b{re.escape(p)}\s*=", text) for p in parts[1:]):
             return number
     return None
 
@@ -108,6 +127,7 @@ class _Table:
     def __init__(self, data: dict, path: str, context: _Context):
         self.data, self.path, self.context = data, path, context
         self.read: set[str] = set()
+        self.known: set[str] = set()  # keys this table accepts, read or not
 
     def key(self, name: str) -> str:
         return f"{self.path}.{name}" if self.path else name
@@ -116,12 +136,22 @@ class _Table:
         self.context.fail(self.key(name), message)
 
     def has(self, name: str) -> bool:
+        self.known.add(name)
         return name in self.data
 
     def raw(self, name: str, default=_MISSING):
         self.read.add(name)
+        self.known.add(name)
         if name not in self.data:
             if default is _MISSING:
+                misspelt = [
+                    k
+                    for k in self.data
+                    if k not in self.known
+                    and difflib.get_close_matches(name, [str(k)], n=1, cutoff=0.6)
+                ]
+                if misspelt:  # report the misspelling, where it is, rather than the absence
+                    self.fail(misspelt[0], f"is not a known key; did you mean {name!r}?")
                 self.fail(name, "is missing")
             return default
         return self.data[name]
@@ -184,7 +214,7 @@ class _Table:
         unknown = [k for k in self.data if k not in self.read]
         if unknown:
             name = unknown[0]
-            known = sorted(self.read)
+            known = sorted(self.known | self.read)
             self.fail(
                 name,
                 "is not a known key"
@@ -346,10 +376,10 @@ def _read_case(root: _Table, path: Path) -> Case:
     raw_initial = initial_table.raw("temperature")
     if isinstance(raw_initial, dict):
         per_region = _Table(raw_initial, initial_table.key("temperature"), root.context)
-        initial = {r: per_region.get(r, "temperature") for r in raw_initial}
+        initial = {r: _temperature(per_region, r) for r in raw_initial}
         per_region.done()
     else:
-        initial = initial_table.get("temperature", "temperature")
+        initial = _temperature(initial_table, "temperature")
     initial_table.done()
 
     sources = {}
@@ -393,9 +423,9 @@ def _read_case(root: _Table, path: Path) -> Case:
                 f"must be one of {list(choices)}, got {quantity_name!r}"
                 + _suggest(quantity_name, choices),
             )
-        options["stop"] = StopWhen(quantity_name, stop.get("target", "temperature"))
+        options["stop"] = StopWhen(quantity_name, _temperature(stop, "target"))
         stop.done()
-    element_order = int(run.get("element_order", "number", 1))
+    element_order = run.get("element_order", "number", 1)
     if element_order not in (1, 2):
         run.fail("element_order", f"must be 1 or 2, got {element_order}")
     run.done()
@@ -403,7 +433,7 @@ def _read_case(root: _Table, path: Path) -> Case:
     advisor_options: dict = {}
     advisor = root.table("advisor", None)
     if advisor is not None:
-        target = advisor.get("target", "temperature", None)
+        target = _temperature(advisor, "target", None)
         if target is not None:
             advisor_options["target"] = target
         tolerance = advisor.get("tolerance", "number", 0.05)
@@ -450,10 +480,10 @@ def _read_section(table: _Table, path: Path):
     mesh_options = {"size": table.get("mesh_size", "length")}
     if mesh_options["size"] <= 0:
         table.fail("mesh_size", "must be a length > 0")
-    order = int(table.get("order", "number", 1))
+    order = table.get("order", "number", 1)
     if order not in (1, 2):
-        table.fail("order", f"must be 1 or 2, got {order}")
-    mesh_options["order"] = order
+        table.fail("order", f"must be 1 or 2, got {order:g}")
+    mesh_options["order"] = int(order)
     max_elements = table.get("max_elements", "number", None)
     if max_elements is not None:
         mesh_options["max_elements"] = int(max_elements)
@@ -521,6 +551,12 @@ def _read_section(table: _Table, path: Path):
             rule.fail("box", str(error))
         section = section.name_edges(group, box=corners)
         rule.done()
+    if mesh_options["size"] > shape.size:
+        table.fail(
+            "mesh_size",
+            f"{mesh_options['size']:g} m is larger than the section "
+            f"({shape.size:.6g} m); choose a size below its smallest feature",
+        )
     try:
         groups = section.boundary_groups()  # builds the geometry, does not mesh it
     except GeometryError as error:
@@ -542,6 +578,14 @@ def _read_section(table: _Table, path: Path):
         mesh_options["refine"] = refine
     regions = _regions(shape)
     return section, None, mesh_options, groups, regions
+
+
+def _temperature(table: _Table, name: str, default=_MISSING):
+    """A temperature in °C, refused below absolute zero."""
+    value = table.get(name, "temperature", default)
+    if value is not None and value is not default and value <= -273.15:
+        table.fail(name, f"is below absolute zero ({value:g} degC)")
+    return value
 
 
 def _regions(shape) -> set[str]:

@@ -59,6 +59,8 @@ def quantity(value, kind: str) -> float:
             raise UnitError(f"expected a plain number, got {value!r}")
         else:
             ureg = registry()
+            if kind == "temperature_difference":  # "8 degC" of difference is 8 K, not 281 K
+                text = re.sub(r"\bdeg(C|F)\b", r"delta_deg\1", text)
             try:
                 given = ureg.Quantity(magnitude, ureg.parse_units(text.replace("^", "**")))
                 number = float(given.to(unit.replace("^", "**")).magnitude)

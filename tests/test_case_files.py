@@ -1,0 +1,433 @@
+"""Case files end to end: a corpus of malformed cases, the starting cases' round trip, and the
+small commands (new, materials, show, check).
+
+Every file in ``tests/cases/`` holds one kind of mistake (its first line says which). Each is
+run through the command line as ``soakwise run CASE --out DIR`` and must be refused with exit
+status 2, one line on stderr ("soakwise: error: FILE[, line N]: KEY.PATH: message"), no
+traceback and nothing written. The table below keeps, beside each file, the key path the
+message must start with, a phrase it must contain and the line it must name. ``None`` for the
+line means the message must name no line: the key is missing, so it has no line (a wrong
+line is worse than none); a mistake in a table header names the header's line.
+"""
+
+from __future__ import annotations
+
+import re
+import shutil
+import subprocess
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+import fem
+from advisor import assess
+from advisor.case import CaseError, load_case
+from advisor.cli import EXIT_OK, EXIT_USAGE, main
+from advisor.starters import SCENARIOS, starter_text
+from advisor.units import UnitError, quantity
+from geometries import Rectangle
+
+CASES = Path(__file__).parent / "cases"
+
+
+def row(name, key_path, phrase, line):
+    """One corpus file: the key path its message starts with, a phrase of it, and its line."""
+    return pytest.param(name, key_path, phrase, line, id=name.removesuffix(".toml"))
+
+
+# (file, key path the message starts with (None: not valid TOML), phrase, line or None)
+MALFORMED = [
+    # unknown keys
+    row(
+        "unknown_top_level_key_boundarys.toml",
+        "boundarys",
+        "did you mean 'boundaries'",
+        None,
+    ),
+    row("unknown_top_level_table_advisr.toml", "advisr", "did you mean 'advisor'", 35),
+    row(
+        "unknown_key_in_convection_coefficent.toml",
+        "boundaries.quenched.convection.coefficent",
+        "did you mean 'coefficient'",
+        23,
+    ),
+    row(
+        "unknown_key_in_boundary_insulted.toml",
+        "boundaries.symmetry.insulted",
+        "did you mean 'insulated'",
+        20,
+    ),
+    row("unknown_key_in_run_time_stp.toml", "run.time_stp", "did you mean 'time_step'", 33),
+    # missing required values
+    row("missing_end_time.toml", "run.end_time", "is missing", None),
+    row("missing_mesh_size.toml", "section.mesh_size", "is missing", None),
+    row("missing_material.toml", "material", "is missing", None),
+    row("missing_initial_temperature.toml", "initial", "is missing", None),
+    # quantities of the wrong kind, unknown units, wrong types
+    row("length_in_kilograms.toml", "section.shape[0].width", "'kg' is a different kind", 9),
+    row(
+        "coefficient_in_degC.toml",
+        "boundaries.quenched.convection.coefficient",
+        "'degC' is a different kind of unit",
+        23,
+    ),
+    row("end_time_in_metres.toml", "run.end_time", "'m' is a different kind of unit", 32),
+    row("unknown_unit.toml", "section.shape[0].height", "unknown unit 'mmm'", 10),
+    row("end_time_boolean.toml", "run.end_time", "expected a time", 32),
+    row("probe_not_a_point.toml", "probes.core", "expected a point [x, y]", 29),
+    # impossible values
+    row("conductivity_zero.toml", "material.conductivity", "must be > 0", 15),
+    row("conductivity_negative.toml", "material.conductivity", "must be > 0", 15),
+    row(
+        "emissivity_above_one.toml",
+        "boundaries.quenched.radiation.emissivity",
+        "must be in [0, 1]",
+        24,
+    ),
+    row(
+        "ambient_below_absolute_zero.toml",
+        "boundaries.quenched.convection.ambient",
+        "below absolute zero",
+        23,
+    ),
+    row(
+        "initial_below_absolute_zero.toml",
+        "initial.temperature",
+        "absolute zero",
+        26,
+    ),
+    row("end_time_zero.toml", "run.end_time", "must be > 0 s", 32),
+    row("end_time_negative.toml", "run.end_time", "must be > 0 s", 32),
+    row("negative_width.toml", "section.shape[0].width", "must be a length > 0", 9),
+    row(
+        "mesh_size_larger_than_part.toml",
+        "section.mesh_size",
+        "larger than the section",
+        5,
+    ),
+    row("element_order_3.toml", "run.element_order", "must be 1 or 2", 34),
+    row("tolerance_above_one.toml", "advisor.tolerance", "must be a fraction in (0, 1)", 37),
+    # edge groups, regions, materials, shapes
+    row(
+        "boundary_group_not_in_section.toml",
+        "boundaries.quench",
+        "did you mean 'quenched'",
+        22,
+    ),
+    row(
+        "section_group_without_boundary.toml",
+        "boundaries",
+        "['symmetry'] of the section have no boundary condition",
+        None,
+    ),
+    row(
+        "boundary_without_condition.toml",
+        "boundaries.symmetry.convection",
+        "the edge group has no condition",
+        None,
+    ),
+    row(
+        "insulated_false.toml", "boundaries.symmetry.insulated", 'expected true or "symmetry"', 20
+    ),
+    row(
+        "unknown_library_material.toml",
+        "material.library",
+        "is not in the material library",
+        15,
+    ),
+    row("material_and_materials.toml", "material", "not both", 14),
+    row(
+        "material_region_not_in_section.toml",
+        "materials.steel",
+        "is not a region of the section ['bar']",
+        14,
+    ),
+    row("unknown_shape_kind.toml", "section.shape[0].kind", "did you mean 'rectangle'", 8),
+    row("polygon_crosses_itself.toml", "section.shape[0].kind", "outline crosses itself", 8),
+    row("hole_outside_part.toml", "section.shape", "lies outside it and removes nothing", None),
+    row(
+        "second_shape_negative_height.toml",
+        "section.shape[1].height",
+        "must be a length > 0",
+        17,
+    ),
+    row(
+        "second_boundary_coefficient_negative.toml",
+        "boundaries.top.convection.coefficient",
+        "must be > 0",
+        26,
+    ),
+    # run options, schedules
+    row("unknown_stop_quantity.toml", "run.stop.quantity", "did you mean 'core'", 34),
+    row(
+        "advisor_before_run_stop_quantity.toml",
+        "run.stop.quantity",
+        "did you mean 'core'",
+        39,
+    ),
+    row(
+        "schedule_times_not_increasing.toml",
+        "boundaries.quenched.convection.ambient.linear",
+        "must increase strictly",
+        23,
+    ),
+    row("unknown_method.toml", "run.method", "did you mean 'crank-nicolson'", 34),
+    # not TOML at all
+    row("toml_syntax_error.toml", None, "not valid TOML", 10),
+    row("duplicate_key.toml", None, "not valid TOML", 11),
+]
+
+# Malformed, yet accepted by the loader: checked through load_case only, since the command
+# line would go on to solve them.
+ACCEPTED_MALFORMED = [
+    row(
+        "element_order_fraction.toml",
+        "run.element_order",
+        "must be 1 or 2",
+        34,
+    ),
+    row(
+        "advisor_target_below_absolute_zero.toml",
+        "advisor.target",
+        "absolute zero",
+        36,
+    ),
+]
+
+NOT_MALFORMED = ["amplitude_in_degC.toml"]
+
+
+def check_message(message: str, name: str, key_path, phrase: str, line) -> None:
+    """``message`` (without the "soakwise: error: " prefix) has the loader's layout."""
+    assert message.startswith(name), message
+    match = re.match(rf"{re.escape(name)}(?:, line \d+)?: (?P<rest>.*)$", message)
+    assert match, f"not 'file[, line N]: ...': {message}"
+    if key_path is not None:
+        assert match["rest"].startswith(f"{key_path}: "), message
+    assert phrase in message, message
+    named = [int(n) for n in re.findall(r"\bline (\d+)", message)]
+    assert named == ([] if line is None else [line]), message
+
+
+def test_the_corpus_is_the_table():
+    listed = {p.values[0] for p in MALFORMED + ACCEPTED_MALFORMED} | set(NOT_MALFORMED)
+    on_disk = {p.name for p in CASES.glob("*.toml")}
+    assert on_disk == listed
+    assert len(MALFORMED) >= 25
+    for name in on_disk:  # each file says what is wrong with it
+        assert (CASES / name).read_text(encoding="utf-8").startswith("# ")
+
+
+@pytest.mark.parametrize(("name", "key_path", "phrase", "line"), MALFORMED)
+def test_malformed_case_is_refused_with_one_message(
+    name, key_path, phrase, line, tmp_path, monkeypatch, capsys
+):
+    monkeypatch.chdir(tmp_path)  # a stray file in the working folder would show up too
+    before = sorted(p.name for p in CASES.iterdir())
+    status = main(["run", str(CASES / name), "--out", str(tmp_path / "out")])
+    out, err = capsys.readouterr()
+    assert status == EXIT_USAGE
+    assert "Traceback" not in err
+    assert out == ""
+    lines = err.strip().splitlines()
+    assert len(lines) == 1, err
+    assert lines[0].startswith("soakwise: error: "), err
+    check_message(lines[0].removeprefix("soakwise: error: "), name, key_path, phrase, line)
+    assert list(tmp_path.iterdir()) == []
+    assert sorted(p.name for p in CASES.iterdir()) == before
+
+
+@pytest.mark.parametrize(("name", "key_path", "phrase", "line"), ACCEPTED_MALFORMED)
+def test_malformed_case_is_refused_by_the_loader(name, key_path, phrase, line):
+    with pytest.raises(CaseError) as error:
+        load_case(CASES / name)
+    check_message(str(error.value), name, key_path, phrase, line)
+
+
+def test_temperature_difference_in_degc_is_a_difference_or_refused():
+    try:
+        value = quantity("8 degC", "temperature_difference")
+    except UnitError as error:
+        assert "8 degC" in str(error)
+    else:
+        assert value == pytest.approx(8.0)
+
+
+def test_amplitude_in_degc_is_read_as_a_difference_or_refused():
+    path = CASES / "amplitude_in_degC.toml"
+    try:
+        case = load_case(path)
+    except CaseError as error:
+        assert "amplitude" in str(error)
+    else:
+        (convection,) = case.boundaries["quenched"]
+        assert convection.ambient.amplitude == pytest.approx(8.0)
+
+
+SUBPROCESS_CASES = [
+    row("toml_syntax_error.toml", None, "not valid TOML", 10),
+    row("unknown_top_level_table_advisr.toml", "advisr", "did you mean 'advisor'", 35),
+    row("negative_width.toml", "section.shape[0].width", "must be a length > 0", 9),
+]
+
+
+@pytest.fixture(scope="module")
+def soakwise_script():
+    script = shutil.which("soakwise")
+    if script is None:
+        pytest.skip("the soakwise console script is not installed")
+    return script
+
+
+@pytest.mark.parametrize(("name", "key_path", "phrase", "line"), SUBPROCESS_CASES)
+def test_console_script_refuses_malformed_case(
+    soakwise_script, name, key_path, phrase, line, tmp_path
+):
+    done = subprocess.run(
+        [soakwise_script, "run", str(CASES / name), "--out", str(tmp_path / "out")],
+        cwd=tmp_path,
+        capture_output=True,
+        text=True,
+        timeout=120,
+    )
+    assert done.returncode == EXIT_USAGE
+    assert "Traceback" not in done.stderr
+    assert done.stdout == ""
+    lines = done.stderr.strip().splitlines()
+    assert len(lines) == 1, done.stderr
+    assert lines[0].startswith("soakwise: error: ")
+    check_message(lines[0].removeprefix("soakwise: error: "), name, key_path, phrase, line)
+    assert list(tmp_path.iterdir()) == []
+
+
+# ---------------------------------------------------------------------------------------------
+# Starting cases
+# ---------------------------------------------------------------------------------------------
+
+
+@pytest.mark.parametrize("scenario", sorted(SCENARIOS))
+def test_new_writes_the_starter_and_it_loads(scenario, tmp_path, capsys):
+    out = tmp_path / f"{scenario}.toml"
+    assert main(["new", scenario, "--out", str(out)]) == EXIT_OK
+    assert out.read_text(encoding="utf-8") == starter_text(scenario)
+    assert [p.name for p in tmp_path.iterdir()] == [out.name]
+    case = load_case(out)
+    assert case.end_time > 0
+
+
+def test_new_through_the_console_script(soakwise_script, tmp_path):
+    out = tmp_path / "bar.toml"
+    done = subprocess.run(
+        [soakwise_script, "new", "quench-bar", "--out", str(out)],
+        capture_output=True,
+        text=True,
+        timeout=120,
+    )
+    assert done.returncode == EXIT_OK, done.stderr
+    assert out.read_text(encoding="utf-8") == starter_text("quench-bar")
+
+
+def test_quench_bar_case_equals_the_same_model_built_in_python(tmp_path):
+    path = tmp_path / "quench-bar.toml"
+    assert main(["--quiet", "new", "quench-bar", "--out", str(path)]) == EXIT_OK
+    case = load_case(path, overrides={"section.mesh_size": "3 mm", "run.end_time": "5 min"})
+    assert case.end_time == 300.0
+    assert case.run_options == {"method": "crank-nicolson", "time_step": 1.0}
+    assert case.advisor_options == {"target": 200.0, "tolerance": 0.05, "quantity": "slowest"}
+    from_file = assess(
+        fem.solve(case.model(), case.end_time, **case.run_options), **case.advisor_options
+    )
+
+    # The same part written with the Python API, read off the starter by hand.
+    quarter = Rectangle(
+        0.030,
+        0.020,
+        edge_names={
+            "left": "symmetry",
+            "bottom": "symmetry",
+            "right": "quenched",
+            "top": "quenched",
+        },
+        region="bar",
+    )
+    model = fem.ThermalModel(
+        quarter.mesh(0.003),
+        fem.Material(conductivity=40.0, density=7850.0, specific_heat=520.0),
+        {
+            "symmetry": fem.Insulated("symmetry"),
+            "quenched": fem.Convection(heat_transfer_coefficient=400.0, ambient=60.0),
+        },
+        850.0,
+        probes={"core": (0.0, 0.0), "face_centre": (0.030, 0.0)},
+    )
+    direct = assess(
+        fem.solve(model, 300.0, method="crank-nicolson", time_step=1.0),
+        target=200.0,
+        tolerance=0.05,
+        quantity="slowest",
+    )
+    a, b = from_file.solution, direct.solution
+    np.testing.assert_allclose(a.times, b.times, rtol=1e-12, atol=0)
+    assert a.times[-1] == pytest.approx(300.0)
+    np.testing.assert_allclose(a.mean, b.mean, rtol=1e-12, atol=0)
+    assert set(a.probes) == set(b.probes) == {"core", "face_centre"}
+    for name in a.probes:
+        np.testing.assert_allclose(a.probes[name], b.probes[name], rtol=1e-12, atol=0)
+    assert a.mean[-1] < a.mean[0]  # it did cool
+    assert from_file.verdict.rating == direct.verdict.rating
+
+
+# ---------------------------------------------------------------------------------------------
+# new, materials, show, check
+# ---------------------------------------------------------------------------------------------
+
+
+def test_new_does_not_overwrite_without_force(tmp_path, capsys):
+    out = tmp_path / "mine.toml"
+    out.write_text("# my edited case\n", encoding="utf-8")
+    assert main(["new", "quench-bar", "--out", str(out)]) == EXIT_USAGE
+    err = capsys.readouterr().err
+    assert err.startswith("soakwise: error: ") and "already exists" in err
+    assert "--force" in err
+    assert out.read_text(encoding="utf-8") == "# my edited case\n"
+    assert [p.name for p in tmp_path.iterdir()] == ["mine.toml"]
+    assert main(["new", "quench-bar", "--out", str(out), "--force"]) == EXIT_OK
+    assert out.read_text(encoding="utf-8") == starter_text("quench-bar")
+
+
+def test_materials_lists_the_library(capsys):
+    assert main(["materials"]) == EXIT_OK
+    out = capsys.readouterr().out
+    assert fem.library.MATERIALS
+    for name in fem.library.MATERIALS:
+        assert name in out
+    assert "carbon steel, plain" in out
+
+
+def test_show_refuses_a_folder_without_summary(tmp_path, capsys):
+    (tmp_path / "notes.txt").write_text("not results")
+    assert main(["show", str(tmp_path)]) == EXIT_USAGE
+    err = capsys.readouterr().err
+    assert err.startswith("soakwise: error: ")
+    assert "not a results folder (no summary.json)" in err
+    assert "Traceback" not in err
+
+
+def test_check_reports_biot_numbers_and_direction(tmp_path, capsys):
+    text = starter_text("quench-bar")
+    assert text.count('mesh_size = "1 mm"') == 1
+    path = tmp_path / "quench-bar.toml"
+    path.write_text(text.replace('mesh_size = "1 mm"', 'mesh_size = "3 mm"'), encoding="utf-8")
+    assert main(["check", str(path)]) == EXIT_OK
+    err = capsys.readouterr().err
+    # Our own arithmetic: the quarter section is 30 mm x 20 mm, cooled on the 30 mm and 20 mm
+    # faces, so V/A = 600 mm^2 / 50 mm = 12 mm and Bi = h V/A / k = 400 * 0.012 / 40 = 0.12.
+    assert "Biot number (volume_to_surface, L = 12 mm): 0.12" in err
+    assert len(re.findall(r"^Biot number \(", err, flags=re.MULTILINE)) >= 2
+    # Cooling at Bi ~ 0.1-0.5: the core lags the mean, so a lumped estimate says "done" first.
+    direction = re.search(r"^Expected direction: (.*)$", err, flags=re.MULTILINE)
+    assert direction, err
+    assert "ahead of the slowest point" in direction[1]
+    assert "too early" in direction[1]
+    assert [p.name for p in tmp_path.iterdir()] == ["quench-bar.toml"]
