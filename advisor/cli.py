@@ -318,7 +318,9 @@ def _report(assessment, folder: Path, files: list[Path]) -> None:
     log.info(f"Advice: {verdict.advice}")
     for warning in solution.checks.warnings:
         log.warning(f"check: {warning}")
-    log.info(f"Wrote {len(files)} files to {folder}/ (summary.json, histories.png, fields/)")
+    log.info(
+        f"Wrote {len(files)} files to {folder}/: open report.html, or fields/ in a VTK viewer"
+    )
     log.info(f"Caution: {CAUTION}")
 
 

@@ -28,6 +28,7 @@ class EdgeTerms:
 
     basis: FacetBasis
     weights: np.ndarray  # ∫ φ_i dS
+    area: float = 0.0  # Σ weights: the group's surface area
     exchange_matrix: sp.csr_matrix | None = None  # ∫ φ_j φ_i dS (for h·…)
 
 
@@ -207,7 +208,7 @@ class ConductionSystem:
         for name, c in self.model.convection.items():
             edge = self.edges[name]
             flows[name] = flows.get(name, 0.0) + c.heat_transfer_coefficient(time) * (
-                c.ambient(time) * edge.weights.sum() - edge.weights @ temperature
+                c.ambient(time) * edge.area - edge.weights @ temperature
             )
         for name, r in self.model.radiation.items():
             edge = self.edges[name]
@@ -222,9 +223,7 @@ class ConductionSystem:
             ).sum()
             flows[name] = flows.get(name, 0.0) - float(out)
         for name, c in self.model.fluxes.items():
-            flows[name] = flows.get(name, 0.0) + c.flux(time) * float(
-                self.edges[name].weights.sum()
-            )
+            flows[name] = flows.get(name, 0.0) + c.flux(time) * self.edges[name].area
         return flows
 
     def generated(self, time: float) -> float:
@@ -276,7 +275,8 @@ def assemble(model: ThermalModel) -> ConductionSystem:
     exchanging = set(model.convection) | set(model.radiation) | set(model.fluxes)
     for name in exchanging:
         edge = FacetBasis(mesh, element, facets=mesh.boundaries[name])
-        terms = EdgeTerms(edge, asm(forms.shape_integral, edge, axisymmetric=axisymmetric))
+        weights = asm(forms.shape_integral, edge, axisymmetric=axisymmetric)
+        terms = EdgeTerms(edge, weights, float(weights.sum()))
         if name in model.convection or name in model.radiation:
             terms.exchange_matrix = asm(
                 forms.surface_exchange,

@@ -18,6 +18,7 @@ def atomic_path(path: Path) -> Iterator[Path]:
     temporary = Path(temporary)
     try:
         yield temporary
+        os.chmod(temporary, 0o644)  # mkstemp makes files private; results are for sharing
         os.replace(temporary, path)
     finally:
         temporary.unlink(missing_ok=True)

@@ -1,0 +1,225 @@
+"""What the machine can do and what a process used: memory bandwidth, peak memory, load, and
+the LU factors a run made (counted, timed and sized by wrapping ``scipy.sparse.linalg.splu``)."""
+
+from __future__ import annotations
+
+import contextlib
+import os
+import platform
+import subprocess
+import time
+
+import numpy as np
+
+THREAD_VARIABLES = (
+    "OPENBLAS_NUM_THREADS",
+    "OPENBLAS_CORETYPE",
+    "OPENBLAS_L2_SIZE",
+    "OMP_NUM_THREADS",
+    "MKL_NUM_THREADS",
+)
+INDEX_BYTES = 4  # int32 row indices and pointers of the CSC factors
+VALUE_BYTES = 8
+
+
+def peak_rss() -> int:
+    """This process's peak resident memory in bytes (VmHWM; ru_maxrss where /proc is absent)."""
+    try:
+        with open("/proc/self/status") as status:
+            for line in status:
+                if line.startswith("VmHWM:"):
+                    return int(line.split()[1]) * 1024
+    except OSError:
+        pass
+    import resource
+
+    return resource.getrusage(resource.RUSAGE_SELF).ru_maxrss * 1024
+
+
+def load_average() -> float:
+    try:
+        return float(os.getloadavg()[0])
+    except OSError:
+        return float("nan")
+
+
+def read_bandwidth(gigabytes: float = 1.0, repeats: int = 7) -> dict[str, float]:
+    """Single-core memory bandwidth in bytes/s: best of ``repeats`` passes of ``np.sum`` over
+    an array of ``gigabytes`` GB (read only) and of ``np.copyto`` between two such arrays
+    (counted as read + write). numpy runs both on one thread."""
+    n = int(gigabytes * 1e9 / 8)
+    source = np.ones(n)
+    target = np.empty_like(source)
+    target.fill(0.0)  # touch every page before timing
+    read, copy = [], []
+    for _ in range(repeats):
+        started = time.perf_counter()
+        source.sum()
+        read.append(time.perf_counter() - started)
+        started = time.perf_counter()
+        np.copyto(target, source)
+        copy.append(time.perf_counter() - started)
+    return {
+        "array_bytes": float(source.nbytes),
+        "read_bytes_per_s": source.nbytes / min(read),
+        "copy_bytes_per_s": 2 * source.nbytes / min(copy),
+        "read_seconds_best": min(read),
+        "read_seconds_worst": max(read),
+    }
+
+
+def factor_size(lu) -> dict[str, float]:
+    """Bytes a triangular solve must read at the least: (nnz(L) + nnz(U))·(8 + 4) for values and
+    row indices, plus the column pointers of L and U and the two permutations."""
+    L, U = lu.L, lu.U
+    n = lu.shape[0]
+    index = L.indices.dtype.itemsize
+    nnz = int(L.nnz + U.nnz)
+    data = nnz * (VALUE_BYTES + index)
+    indices = (L.indptr.size + U.indptr.size) * L.indptr.dtype.itemsize + 2 * n * INDEX_BYTES
+    return {
+        "n": n,
+        "nnz_L": int(L.nnz),
+        "nnz_U": int(U.nnz),
+        "superlu_nnz": int(lu.nnz),
+        "factor_bytes": float(data + indices),
+    }
+
+
+def time_solves(lu, repeats: int = 10) -> float:
+    """Best time in s of ``lu.solve`` on one right-hand side."""
+    rhs = np.random.default_rng(1).random(lu.shape[0])
+    best = float("inf")
+    for _ in range(repeats):
+        started = time.perf_counter()
+        lu.solve(rhs)
+        best = min(best, time.perf_counter() - started)
+    return best
+
+
+class TimedFactor:
+    """A SuperLU factor whose ``solve`` calls are counted and timed; everything else passes."""
+
+    def __init__(self, lu, spy: FactorSpy):
+        self._lu = lu
+        self._spy = spy
+
+    def solve(self, *args, **kwargs):
+        started = time.perf_counter()
+        result = self._lu.solve(*args, **kwargs)
+        self._spy.solve_seconds += time.perf_counter() - started
+        self._spy.solves += 1
+        return result
+
+    def __getattr__(self, name):
+        return getattr(self._lu, name)
+
+
+class FactorSpy:
+    """Wrap ``scipy.sparse.linalg.splu`` while active: count and time factorisations and
+    triangular solves, keep the last factor, and optionally change the ordering options.
+
+    ``symmetric_ordering=True`` is a what-if, not the shipped code: it keeps the MMD ordering
+    of Aᵀ + A and adds SuperLU's ``SymmetricMode`` option, which applies the ordering to rows
+    as well as columns (without it SuperLU permutes only the columns, and the fill of these
+    symmetric matrices grows towards dense).
+    """
+
+    def __init__(self, symmetric_ordering: bool = False):
+        self.symmetric_ordering = symmetric_ordering
+        self.factorisations = 0
+        self.factor_seconds = 0.0
+        self.first_factor_seconds = 0.0
+        self.solves = 0
+        self.solve_seconds = 0.0
+        self.last = None
+        self.calls: list[dict] = []
+
+    @contextlib.contextmanager
+    def active(self):
+        import scipy.sparse.linalg as spla
+
+        original = spla.splu
+
+        def splu(matrix, *args, **kwargs):
+            if self.symmetric_ordering:
+                kwargs["permc_spec"] = "MMD_AT_PLUS_A"
+                kwargs["options"] = {**(kwargs.get("options") or {}), "SymmetricMode": True}
+            started = time.perf_counter()
+            lu = original(matrix, *args, **kwargs)
+            seconds = time.perf_counter() - started
+            self.factor_seconds += seconds
+            if not self.factorisations:
+                self.first_factor_seconds = seconds
+            self.factorisations += 1
+            if len(self.calls) < 3:
+                self.calls.append(
+                    {k: repr(v) for k, v in kwargs.items()} | {"positional": repr(args)}
+                )
+            self.last = lu
+            return TimedFactor(lu, self)
+
+        spla.splu = splu
+        try:
+            yield self
+        finally:
+            spla.splu = original
+
+    def summary(self) -> dict:
+        return {
+            "factorisations": self.factorisations,
+            "factor_seconds": self.factor_seconds,
+            "first_factor_seconds": self.first_factor_seconds,
+            "solves": self.solves,
+            "solve_seconds": self.solve_seconds,
+            "splu_calls": self.calls,
+        }
+
+
+def describe_machine() -> dict:
+    info = {
+        "python": platform.python_version(),
+        "platform": platform.platform(),
+        "cpus": os.cpu_count(),
+        "thread_variables": {v: os.environ.get(v) for v in THREAD_VARIABLES},
+        "load_average_1min": load_average(),
+    }
+    try:
+        import gmsh
+        import numpy
+        import scipy
+        import skfem
+
+        info["versions"] = {
+            "numpy": numpy.__version__,
+            "scipy": scipy.__version__,
+            "scikit-fem": skfem.__version__,
+            "gmsh": gmsh.__version__,
+        }
+    except ImportError:
+        pass
+    with contextlib.suppress(OSError, subprocess.SubprocessError):
+        info["cpu_model"] = next(
+            line.split(":", 1)[1].strip()
+            for line in open("/proc/cpuinfo")
+            if line.startswith("model name")
+        )
+    return info
+
+
+def source_state(root) -> dict:
+    """The commit and the uncommitted files of the code being measured."""
+    state = {}
+    with contextlib.suppress(OSError, subprocess.SubprocessError):
+        state["commit"] = subprocess.run(
+            ["git", "rev-parse", "HEAD"], cwd=root, capture_output=True, text=True, timeout=10
+        ).stdout.strip()
+        changed = subprocess.run(
+            ["git", "status", "--porcelain", "--", "fem", "geometries", "advisor"],
+            cwd=root,
+            capture_output=True,
+            text=True,
+            timeout=10,
+        ).stdout.splitlines()
+        state["uncommitted"] = [line[3:] for line in changed]
+    return state
