@@ -12,6 +12,9 @@ MODULES = [
     "fem.model",
     "fem.transient",
     "advisor.assessment",
+    "advisor.modes",
+    "advisor.quick",
+    "geometries.section",
 ]
 
 
