@@ -9,9 +9,8 @@ from dataclasses import dataclass
 
 from fem import ThermalModel
 
-from .assessment import correction
+from .assessment import check_request, correction
 from .biot import COMMON_LIMIT, BiotNumber, biot_numbers
-from .errors import AdvisorError
 from .lumped import LumpedModel
 from .modes import SlowestMode, slowest_mode
 
@@ -57,16 +56,9 @@ def quick_check(model: ThermalModel, *, target: float | None = None) -> QuickChe
     >>> check.time_to_target["classical"] < check.time_to_target["slowest (modal estimate)"]
     True
     """
+    check_request(model, target=target)
     lumped = LumpedModel.of(model)
     drive = lumped.initial_temperature - lumped.equilibrium
-    if target is not None:
-        low, high = sorted((lumped.initial_temperature, lumped.equilibrium))
-        if not (isinstance(target, int | float) and low < target < high):
-            raise AdvisorError(
-                f"target must be a temperature strictly between the initial "
-                f"temperature and the ambient, ({low}, {high}) degC, got "
-                f"{target!r}"
-            )
     biot = biot_numbers(model)
     _, scale, _ = correction(model, biot)
     corrected = LumpedModel.of(model, scale=scale, name="corrected")

@@ -144,18 +144,21 @@ class ConductionSystem:
             g += c.heat_transfer_coefficient(time) * (
                 self.edges[name].exchange_matrix @ temperature
             )
-        for name, r in self.model.radiation.items():
-            edge = self.edges[name]
-            t = edge.basis.interpolate(temperature)
-            g += asm(
-                forms.radiation_residual,
-                edge.basis,
-                temperature=t,
-                emissivity=r.emissivity,
-                surroundings=r.surroundings(time),
-                axisymmetric=self.axisymmetric,
-            )
+        for name in self.model.radiation:
+            g += self._radiated(name, temperature, time)
         return g
+
+    def _radiated(self, name: str, temperature: np.ndarray, time: float) -> np.ndarray:
+        """∫ εσ(T⁴ − T_sur⁴) φ_i dS over one edge group: the heat it radiates away, W."""
+        r, edge = self.model.radiation[name], self.edges[name]
+        return asm(
+            forms.radiation_residual,
+            edge.basis,
+            temperature=edge.basis.interpolate(temperature),
+            emissivity=r.emissivity,
+            surroundings=r.surroundings(time),
+            axisymmetric=self.axisymmetric,
+        )
 
     def outflow_tangent(self, temperature: np.ndarray, time: float) -> sp.csr_matrix:
         """dG/dT (W/K)."""
@@ -210,18 +213,10 @@ class ConductionSystem:
             flows[name] = flows.get(name, 0.0) + c.heat_transfer_coefficient(time) * (
                 c.ambient(time) * edge.area - edge.weights @ temperature
             )
-        for name, r in self.model.radiation.items():
-            edge = self.edges[name]
-            t = edge.basis.interpolate(temperature)
-            out = asm(
-                forms.radiation_residual,
-                edge.basis,
-                temperature=t,
-                emissivity=r.emissivity,
-                surroundings=r.surroundings(time),
-                axisymmetric=self.axisymmetric,
-            ).sum()
-            flows[name] = flows.get(name, 0.0) - float(out)
+        for name in self.model.radiation:
+            flows[name] = flows.get(name, 0.0) - float(
+                self._radiated(name, temperature, time).sum()
+            )
         for name, c in self.model.fluxes.items():
             flows[name] = flows.get(name, 0.0) + c.flux(time) * self.edges[name].area
         return flows
