@@ -12,7 +12,7 @@ Layout::
     plots/field_snapshots.png|svg        the field at a few output times
     plots/energy.png|svg         stored energy against heat taken in
     animation.gif                the field over time on one colour scale
-    animation.mp4                the same as video (with imageio-ffmpeg, the ``video`` extra)
+    animation.mp4                the same as an MP4 film (with imageio-ffmpeg, the ``mp4`` extra)
     fields/legend.json           region and edge group names by id
     fields/temperature.pvd       VTK collection with the physical times
     fields/temperature_NNNN.vtu  one unstructured grid per output time, t = 0 first
@@ -33,7 +33,7 @@ from pathlib import Path
 
 from .assessment import Assessment
 from .errors import AdvisorError, ResultsFolderExistsError
-from .writers.animation import video_available, write_animation
+from .writers.animation import mp4_available, write_animation
 from .writers.histories_csv import write_histories_csv
 from .writers.plots import PLOTS, write_plots
 from .writers.report_content import Picture, build_report
@@ -79,7 +79,7 @@ def write_results(
     report: bool = True,
     animation: bool = True,
     vtk: bool = True,
-    video: bool | None = None,
+    mp4: bool | None = None,
     xdmf: bool | None = None,
 ) -> list[Path]:
     """Write the results folder; return the paths of its files (relative to ``folder``).
@@ -94,10 +94,10 @@ def write_results(
     report : bool
         Write report.html and report.md.
     animation : bool
-        Write animation.gif (and animation.mp4, see ``video``).
+        Write animation.gif (and animation.mp4, see ``mp4``).
     vtk : bool
         Write the field files under fields/ (VTK series, legend, XDMF).
-    video : bool or None
+    mp4 : bool or None
         Write animation.mp4: None when imageio-ffmpeg is installed, True always (an error if
         it is not), False never.
     xdmf : bool or None
@@ -109,7 +109,7 @@ def write_results(
     ResultsFolderExistsError
         If ``folder`` exists and ``force`` is false; nothing is written.
     AdvisorError
-        If ``video`` or ``xdmf`` is True and its extra is missing; nothing is written.
+        If ``mp4`` or ``xdmf`` is True and its extra is missing; nothing is written.
 
     Examples
     --------
@@ -130,7 +130,7 @@ def write_results(
     """
     folder = Path(folder)
     check_results_folder(folder, force=force)
-    video = animation and _optional(video, video_available(), "video", "video")
+    mp4 = animation and _optional(mp4, mp4_available(), "mp4", "mp4")
     xdmf = vtk and _optional(xdmf, xdmf_available(), "xdmf", "xdmf")
     folder.parent.mkdir(parents=True, exist_ok=True)
     staging = Path(tempfile.mkdtemp(dir=folder.parent, prefix=f".{folder.name}.", suffix=".part"))
@@ -144,7 +144,7 @@ def write_results(
             written += write_animation(
                 assessment.solution,
                 staging / "animation.gif",
-                staging / "animation.mp4" if video else None,
+                staging / "animation.mp4" if mp4 else None,
             )
         if vtk:
             written += write_vtk_series(assessment.solution, staging / FIELD_FOLDER)

@@ -365,7 +365,7 @@ def long_run():
 def test_animation_caps_frames_and_keeps_one_colour_scale(long_run, tmp_path):
     gif, mp4 = tmp_path / "field.gif", tmp_path / "field.mp4"
     written = animation_writer.write_animation(
-        long_run, gif, mp4 if animation_writer.video_available() else None
+        long_run, gif, mp4 if animation_writer.mp4_available() else None
     )
     assert written[0] == gif
     with Image.open(gif) as image:
@@ -385,7 +385,7 @@ def test_animation_caps_frames_and_keeps_one_colour_scale(long_run, tmp_path):
 
 def test_animation_video(long_run, tmp_path):
     imageio_ffmpeg = pytest.importorskip(
-        "imageio_ffmpeg", reason="MP4 needs imageio-ffmpeg (the video extra)"
+        "imageio_ffmpeg", reason="MP4 needs imageio-ffmpeg (the mp4 extra)"
     )
     mp4 = tmp_path / "field.mp4"
     animation_writer.write_animation(long_run, None, mp4)
@@ -532,11 +532,11 @@ def test_switches_leave_their_files_out(run, tmp_path):
 
 
 def test_a_required_extra_that_is_missing_stops_before_writing(run, tmp_path, monkeypatch):
-    monkeypatch.setattr(advisor.results, "video_available", lambda: False)
-    with pytest.raises(AdvisorError, match="video"):
-        write_results(run, tmp_path / "out", video=True)
+    monkeypatch.setattr(advisor.results, "mp4_available", lambda: False)
+    with pytest.raises(AdvisorError, match="mp4"):
+        write_results(run, tmp_path / "out", mp4=True)
     assert not (tmp_path / "out").exists() and not list(tmp_path.iterdir())
-    files = write_results(run, tmp_path / "out", video=None, report=False, vtk=False)
+    files = write_results(run, tmp_path / "out", mp4=None, report=False, vtk=False)
     assert Path("animation.gif") in files and Path("animation.mp4") not in files
 
 

@@ -1,4 +1,4 @@
-"""The field as an animation: a GIF through Pillow and, with the ``video`` extra
+"""The field as an animation: a GIF through Pillow and, with the ``mp4`` extra
 (imageio-ffmpeg), an MP4.
 
 Every frame shares one colour scale (the lowest and highest temperature of all output fields),
@@ -33,12 +33,12 @@ from .plots import (
 
 MAX_FRAMES = 60
 CLIP_SECONDS = 6.0  # how long the whole clip plays
-FRAME_SIZE = (768, 576)  # pixels; multiples of 16 as video encoders want
+FRAME_SIZE = (768, 576)  # pixels; multiples of 16 as MP4 encoders want
 PALETTE_COLOURS = 255
 
 
-def video_available() -> bool:
-    """True when imageio-ffmpeg (the ``video`` extra) is installed, so MP4 can be written."""
+def mp4_available() -> bool:
+    """True when imageio-ffmpeg (the ``mp4`` extra) is installed, so MP4 can be written."""
     return importlib.util.find_spec("imageio_ffmpeg") is not None
 
 
@@ -153,7 +153,7 @@ def write_mp4(frames: list[np.ndarray], path: Path) -> None:
     Raises
     ------
     ModuleNotFoundError
-        If imageio-ffmpeg (the ``video`` extra) is not installed.
+        If imageio-ffmpeg (the ``mp4`` extra) is not installed.
     """
     import imageio_ffmpeg
 
