@@ -5,7 +5,7 @@ from __future__ import annotations
 import numpy as np
 
 from .fields import FieldSeries
-from .system import ConductionSystem
+from .system import ConductionSystem, inner
 
 
 class HistoryRecorder:
@@ -42,7 +42,7 @@ class HistoryRecorder:
         self._rows.append(
             (
                 time,
-                float(self._system.volume_weights @ temperature),
+                inner(self._system.volume_weights, temperature),
                 temperature[low],
                 temperature[high],
                 self._locations[:, low],

@@ -22,6 +22,12 @@ from .model import ThermalModel
 ENTHALPY_REFERENCE = 0.0  # °C: H(T) = ∫ρc dT from here; differences are all that matter
 
 
+def inner(a: np.ndarray, b: np.ndarray) -> float:
+    """a·b for the per-step histories. einsum, not BLAS: OpenBLAS's threaded dot waits for a
+    busy core (measured up to 15 ms at 100k unknowns on two loaded cores, einsum 0.12 ms)."""
+    return float(np.einsum("i,i->", a, b))
+
+
 @dataclass
 class EdgeTerms:
     """One edge group's basis and the pieces of its conditions."""
@@ -211,7 +217,7 @@ class ConductionSystem:
         for name, c in self.model.convection.items():
             edge = self.edges[name]
             flows[name] = flows.get(name, 0.0) + c.heat_transfer_coefficient(time) * (
-                c.ambient(time) * edge.area - edge.weights @ temperature
+                c.ambient(time) * edge.area - inner(edge.weights, temperature)
             )
         for name in self.model.radiation:
             flows[name] = flows.get(name, 0.0) - float(

@@ -34,7 +34,7 @@ from .integrators import (
 from .model import ThermalModel
 from .recorder import HistoryRecorder
 from .solution import RunChecks, Solution, SolverStats
-from .system import assemble, initial_field
+from .system import assemble, initial_field, inner
 
 DEFAULT_STEPS = 500
 DEFAULT_OUTPUTS = 50
@@ -443,7 +443,7 @@ class _Run:
             load0 = s.load(inside0)
             explicit = self._explicit((1 - beta) * scale, inside0)
             rhs = explicit @ states[0] + scale * ((1 - beta) * load0 + beta * load1)
-            inflow_old = load0.sum() - column0 @ states[0]
+            inflow_old = load0.sum() - inner(column0, states[0])
         else:  # backward Euler and BDF2: no explicit operator part
             history = -sum(a / a0 * u for a, u in zip(formula.a[1:], states, strict=False))
             rhs = s.capacity @ history + scale * beta * load1
@@ -475,9 +475,9 @@ class _Run:
                 name: float(rows[[position[d] for d in dofs]].sum())
                 for name, dofs in s.fixed_dofs.items()
             }
-        inflow = beta * (load1.sum() - column1 @ u) + (1 - beta) * inflow_old
+        inflow = beta * (load1.sum() - inner(column1, u)) + (1 - beta) * inflow_old
         heat = step * (inflow + sum(reactions.values()))
-        return _StepResult(u, float(self.capacity_columns @ u), float(heat), reactions)
+        return _StepResult(u, inner(self.capacity_columns, u), float(heat), reactions)
 
     def _explicit(self, scale: float, time: float):
         """M − scale·A(time), cached beside the factorisations."""
@@ -713,7 +713,7 @@ class _Run:
     # -- bookkeeping ------------------------------------------------------------------------
     def _quantity(self, field: np.ndarray, name: str) -> float:
         if name == "mean":
-            return float(self.system.volume_weights @ field)
+            return inner(self.system.volume_weights, field)
         if name == "minimum":
             return float(field.min())
         if name == "maximum":
