@@ -451,6 +451,7 @@ class _Run:
         u = np.empty(s.size)
         free = s.free_dofs
         fixed = self.fixed_all
+        known = None
         if len(fixed):
             for name, c in self.model.fixed.items():
                 u[s.fixed_dofs[name]] = c.temperature(inside1)
@@ -458,10 +459,11 @@ class _Run:
                 operator1[:, fixed] @ u[fixed]
             )
             known = rhs[free] - coupling[free]
-        else:
-            known = rhs[free]
         factor = self._linear_factor(formula, step, inside1)
-        u[free] = factor.solve(known)
+        if len(fixed):
+            u[free] = factor.solve(known)
+        else:  # every degree of freedom is free: no gather and scatter around the solve
+            u = factor.solve(rhs)
         self.newton_iterations += 1
         self.max_iterations = max(self.max_iterations, 1)
 
@@ -516,7 +518,7 @@ class _Run:
             jacobian = (formula.a[0] / step) * s.capacity_tangent(u) + formula.beta * (
                 s.outflow_tangent(u, inside1)
             )
-            change = self._factor(jacobian).solve(-r[free])
+            change = self._factor(jacobian, symmetric=self.symmetric_tangent).solve(-r[free])
             u[free] += change
             largest = float(np.abs(change).max(initial=0.0))
             if largest <= self.c.newton_tolerance:
@@ -542,6 +544,10 @@ class _Run:
         c, model = self.c, self.model
         started = clock.perf_counter()
         self.system = s = assemble(model)
+        # Capacity and radiation tangents are symmetric; k(T) adds k'(T)·δ·∇T, which is not.
+        self.symmetric_tangent = all(
+            isinstance(m.conductivity, float) for m in model.materials.values()
+        )
         self.capacity_columns = np.asarray(s.capacity.sum(axis=0)).ravel()  # 1ᵀM
         fixed = [d for dofs in s.fixed_dofs.values() for d in dofs]
         self.fixed_all = np.array(fixed, dtype=np.int64)
