@@ -682,7 +682,8 @@ def main(argv: list[str] | None = None) -> int:
     if args.rerender is not None:
         earlier = json.loads(args.rerender.read_text())
         suite = reload_suite(earlier, Outcome)
-        report = build_report(suite.args, suite, earlier["machine"], earlier["source"], 0.0)
+        source = earlier.get("source") or {**source_state(ROOT), "recorded": "at --rerender"}
+        report = build_report(suite.args, suite, earlier["machine"], source, 0.0)
         report.update(started=earlier["started"], seconds=earlier["seconds"])
         report["command"] = earlier["command"]
         print_report(report)
@@ -700,7 +701,9 @@ def main(argv: list[str] | None = None) -> int:
         finally:  # keep what was measured even if a later step breaks
             args.output.parent.mkdir(parents=True, exist_ok=True)
             raw = args.output.with_suffix(".raw.json")
-            raw.write_text(json.dumps(raw_outcomes(args, suite, machine, started), default=str))
+            record = raw_outcomes(args, suite, machine, started)
+            record["source"] = source_state(ROOT)
+            raw.write_text(json.dumps(record, default=str))
         report = build_report(args, suite, machine, source_state(ROOT), started)
     print_report(report)
     args.output.parent.mkdir(parents=True, exist_ok=True)
