@@ -10,6 +10,7 @@ The README documents the format with a complete annotated example.
 from __future__ import annotations
 
 import difflib
+import math
 import re
 import sys
 from dataclasses import dataclass, field
@@ -32,6 +33,7 @@ from fem import (
     ThermalModel,
     library,
 )
+from fem.boundary import conditions as check_conditions
 from geometries import (
     AXIS_GROUP,
     Annulus,
@@ -860,8 +862,6 @@ def _read_boundary(spec: _Table):
             "radiation, flux, fixed or insulated",
         )
     try:
-        from fem.boundary import conditions as check_conditions
-
         return check_conditions(tuple(conditions), spec.path)
     except ModelError as error:
         spec.fail("convection", str(error))
@@ -895,8 +895,6 @@ def _schedule(table: _Table, name: str, kind: str):
         spec.done()
         if period <= 0:
             spec.fail("sinusoid", "period must be > 0")
-        import math
-
         schedule = Sinusoid(mean, amplitude, period, math.radians(phase))
     else:
         style = "steps" if spec.has("steps") else "linear"
