@@ -570,6 +570,14 @@ class _Run:
         history: list[tuple[float, np.ndarray]] = [(0.0, u)]
         step = c.step
         ladder_base = c.step
+        intervals = np.diff((0.0, *c.output_times))
+        dyadic = c.adaptive and bool(np.allclose(intervals, intervals[0], rtol=1e-9))
+        anchor = 0.0  # the last event passed: steps are aligned from here
+        if dyadic:
+            # Steps of interval/2^k, changed only where they stay aligned, land on every
+            # output time without a one-off step (and a one-off factorisation) to reach it.
+            ladder_base = float(intervals[0])
+            step = self._on_ladder(step, ladder_base)
         absorbed = 0.0
         steps = rejected = startup_done = 0
         startup_total = c.startup_steps
@@ -647,7 +655,10 @@ class _Run:
                 proposal = min(max(h * min(factor, 2.0), c.min_step), c.max_step)
                 if h < step * (1 - 1e-9):  # shortened to meet an event: keep the step earned
                     proposal = step if factor >= 1 else min(step, proposal)
-                step = self._on_ladder(proposal, ladder_base)
+                proposal = self._on_ladder(proposal, ladder_base)
+                if dyadic and proposal > h * (1 + 1e-9) and not _aligned(t1 - anchor, proposal):
+                    proposal = self._on_ladder(h, ladder_base)  # grow where it stays aligned
+                step = proposal
             elif not c.adaptive:
                 step = c.step
 
@@ -664,6 +675,10 @@ class _Run:
             t = t1
             if any(abs(t - o) <= 1e-9 * max(h, 1.0) for o in outputs):
                 recorder.store_field(t, u1)
+            if any(abs(t - e) <= 1e-9 * max(h, 1.0) for e in breakpoints) or any(
+                abs(t - o) <= 1e-9 * max(h, 1.0) for o in outputs
+            ):
+                anchor = t
             if any(abs(t - b) <= 1e-9 * max(h, 1.0) for b in breakpoints):
                 # A schedule jumps or kinks here: start again as at t = 0, so BDF2 does not
                 # difference across the jump and Crank-Nicolson does not ring after it.
@@ -805,6 +820,12 @@ class _Run:
                 f"not met by end_time = {c.end_time:g} s"
             )
         return RunChecks(balance, excursion, ratio, tuple(warnings))
+
+
+def _aligned(time: float, step: float) -> bool:
+    """True when ``time`` is a whole number of ``step``s from 0."""
+    cycles = time / step
+    return abs(cycles - round(cycles)) <= 1e-6
 
 
 def _reached(histories, stop: StopWhen) -> bool:
