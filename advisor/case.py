@@ -31,7 +31,7 @@ from fem import (
     Steps,
     StopWhen,
     ThermalModel,
-    library,
+    solids,
 )
 from fem.boundary import conditions as check_conditions
 from geometries import (
@@ -783,16 +783,16 @@ def _read_materials(root: _Table, regions: set[str]) -> dict:
 
 
 def _read_material(spec: _Table) -> Material:
-    if spec.has("library"):
-        name = spec.text("library")
-        if name not in library.MATERIALS:
+    if spec.has("solid"):
+        name = spec.text("solid")
+        if name not in solids.MATERIALS:
             spec.fail(
-                "library",
+                "solid",
                 "is not in the material library"
-                + _suggest(name, library.MATERIALS)
+                + _suggest(name, solids.MATERIALS)
                 + " (see `soakwise materials`)",
             )
-        return library.MATERIALS[name]
+        return solids.MATERIALS[name]
     values = {}
     for key, kind in (
         ("conductivity", "conductivity"),

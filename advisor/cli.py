@@ -235,15 +235,15 @@ def _new(args) -> int:
 
 
 def _materials(args) -> int:
-    from fem import library
+    from fem import solids
 
-    for name, m in sorted(library.MATERIALS.items()):
+    for name, m in sorted(solids.MATERIALS.items()):
         print(
             f"{name:36s} k = {m.conductivity:7.4g} W/(m*K)  rho = {m.density:6.0f} kg/m^3  "
             f"c = {m.specific_heat:5.0f} J/(kg*K)"
         )
     print(
-        f"\nSource: {next(iter(library.MATERIALS.values())).source}; values near room "
+        f"\nSource: {next(iter(solids.MATERIALS.values())).source}; values near room "
         "temperature. Use a property table from your supplier's data where it matters."
     )
     return EXIT_OK

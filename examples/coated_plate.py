@@ -10,7 +10,7 @@ import sys
 from pathlib import Path
 
 from advisor import assess, write_results
-from fem import Convection, Insulated, Material, ThermalModel, library, solve
+from fem import Convection, Insulated, Material, ThermalModel, solids, solve
 from geometries import Composite, Rectangle
 
 
@@ -28,7 +28,7 @@ def run(out=None, mesh_size=0.0005, end_time=900.0):
     ceramic = Material(1.2, 5600.0, 500.0, name="ceramic coating (demo values)")
     model = ThermalModel(
         section,
-        {"steel": library.material("carbon steel, plain"), "coating": ceramic},
+        {"steel": solids.material("carbon steel, plain"), "coating": ceramic},
         {
             "back": Insulated(),
             "sides": Insulated("symmetry"),

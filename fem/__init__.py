@@ -3,7 +3,7 @@
 This package knows heat and numerics only: no lumped models, no reports.
 """
 
-from . import library
+from . import solids
 from .boundary import (
     BoundaryCondition,
     Convection,
@@ -46,6 +46,6 @@ __all__ = [
     "StopWhen",
     "ThermalModel",
     "assemble",
-    "library",
+    "solids",
     "solve",
 ]

@@ -132,7 +132,7 @@ MALFORMED = [
     ),
     row(
         "unknown_library_material.toml",
-        "material.library",
+        "material.solid",
         "is not in the material library",
         15,
     ),
@@ -399,8 +399,8 @@ def test_new_does_not_overwrite_without_force(tmp_path, capsys):
 def test_materials_lists_the_library(capsys):
     assert main(["materials"]) == EXIT_OK
     out = capsys.readouterr().out
-    assert fem.library.MATERIALS
-    for name in fem.library.MATERIALS:
+    assert fem.solids.MATERIALS
+    for name in fem.solids.MATERIALS:
         assert name in out
     assert "carbon steel, plain" in out
 

@@ -60,7 +60,7 @@ from fem import (
     Steps,
     StopWhen,
     ThermalModel,
-    library,
+    solids,
     solve,
 )
 from geometries import Composite, Rectangle
@@ -990,12 +990,12 @@ def test_non_finite_sinusoid_is_refused(mean, amplitude):
 
 
 def test_library_has_stainless_304_and_lists_names_on_a_typo():
-    steel = library.material("stainless steel AISI 304")
+    steel = solids.material("stainless steel AISI 304")
     # Incropera Table A.1, AISI 304 at 300 K (from memory): 7900 kg/m^3, 477 J/(kg K),
     # 14.9 W/(m K).
     assert steel.density == pytest.approx(7900.0)
     assert steel.specific_heat == pytest.approx(477.0)
     assert steel.conductivity == pytest.approx(14.9)
     with pytest.raises(ModelError, match="stainless steel AISI 304") as failure:
-        library.material("stainless steel 304")
+        solids.material("stainless steel 304")
     assert "'stainless steel 304'" in str(failure.value)
