@@ -62,34 +62,19 @@ def _table(times, values, what: str) -> tuple[np.ndarray, np.ndarray]:
 
 
 @dataclass(frozen=True)
-class PiecewiseLinear:
-    """Linear between (time, value) points; held at the first and last value outside them.
-
-    Parameters
-    ----------
-    times : sequence of float
-        Strictly increasing times in s, >= 0.
-    values : sequence of float
-        Values at those times, in the unit of the quantity scheduled.
-    """
+class _TimeTable:
+    """(time, value) pairs: what piecewise-linear and stepped schedules share."""
 
     times: tuple[float, ...]
     values: tuple[float, ...]
 
     def __post_init__(self) -> None:
-        t, v = _table(self.times, self.values, "PiecewiseLinear")
+        t, v = _table(self.times, self.values, type(self).__name__)
         object.__setattr__(self, "times", tuple(t.tolist()))
         object.__setattr__(self, "values", tuple(v.tolist()))
 
-    def __call__(self, time: float) -> float:
-        return float(np.interp(time, self.times, self.values))
-
     def breakpoints(self, end_time: float) -> tuple[float, ...]:
         return tuple(t for t in self.times if 0 < t < end_time)
-
-    def extremes(self, end_time: float) -> tuple[float, float]:
-        inside = [self(t) for t in (0.0, end_time, *self.breakpoints(end_time))]
-        return (min(inside), max(inside))
 
     def bounds(self) -> tuple[float, float]:
         """Smallest and largest value over all time."""
@@ -101,7 +86,27 @@ class PiecewiseLinear:
 
 
 @dataclass(frozen=True)
-class Steps:
+class PiecewiseLinear(_TimeTable):
+    """Linear between (time, value) points; held at the first and last value outside them.
+
+    Parameters
+    ----------
+    times : sequence of float
+        Strictly increasing times in s, >= 0.
+    values : sequence of float
+        Values at those times, in the unit of the quantity scheduled.
+    """
+
+    def __call__(self, time: float) -> float:
+        return float(np.interp(time, self.times, self.values))
+
+    def extremes(self, end_time: float) -> tuple[float, float]:
+        inside = [self(t) for t in (0.0, end_time, *self.breakpoints(end_time))]
+        return (min(inside), max(inside))
+
+
+@dataclass(frozen=True)
+class Steps(_TimeTable):
     """Piecewise constant: ``values[i]`` from ``times[i]`` until ``times[i + 1]``; before the
     first time the first value holds.
 
@@ -113,36 +118,13 @@ class Steps:
         The value that starts at each time.
     """
 
-    times: tuple[float, ...]
-    values: tuple[float, ...]
-
-    def __post_init__(self) -> None:
-        t, v = _table(self.times, self.values, "Steps")
-        object.__setattr__(self, "times", tuple(t.tolist()))
-        object.__setattr__(self, "values", tuple(v.tolist()))
-
     def __call__(self, time: float) -> float:
         i = int(np.searchsorted(self.times, time, side="right")) - 1
         return self.values[max(i, 0)]
 
-    def value_after(self, time: float) -> float:
-        """The value just after ``time`` (a step starts exactly at its time)."""
-        return self(time)
-
-    def breakpoints(self, end_time: float) -> tuple[float, ...]:
-        return tuple(t for t in self.times if 0 < t < end_time)
-
     def extremes(self, end_time: float) -> tuple[float, float]:
         inside = [self(t) for t in (0.0, *self.breakpoints(end_time))]
         return (min(inside), max(inside))
-
-    def bounds(self) -> tuple[float, float]:
-        """Smallest and largest value over all time."""
-        return (min(self.values), max(self.values))
-
-    @property
-    def is_constant(self) -> bool:
-        return len(set(self.values)) == 1
 
 
 @dataclass(frozen=True)

@@ -23,6 +23,26 @@ def _require(condition: bool, message: str) -> None:
         raise GeometryError(message)
 
 
+def _flanged(profile: str, depth, width, web_thickness, flange_thickness, flanges: int):
+    """Checked dimensions of a flanged section: ``flanges`` flanges must fit in the depth and
+    the web must be thinner than the flanges are wide."""
+    h, b, tw, tf = (
+        check_length(v, f"{profile} {n}")
+        for n, v in (
+            ("depth", depth),
+            ("width", width),
+            ("web_thickness", web_thickness),
+            ("flange_thickness", flange_thickness),
+        )
+    )
+    if flanges == 2:
+        _require(2 * tf < h, f"{profile} flanges ({tf} m each) do not fit in the depth {h} m")
+    else:
+        _require(tf < h, f"{profile} flange_thickness {tf} m must be below the depth {h} m")
+    _require(tw < b, f"{profile} web_thickness {tw} m must be below the width {b} m")
+    return h, b, tw, tf
+
+
 def angle(
     height: float,
     width: float,
@@ -57,17 +77,7 @@ def channel(
 ) -> Outline:
     """A channel (C/U) section with parallel flanges: ``depth`` along y, flanges ``width``
     along x."""
-    h, b, tw, tf = (
-        check_length(v, f"channel {n}")
-        for n, v in (
-            ("depth", depth),
-            ("width", width),
-            ("web_thickness", web_thickness),
-            ("flange_thickness", flange_thickness),
-        )
-    )
-    _require(2 * tf < h, f"channel flanges ({tf} m each) do not fit in the depth {h} m")
-    _require(tw < b, f"channel web_thickness {tw} m must be below the width {b} m")
+    h, b, tw, tf = _flanged("channel", depth, width, web_thickness, flange_thickness, 2)
     y0, y1 = -h / 2, h / 2
     points = [
         (0, y0),
@@ -94,17 +104,7 @@ def tee(
     region: str = "solid",
 ) -> Outline:
     """A tee section: flange ``width`` along x on top, total ``depth`` along y."""
-    h, b, tw, tf = (
-        check_length(v, f"tee {n}")
-        for n, v in (
-            ("depth", depth),
-            ("width", width),
-            ("web_thickness", web_thickness),
-            ("flange_thickness", flange_thickness),
-        )
-    )
-    _require(tf < h, f"tee flange_thickness {tf} m must be below the depth {h} m")
-    _require(tw < b, f"tee web_thickness {tw} m must be below the width {b} m")
+    h, b, tw, tf = _flanged("tee", depth, width, web_thickness, flange_thickness, 1)
     yf = h - tf
     points = [
         (-tw / 2, 0),
@@ -132,17 +132,7 @@ def i_section(
 ) -> Outline:
     """An I or H section with parallel flanges, centred on the origin: ``depth`` along y,
     flanges ``width`` along x."""
-    h, b, tw, tf = (
-        check_length(v, f"i_section {n}")
-        for n, v in (
-            ("depth", depth),
-            ("width", width),
-            ("web_thickness", web_thickness),
-            ("flange_thickness", flange_thickness),
-        )
-    )
-    _require(2 * tf < h, f"i_section flanges ({tf} m each) do not fit in the depth {h} m")
-    _require(tw < b, f"i_section web_thickness {tw} m must be below the width {b} m")
+    h, b, tw, tf = _flanged("i_section", depth, width, web_thickness, flange_thickness, 2)
     x, y, w = b / 2, h / 2, tw / 2
     points = [
         (-x, -y),
