@@ -43,6 +43,11 @@ class Constant:
     def is_constant(self) -> bool:
         return True
 
+    @property
+    def is_stepwise(self) -> bool:
+        """True when the value changes only by jumps at the breakpoints."""
+        return True
+
 
 def _table(times, values, what: str) -> tuple[np.ndarray, np.ndarray]:
     t = np.asarray(times, dtype=float)
@@ -83,6 +88,11 @@ class _TimeTable:
     @property
     def is_constant(self) -> bool:
         return len(set(self.values)) == 1
+
+    @property
+    def is_stepwise(self) -> bool:
+        """True when the value changes only by jumps at the breakpoints."""
+        return self.is_constant
 
 
 @dataclass(frozen=True)
@@ -125,6 +135,11 @@ class Steps(_TimeTable):
     def extremes(self, end_time: float) -> tuple[float, float]:
         inside = [self(t) for t in (0.0, *self.breakpoints(end_time))]
         return (min(inside), max(inside))
+
+    @property
+    def is_stepwise(self) -> bool:
+        """True when the value changes only by jumps at the breakpoints."""
+        return True
 
 
 @dataclass(frozen=True)
@@ -180,6 +195,11 @@ class Periodic:
     def is_constant(self) -> bool:
         return self.schedule.is_constant
 
+    @property
+    def is_stepwise(self) -> bool:
+        """True when the value changes only by jumps at the breakpoints."""
+        return self.schedule.is_stepwise
+
 
 @dataclass(frozen=True)
 class Sinusoid:
@@ -223,6 +243,11 @@ class Sinusoid:
     @property
     def is_constant(self) -> bool:
         return self.amplitude == 0
+
+    @property
+    def is_stepwise(self) -> bool:
+        """True when the value changes only by jumps at the breakpoints."""
+        return self.is_constant
 
 
 Schedule = Constant | PiecewiseLinear | Steps | Periodic | Sinusoid

@@ -41,6 +41,14 @@ class SolverStats:
         Degrees of freedom.
     assembly_seconds, factorisation_seconds, stepping_seconds : float
         Wall-clock time of each phase in s.
+    solves : int
+        Triangular solves with a factorised matrix (one per linear step or Newton iteration;
+        one per basis vector, plus one per step, for exponential steps).
+    krylov_dimension : int
+        Exponential steps: the largest Krylov basis a step used (0 for the other methods).
+    error_estimate : float
+        Exponential steps: the largest error estimate in K at any node and record time (0
+        for the other methods, whose local errors are controlled per step).
     """
 
     method: str
@@ -58,6 +66,9 @@ class SolverStats:
     assembly_seconds: float
     factorisation_seconds: float
     stepping_seconds: float
+    solves: int = 0
+    krylov_dimension: int = 0
+    error_estimate: float = 0.0
 
 
 @dataclass(frozen=True)

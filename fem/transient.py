@@ -22,6 +22,7 @@ import numpy as np
 import scipy.sparse.linalg as spla
 
 from .errors import ModelError, SolverError
+from .exponential_run import check_exponential, run_exponential
 from .fields import FieldSeries
 from .integrators import (
     METHODS,
@@ -37,6 +38,7 @@ from .solution import RunChecks, Solution, SolverStats
 from .system import assemble, initial_field, inner
 
 DEFAULT_STEPS = 500
+DEFAULT_RECORDS = 500  # exponential steps: history records over the run (plus start-up ones)
 DEFAULT_OUTPUTS = 50
 ENERGY_BALANCE_TOLERANCE = 1e-8
 EXCURSION_TOLERANCE = 1e-3  # as a fraction of the temperature range
@@ -44,6 +46,7 @@ DEFAULT_RELATIVE_TOLERANCE = 1e-4  # local error, as a fraction of the temperatu
 FACTOR_CACHE = 4
 LADDER = 2.0  # adaptive steps take values initial_step · 2^k, so few factorisations are made
 ORDERING = "MMD_AT_PLUS_A"  # minimum degree on AᵀA + A: the least fill for these matrices
+SOLVERS = (*METHODS, "exponential")
 
 
 @dataclass(frozen=True)
@@ -91,16 +94,21 @@ def solve(
     end_time : float
         Duration in s; > 0. With ``stop`` it is the longest the run may take.
     method : str
-        ``"crank-nicolson"`` (default), ``"bdf2"`` or ``"backward-euler"``.
+        ``"crank-nicolson"`` (default), ``"bdf2"``, ``"backward-euler"`` or
+        ``"exponential"``: for linear models whose schedules only jump, one step from
+        breakpoint to breakpoint, exact in time to ``tolerance`` (see
+        :mod:`fem.exponential`); one factorisation and a few tens of triangular solves.
     time_step : float, optional
         Fixed step in s; for fixed steps without ``output_times``, the step used is the largest
         one not above it that fits a whole number of times into every output interval. With
-        ``adaptive`` it is the first step.
+        ``adaptive`` it is the first step. With ``"exponential"`` it is the spacing of the
+        history records (default ``end_time / 500``, refined after every breakpoint).
     adaptive : bool, optional
         Control the step by the local error estimate. Default: adaptive when no ``time_step``
         is given.
     tolerance : float, optional
-        Largest local error per step in K for adaptive steps. Default: 1e-4 of the range of
+        Largest local error per step in K for adaptive steps (with ``"exponential"``: the
+        largest error estimate at any node and record time). Default: 1e-4 of the range of
         initial and boundary temperatures.
     min_step, max_step : float, optional
         Bounds of adaptive steps in s (default 1e-9·end_time and end_time).
@@ -204,13 +212,17 @@ class _RunControls:
         if not _positive(end_time):
             raise ModelError(f"end_time must be a finite time > 0 s, got {end_time!r}")
         end = float(end_time)
-        if method not in METHODS:
-            raise ModelError(f"method must be one of {METHODS}, got {method!r}")
+        if method not in SOLVERS:
+            raise ModelError(f"method must be one of {SOLVERS}, got {method!r}")
+        if method == "exponential":
+            check_exponential(model)
         if time_step is not None and (not _positive(time_step) or time_step > end):
             raise ModelError(
                 f"time_step must be a time in (0, end_time = {end_time}] s, got {time_step!r}"
             )
         adaptive = time_step is None if adaptive is None else bool(adaptive)
+        if method == "exponential":
+            adaptive = False  # exact in time between breakpoints: there is no step to adapt
         if startup_steps is None:
             startup_steps = 2 if method == "crank-nicolson" else 1
         if (
@@ -242,6 +254,8 @@ class _RunControls:
             step = float(time_step)
         elif adaptive:
             step = min(_surface_diffusion_time(model), end / 100)
+        elif method == "exponential":
+            step = end / DEFAULT_RECORDS
         else:
             step = end / DEFAULT_STEPS
         if not adaptive and output_times is None:
@@ -364,6 +378,7 @@ class _Run:
         self.factorisation_seconds = 0.0
         self.newton_iterations = 0
         self.max_iterations = 0
+        self.solves = 0
         self.last_increment = 0.0
 
     # -- linear algebra ---------------------------------------------------------------------
@@ -386,7 +401,14 @@ class _Run:
         return factor
 
     def _linear_factor(self, formula: StepFormula, step: float, time: float):
-        scale = formula.matrix_scale(step)
+        return self._cached_factor(formula.matrix_scale(step), time)
+
+    def _shifted_solver(self, shift: float, time: float):
+        """x ↦ (M + shift·A(time))⁻¹x on the free degrees of freedom."""
+        return self._cached_factor(shift, time).solve
+
+    def _cached_factor(self, scale: float, time: float):
+        """The LU of M + scale·A(time), kept in a small cache."""
         key = (float(f"{scale:.12e}"), self.system.exchange_key(time))
         if key in self.factors:
             self.factors.move_to_end(key)
@@ -464,6 +486,7 @@ class _Run:
             u[free] = factor.solve(known)
         else:  # every degree of freedom is free: no gather and scatter around the solve
             u = factor.solve(rhs)
+        self.solves += 1
         self.newton_iterations += 1
         self.max_iterations = max(self.max_iterations, 1)
 
@@ -519,6 +542,7 @@ class _Run:
                 s.outflow_tangent(u, inside1)
             )
             change = self._factor(jacobian, symmetric=self.symmetric_tangent).solve(-r[free])
+            self.solves += 1
             u[free] += change
             largest = float(np.abs(change).max(initial=0.0))
             if largest <= self.c.newton_tolerance:
@@ -563,6 +587,8 @@ class _Run:
         recorder.record(0.0, u, stored, 0.0, dict.fromkeys(s.fixed_dofs, 0.0))
         recorder.store_field(0.0, u)
         initial_stored = stored
+        if c.method == "exponential":
+            return self._exponential(recorder, started, assembled, initial_stored)
 
         breakpoints = _breakpoints(model, c.end_time)
         events = sorted(set(c.output_times) | breakpoints | {c.end_time})
@@ -718,6 +744,7 @@ class _Run:
             assembly_seconds=assembled - started,
             factorisation_seconds=self.factorisation_seconds,
             stepping_seconds=finished - assembled - self.factorisation_seconds,
+            solves=self.solves,
         )
         checks = self._checks(
             histories, initial_stored, smallest if steps else c.step, startup_done
@@ -728,6 +755,43 @@ class _Run:
             checks=checks,
             final_state=u1.copy() if steps else u.copy(),
             stop_time=stop_time,
+            **histories,
+        )
+
+    def _exponential(self, recorder, started, assembled, initial_stored) -> Solution:
+        c = self.c
+        outcome = run_exponential(
+            self, recorder, sorted(_breakpoints(self.model, c.end_time)), c.step
+        )
+        finished = clock.perf_counter()
+        histories = recorder.histories()
+        stats = SolverStats(
+            method=c.method,
+            adaptive=False,
+            steps=outcome.steps,
+            rejected_steps=0,
+            startup_steps=0,
+            time_step=float(outcome.largest),
+            smallest_step=float(outcome.smallest),
+            largest_step=float(outcome.largest),
+            factorisations=self.factorisations,
+            newton_iterations=0,
+            max_newton_iterations=0,
+            unknowns=self.system.size,
+            assembly_seconds=assembled - started,
+            factorisation_seconds=self.factorisation_seconds,
+            stepping_seconds=finished - assembled - self.factorisation_seconds,
+            solves=outcome.solves,
+            krylov_dimension=outcome.dimension,
+            error_estimate=outcome.estimate,
+        )
+        checks = self._checks(histories, initial_stored, outcome.smallest, 0)
+        return Solution(
+            model=self.model,
+            stats=stats,
+            checks=checks,
+            final_state=outcome.final_state.copy(),
+            stop_time=outcome.stop_time,
             **histories,
         )
 
@@ -771,7 +835,10 @@ class _Run:
         scale = max(float(np.abs(stored).max()), capacity * _temperature_span(model))
         balance = float(np.abs(stored - histories["absorbed_heat"]).max()) / scale
         limit = (
-            ENERGY_BALANCE_TOLERANCE
+            # exponential steps balance to their own accuracy, not to round-off
+            max(ENERGY_BALANCE_TOLERANCE, c.tolerance / _temperature_span(model))
+            if c.method == "exponential"
+            else ENERGY_BALANCE_TOLERANCE
             if model.is_linear
             else max(
                 ENERGY_BALANCE_TOLERANCE,
