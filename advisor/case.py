@@ -260,7 +260,7 @@ SHAPES = (
     "rectangular_tube",
     "round_tube",
 )
-METHODS = ("crank-nicolson", "bdf2", "backward-euler")
+METHODS = ("crank-nicolson", "bdf2", "backward-euler", "exponential")
 QUANTITIES = ("slowest", "mean", "peak_difference", "time_to_target")
 
 

@@ -301,7 +301,8 @@ def _report(assessment, folder: Path, files: list[Path]) -> None:
     stats = solution.stats
     log.debug(
         f"{stats.unknowns} unknowns, {stats.steps} steps ({stats.rejected_steps} rejected), "
-        f"{stats.factorisations} factorisations, {stats.newton_iterations} Newton iterations, "
+        f"{stats.factorisations} factorisations, {stats.solves} solves, "
+        f"{stats.newton_iterations} Newton iterations, "
         f"stepping {stats.stepping_seconds:.2f} s"
     )
     for bi in assessment.biot:

@@ -115,7 +115,9 @@ def _solve(model, params: dict, spy: FactorSpy, reporter=None, field_folder=None
         "output_interval": end / params.get("outputs", 50),
         "field_folder": field_folder,
     }
-    if params.get("adaptive"):
+    if kwargs["method"] == "exponential":
+        kwargs["tolerance"] = params["tolerance"]
+    elif params.get("adaptive"):
         kwargs.update(adaptive=True, tolerance=params["tolerance"])
     else:
         kwargs["time_step"] = end / params["steps"]
@@ -259,7 +261,7 @@ def task_ivp(params: dict, reporter) -> dict:
     return result
 
 
-# adaptive: local tolerance × initial ΔT (K); fixed: steps to the end; ivp: rtol
+# adaptive and exponential: tolerance × initial ΔT (K); fixed: steps to the end; ivp: rtol
 ADAPTIVE_LADDER = (1e-1, 3e-2, 1e-2, 3e-3, 1e-3, 3e-4, 1e-4, 3e-5, 1e-5, 3e-6, 1e-6)
 FIXED_LADDER = (50, 100, 200, 400, 800, 1600, 3200, 6400, 12800)
 IVP_LADDER = (1e-2, 3e-3, 1e-3, 3e-4, 1e-4, 3e-5, 1e-5, 3e-6, 1e-6, 3e-7, 1e-7)
@@ -278,6 +280,10 @@ def task_calibrate(params: dict, reporter) -> dict:
     ladders = {
         "adaptive": [
             {"adaptive": True, "tolerance": f * TEMPERATURE_DROP, "fraction": f}
+            for f in ADAPTIVE_LADDER
+        ],
+        "exponential": [
+            {"method": "exponential", "tolerance": f * TEMPERATURE_DROP, "fraction": f}
             for f in ADAPTIVE_LADDER
         ],
         "fixed": [{"steps": n} for n in FIXED_LADDER],

@@ -550,6 +550,21 @@ class Suite:
                 ).values()
             )
 
+        def exponential(rung):
+            fraction = ADAPTIVE_LADDER[rung]
+            from .cases import TEMPERATURE_DROP
+
+            return list(
+                self.soakwise(
+                    f"{key}-exponential-r{rung}",
+                    {**base, "method": "exponential", "tolerance": fraction * TEMPERATURE_DROP},
+                    actual,
+                    case=key,
+                    method="exponential",
+                    rung=rung,
+                ).values()
+            )
+
         def fixed(rung):
             return list(
                 self.soakwise(
@@ -576,6 +591,7 @@ class Suite:
                 )
             ]
 
+        with_retries("exponential", exponential, len(ADAPTIVE_LADDER))
         with_retries("adaptive", adaptive, len(ADAPTIVE_LADDER))
         with_retries("fixed", fixed, len(FIXED_LADDER))
         with_retries("ivp", ivp, len(IVP_LADDER))

@@ -519,16 +519,11 @@ def _checks_part(a: Assessment) -> Part:
                 "Smallest step against the surface elements' diffusion time",
                 f"{checks.step_to_surface_diffusion:.3g}",
             ),
-            (
-                "Time stepping",
-                f"{stats.method}, {'adaptive' if stats.adaptive else 'fixed'} step "
-                f"{stats.smallest_step:.4g} to {stats.largest_step:.4g} s, {stats.steps} steps "
-                f"({stats.rejected_steps} rejected, {stats.startup_steps} start-up)",
-            ),
+            ("Time stepping", _stepping(stats)),
             (
                 "Linear algebra",
                 f"{stats.unknowns} unknowns, {stats.factorisations} factorisations, "
-                f"{stats.newton_iterations} Newton iterations",
+                f"{stats.solves} triangular solves, {stats.newton_iterations} Newton iterations",
             ),
             (
                 "Wall-clock time",
@@ -543,3 +538,17 @@ def _checks_part(a: Assessment) -> Part:
         else Paragraph("Every check passed.")
     )
     return Part(HEADINGS["checks"], "checks", (facts, warnings))
+
+
+def _stepping(stats) -> str:
+    if stats.method == "exponential":
+        return (
+            f"exponential, {stats.steps} step(s) from breakpoint to breakpoint, exact in time "
+            f"to an estimated {stats.error_estimate:.3g} K (Krylov basis of up to "
+            f"{stats.krylov_dimension} vectors)"
+        )
+    return (
+        f"{stats.method}, {'adaptive' if stats.adaptive else 'fixed'} step "
+        f"{stats.smallest_step:.4g} to {stats.largest_step:.4g} s, {stats.steps} steps "
+        f"({stats.rejected_steps} rejected, {stats.startup_steps} start-up)"
+    )
