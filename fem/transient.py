@@ -4,9 +4,11 @@ Schemes (see :mod:`fem.integrators`): Crank–Nicolson with backward-Euler start
 (Rannacher's start-up: they damp the fast modes a sudden plunge excites and use the same matrix
 M + ½·Δt·A as Crank–Nicolson), BDF2 started by backward Euler, or backward Euler. Steps are
 fixed or chosen by a local error estimate; no step crosses a schedule breakpoint or an output
-time. Each step is solved by Newton's method on the free degrees of freedom; a linear problem
-converges in one iteration with a factorisation kept in a small cache, so a linear run with a
-fixed step factorises once.
+time. Each step is solved by Newton's method on the free degrees of freedom (simplified: the
+factorised tangent is kept while it contracts well); a linear problem converges in one
+iteration with a factorisation kept in a small cache, so a linear run with a fixed step
+factorises once. Linear models whose schedules only jump can instead take exponential steps
+(:mod:`fem.exponential_run`).
 """
 
 from __future__ import annotations
@@ -44,6 +46,7 @@ ENERGY_BALANCE_TOLERANCE = 1e-8
 EXCURSION_TOLERANCE = 1e-3  # as a fraction of the temperature range
 DEFAULT_RELATIVE_TOLERANCE = 1e-4  # local error, as a fraction of the temperature range
 FACTOR_CACHE = 4
+TANGENT_RATE = 0.5  # a kept Newton tangent must shrink the change at least this much per iteration
 LADDER = 2.0  # adaptive steps take values initial_step · 2^k, so few factorisations are made
 ORDERING = "MMD_AT_PLUS_A"  # minimum degree on AᵀA + A: the least fill for these matrices
 SOLVERS = (*METHODS, "exponential")
@@ -379,6 +382,7 @@ class _Run:
         self.newton_iterations = 0
         self.max_iterations = 0
         self.solves = 0
+        self.tangent = None  # (key, factor) of the Newton tangent kept for simplified Newton
         self.last_increment = 0.0
 
     # -- linear algebra ---------------------------------------------------------------------
@@ -534,19 +538,31 @@ class _Run:
                 + formula.beta * s.net_outflow(field, inside1)
             )
 
+        # Simplified Newton: the factorised tangent is kept across iterations and steps (of the
+        # same size and formula) while it still contracts the change by TANGENT_RATE or
+        # better; otherwise it is refactorised at the current iterate. A step then costs a
+        # few solves instead of a factorisation per iteration.
+        key = (float(f"{formula.a[0] / step:.12e}"), formula.beta)
+        refresh = self.tangent is None or self.tangent[0] != key
+        previous = math.inf
         iteration = 0
         while iteration < self.c.max_newton_iterations:
             iteration += 1
             r = residual(u)
-            jacobian = (formula.a[0] / step) * s.capacity_tangent(u) + formula.beta * (
-                s.outflow_tangent(u, inside1)
-            )
-            change = self._factor(jacobian, symmetric=self.symmetric_tangent).solve(-r[free])
+            if refresh:
+                jacobian = (formula.a[0] / step) * s.capacity_tangent(u) + formula.beta * (
+                    s.outflow_tangent(u, inside1)
+                )
+                self.tangent = (key, self._factor(jacobian, symmetric=self.symmetric_tangent))
+                refresh = False
+            change = self.tangent[1].solve(-r[free])
             self.solves += 1
             u[free] += change
             largest = float(np.abs(change).max(initial=0.0))
             if largest <= self.c.newton_tolerance:
                 break
+            refresh = largest > TANGENT_RATE * previous
+            previous = largest
         else:
             raise SolverError(
                 f"Newton's method did not converge at t = {t1:.6g} s (step {step:.3g} s) in "
