@@ -76,7 +76,7 @@ def solver_rows(suite, bandwidth) -> list[dict]:
             row["factor_nnz"] = factor["nnz_L"] + factor["nnz_U"]
             row["solve_only_seconds"] = factor["solve_only_seconds"]
         factors = d.get("factors") or {}
-        row["solves"] = factors.get("solves")
+        row["solves"] = (d.get("stats") or {}).get("solves")  # the solver's own count
         if factors.get("solves"):
             row["triangular_solve_per_step_seconds"] = factors["solve_seconds"] / max(
                 d.get("steps") or factors["solves"], 1
@@ -342,7 +342,7 @@ def _why(row) -> str:
 
 
 def _pct(x) -> str:
-    return "-" if x is None else f"{x:.3%}"
+    return "-" if x is None else f"{100 * x:.3g} %"
 
 
 def _short(n) -> str:
