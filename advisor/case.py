@@ -34,6 +34,7 @@ from fem import (
     solids,
 )
 from fem.boundary import conditions as check_conditions
+from fem.exponential_run import check_exponential_parts
 from geometries import (
     AXIS_GROUP,
     Annulus,
@@ -403,6 +404,11 @@ def _read_case(root: _Table, path: Path) -> Case:
     if end_time <= 0:
         run.fail("end_time", f"must be > 0 s, got {end_time:g} s")
     options: dict = {"method": run.text("method", "crank-nicolson", METHODS)}
+    if options["method"] == "exponential":
+        try:
+            check_exponential_parts(materials.values(), boundaries, sources)
+        except ModelError as error:
+            run.fail("method", str(error))
     for key, kind in (
         ("time_step", "time"),
         ("output_interval", "time"),

@@ -15,8 +15,10 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .boundary import Radiation, conditions
 from .errors import ModelError, SolverError
 from .exponential import KrylovExponential, krylov_exponential
+from .schedules import as_schedule
 from .system import inner
 
 SHIFT_FRACTION = 1 / 32  # γ ≈ this × the interval (rounded to a power of two seconds)
@@ -40,25 +42,38 @@ class ExponentialOutcome:
 
 def check_exponential(model) -> None:
     """Raise ModelError unless ``model`` can be solved by exponential steps."""
-    if not model.is_linear:
+    check_exponential_parts(model.materials.values(), model.boundaries, model.heat_sources)
+
+
+def check_exponential_parts(materials, boundaries, heat_sources) -> None:
+    """The same check on a model's parts: materials, boundaries (group → condition or
+    conditions) and heat sources (region → value or schedule), before any mesh exists."""
+    if not all(m.is_constant for m in materials) or any(
+        isinstance(c, Radiation) for _, c in _each(boundaries)
+    ):
         raise ModelError(
             "method 'exponential' needs a linear model (constant properties, no radiation); "
             "use 'crank-nicolson'"
         )
-    named = []
-    for name, c in model.convection.items():
-        named += [(name, "heat_transfer_coefficient", c.heat_transfer_coefficient)]
-        named += [(name, "ambient", c.ambient)]
-    named += [(name, "flux", c.flux) for name, c in model.fluxes.items()]
-    named += [(name, "temperature", c.temperature) for name, c in model.fixed.items()]
-    named += [(region, "heat source", q) for region, q in model.heat_sources.items()]
-    for where, what, schedule in named:
+    named = [(region, "heat source", q) for region, q in heat_sources.items()]
+    for group, c in _each(boundaries):
+        for what in ("heat_transfer_coefficient", "ambient", "flux", "temperature"):
+            if hasattr(c, what):
+                named.append((group, what, getattr(c, what)))
+    for where, what, value in named:
+        schedule = as_schedule(value, what)
         if not schedule.is_stepwise:
             raise ModelError(
                 f"method 'exponential' needs schedules that only jump; the {what} of "
                 f"{where!r} is {type(schedule).__name__}, which changes between its "
                 "breakpoints: use 'crank-nicolson'"
             )
+
+
+def _each(boundaries):
+    for group, value in boundaries.items():
+        for condition in conditions(value, group):
+            yield group, condition
 
 
 def run_exponential(run, recorder, breakpoints, record_step: float) -> ExponentialOutcome:

@@ -173,6 +173,8 @@ MALFORMED = [
         23,
     ),
     row("unknown_method.toml", "run.method", "did you mean 'crank-nicolson'", 34),
+    row("exponential_with_radiation.toml", "run.method", "needs a linear model", 35),
+    row("exponential_with_linear_ambient.toml", "run.method", "is PiecewiseLinear", 34),
     # not TOML at all
     row("toml_syntax_error.toml", None, "not valid TOML", 10),
     row("duplicate_key.toml", None, "not valid TOML", 11),
@@ -431,3 +433,29 @@ def test_check_reports_biot_numbers_and_direction(tmp_path, capsys):
     assert "ahead of the slowest point" in direction[1]
     assert "too early" in direction[1]
     assert [p.name for p in tmp_path.iterdir()] == ["quench-bar.toml"]
+
+
+def test_exponential_steps_from_a_case_agree_with_small_crank_nicolson_steps(tmp_path):
+    """The case key reaches the solver, and the two time integrations of one model agree: the
+    exponential step is exact in time to its tolerance, Crank–Nicolson at 0.25 s is second
+    order (its time error at Fo ≈ 0.002 per step is far below the 0.05 K compared here)."""
+    path = tmp_path / "quench-bar.toml"
+    assert main(["--quiet", "new", "quench-bar", "--out", str(path)]) == EXIT_OK
+    case = load_case(
+        path,
+        overrides={
+            "section.mesh_size": "4 mm",
+            "run.end_time": "5 min",
+            "run.method": "exponential",
+            "run.tolerance": "0.01 K",
+        },
+    )
+    assert case.run_options["method"] == "exponential"
+    model = case.model()
+    exponential = fem.solve(model, case.end_time, **case.run_options)
+    assert exponential.stats.method == "exponential"
+    assert exponential.stats.steps == 1 and exponential.stats.factorisations == 1
+    stepped = fem.solve(model, case.end_time, method="crank-nicolson", time_step=0.25)
+    core = np.interp(exponential.times, stepped.times, stepped.probes["core"])
+    later = exponential.times >= 5.0  # interpolation between 0.25 s steps needs a smooth curve
+    np.testing.assert_allclose(exponential.probes["core"][later], core[later], atol=0.05)
