@@ -22,7 +22,7 @@ from .schedules import as_schedule
 from .system import inner
 
 SHIFT_FRACTION = 1 / 32  # γ ≈ this × the interval (rounded to a power of two seconds)
-STARTUP_REFINEMENT = 10  # record times at interval/2^k, k = 1..this, after each breakpoint
+STARTUP_REFINEMENT = 10  # record times at step/2^k, k = 1..this, after each breakpoint
 MAX_DIMENSION = 100
 BASIS_MEMORY = 2e9  # bytes the basis may take: caps the dimension on very large meshes
 CHUNK = 64  # fields formed at a time
@@ -84,7 +84,9 @@ def run_exponential(run, recorder, breakpoints, record_step: float) -> Exponenti
     fixed = run.fixed_all
     capacity_ff = s.capacity[free][:, free].tocsr()
     capacity_columns = run.capacity_columns
-    max_dimension = int(min(MAX_DIMENSION, max(12, BASIS_MEMORY // (8 * max(free.size, 1)))))
+    max_dimension = int(
+        min(MAX_DIMENSION, free.size + 1, max(12, BASIS_MEMORY // (8 * max(free.size, 1))))
+    )
     edges = sorted({0.0, *breakpoints, c.end_time})
     outputs = np.array(c.output_times)
 
@@ -105,9 +107,12 @@ def run_exponential(run, recorder, breakpoints, record_step: float) -> Exponenti
         operator = s.exchange_operator(inside)
         load = s.load(inside)
         if len(fixed):
+            before = u[fixed]
             u = u.copy()
             for name, condition in run.model.fixed.items():
                 u[s.fixed_dofs[name]] = condition.temperature(inside)
+            # a jump of a fixed temperature stores heat at once: the fixed edge supplies it
+            absorbed += float(capacity_columns[fixed] @ (u[fixed] - before))
         held = u[fixed]
         operator_ff = operator[free][:, free].tocsr()
         forcing = load[free] - (operator[free][:, fixed] @ held if len(fixed) else 0.0)
@@ -179,11 +184,10 @@ def run_exponential(run, recorder, breakpoints, record_step: float) -> Exponenti
 
 def _record_taus(start: float, end: float, step: float, outputs: np.ndarray) -> np.ndarray:
     """The record times in (start, end]: a uniform grid of ``step`` from 0, the outputs, the
-    end, and start + length/2^k for the fast change after a jump."""
+    end, and start + step/2^k for the fast change after a jump."""
     length = end - start
     uniform = step * np.arange(math.floor(start / step) + 1, math.ceil(end / step) + 1)
-    early = start + length * 0.5 ** np.arange(1, STARTUP_REFINEMENT + 1)
-    early = early[early - start < min(step, length)]
+    early = start + min(step, length) * 0.5 ** np.arange(1, STARTUP_REFINEMENT + 1)
     times = np.concatenate([uniform, outputs, early, [end]])
     times = np.unique(times[(times > start + 1e-12 * length) & (times <= end * (1 + 1e-12))])
     keep = np.diff(times, prepend=start) > 1e-9 * length  # no near-duplicates
