@@ -215,70 +215,72 @@ def section_mesh_from_arrays(
     Raises
     ------
     GeometryError
-        If a group is empty, a boundary facet belongs to no group or to more than one, a
-        labelled segment is not on the boundary, a triangle has no region, or an axisymmetric
-        mesh reaches x < 0.
+        If there are no triangles, a group is empty, a boundary facet belongs to no group or to
+        more than one, a labelled segment is not on the boundary, a triangle has no region, or
+        an axisymmetric mesh reaches x < 0.
     """
     points = np.asarray(points, dtype=float)
     triangles = np.asarray(triangles, dtype=np.int64)
+    if len(triangles) == 0:
+        raise GeometryError("a section mesh needs at least one triangle, got none")
     quadratic = triangles.shape[1] == 6
     corners = triangles[:, :3]
-    used = np.unique(corners)
+    used = np.zeros(len(points), dtype=bool)
+    used[corners] = True
+    used = np.flatnonzero(used)  # the corner nodes, ascending
     renumber = np.full(len(points), -1, dtype=np.int64)
     renumber[used] = np.arange(len(used))
-    mesh = MeshTri(
-        np.ascontiguousarray(points[used].T),
-        np.ascontiguousarray(renumber[corners].T),
-        sort_t=False,
-    )
-    if axisymmetric and mesh.p[0].min() < -1e-12 * np.ptp(mesh.p):
+    vertices = np.ascontiguousarray(points[used].T)
+    t = np.ascontiguousarray(renumber[corners].T, dtype=np.int32)
+    if axisymmetric and vertices[0].min() < -1e-12 * np.ptp(vertices):
         raise GeometryError(
-            f"an axisymmetric mesh must lie in r >= 0; it reaches r = {mesh.p[0].min():.6g} m"
+            f"an axisymmetric mesh must lie in r >= 0; it reaches r = {vertices[0].min():.6g} m"
         )
-    if quadratic:
-        mesh = _quadratic(mesh, points, triangles, renumber)
+    topology = _Topology.of(t, len(used))
 
-    n_vertices = mesh.nvertices
-    facet_key = {int(k): i for i, k in enumerate(_pair_keys(mesh.facets.T, n_vertices))}
-    boundary = set(int(f) for f in mesh.boundary_facets())
+    boundary = topology.f2t[1] == -1
+    owner = np.full(topology.facets.shape[1], -1, dtype=np.int64)  # index into ``names``
+    names = list(edge_lines)
     boundaries: dict[str, np.ndarray] = {}
-    owner: dict[int, str] = {}
-    for name, lines in edge_lines.items():
-        lines = np.asarray(lines, dtype=np.int64)
-        ends = renumber[lines[:, :2]] if len(lines) else np.empty((0, 2), np.int64)
-        if len(ends) == 0:
+    for index, name in enumerate(names):
+        lines = np.asarray(edge_lines[name], dtype=np.int64)
+        if len(lines) == 0:
             raise GeometryError(f"edge group {name!r} has no boundary segments")
-        facets = np.array(
-            [
-                facet_key.get(int(k), -1) if min(pair) >= 0 else -1
-                for k, pair in zip(_pair_keys(ends, n_vertices), ends, strict=True)
-            ]
-        )
-        off_boundary = [int(f) for f in facets if f < 0 or int(f) not in boundary]
+        facets = topology.find(renumber[lines[:, :2]])
+        off_boundary = int(np.sum((facets < 0) | ~boundary[facets]))
         if off_boundary:
             raise GeometryError(
-                f"edge group {name!r} has {len(off_boundary)} segment(s) that are not on the "
+                f"edge group {name!r} has {off_boundary} segment(s) that are not on the "
                 "section's outer boundary"
             )
-        for f in facets:
-            if int(f) in owner:
-                raise GeometryError(
-                    f"boundary facet at {_facet_midpoint(mesh, int(f))} m belongs to both "
-                    f"{owner[int(f)]!r} and {name!r}; each boundary edge needs exactly one group"
-                )
-            owner[int(f)] = name
+        # A facet is claimed twice when an earlier group holds it or it comes earlier in this
+        # one; the first such segment is reported.
+        repeated = np.ones(len(facets), dtype=bool)
+        repeated[np.unique(facets, return_index=True)[1]] = False
+        clash = np.flatnonzero(repeated | (owner[facets] >= 0))
+        if len(clash):
+            facet = int(facets[clash[0]])
+            other = names[owner[facet]] if owner[facet] >= 0 else name
+            raise GeometryError(
+                f"boundary facet at {_facet_midpoint(vertices, topology.facets, facet)} m "
+                f"belongs to both {other!r} and {name!r}; each boundary edge needs exactly one "
+                "group"
+            )
+        owner[facets] = index
         boundaries[name] = np.sort(facets).astype(np.int64)
 
-    unclaimed = sorted(boundary - set(owner))
-    if unclaimed:
-        where = ", ".join(str(_facet_midpoint(mesh, f)) for f in unclaimed[:3])
+    unclaimed = np.flatnonzero(boundary & (owner < 0))
+    if len(unclaimed):
+        where = ", ".join(
+            str(_facet_midpoint(vertices, topology.facets, int(f))) for f in unclaimed[:3]
+        )
         raise GeometryError(
             f"{len(unclaimed)} boundary facet(s) belong to no edge group (first at {where} m); "
             "name every edge so none silently becomes insulated"
         )
 
     subdomains: dict[str, np.ndarray] = {}
-    covered = np.zeros(mesh.t.shape[1], dtype=int)
+    covered = np.zeros(t.shape[1], dtype=int)
     for name, elements in triangle_regions.items():
         elements = np.asarray(elements, dtype=np.int64)
         if len(elements) == 0:
@@ -295,32 +297,100 @@ def section_mesh_from_arrays(
             f"symmetry_multiplier must be a whole number >= 1, got {symmetry_multiplier!r}"
         )
 
-    mesh = mesh.with_boundaries(boundaries).with_subdomains(subdomains)
+    if quadratic:
+        doflocs = np.hstack([vertices, _mid_edge_nodes(points, triangles, topology)])
+        mesh = MeshTri2(
+            doflocs=np.ascontiguousarray(doflocs),
+            t=t,
+            _boundaries=boundaries,
+            _subdomains=subdomains,
+            sort_t=False,
+        )
+    else:
+        mesh = MeshTri(vertices, t, _boundaries=boundaries, _subdomains=subdomains, sort_t=False)
+    topology.attach(mesh)
     return SectionMesh(mesh=mesh, facts=_facts(mesh, axisymmetric, symmetry_multiplier))
 
 
-def _quadratic(mesh: MeshTri, points, triangles, renumber) -> MeshTri2:
-    """The quadratic mesh whose mid-edge nodes are the given ones (on the curved edges)."""
-    middle = np.full(mesh.facets.shape[1], -1, dtype=np.int64)
-    corners = renumber[triangles[:, :3]]
-    t2f = mesh.t2f  # facets of each triangle: edges 0-1, 1-2, 0-2 of mesh.t
-    for k, (a, b) in enumerate(((0, 1), (1, 2), (0, 2))):
-        node = triangles[:, {(0, 1): 3, (1, 2): 4, (0, 2): 5}[(a, b)]]
-        assert np.all(mesh.t[a] == corners[:, a]) and np.all(mesh.t[b] == corners[:, b])
-        middle[t2f[k]] = node
+# Local corner pairs of a triangle's facets, in scikit-fem's order (``MeshTri.t2f`` rows).
+_TRIANGLE_FACETS = ((0, 1), (1, 2), (0, 2))
+
+
+@dataclass(frozen=True)
+class _Topology:
+    """The facets of a triangulation and their incidences, built as scikit-fem builds them.
+
+    ``facets`` (2, n_facets) holds each facet's end vertices, lower index first, the facets in
+    ascending (lower, higher) order; ``t2f`` (3, n_triangles) the facets of each triangle's
+    edges 0-1, 1-2, 0-2; ``f2t`` (2, n_facets) the first and last triangle using each facet
+    (in the order of ``t2f`` read row by row), the second -1 on the boundary. These are
+    scikit-fem's ``Mesh.facets``, ``Mesh.t2f`` and ``Mesh.f2t``, which it computes lazily by
+    sorting the facets' vertex pairs as rows (``np.unique(axis=1)``, then two more
+    ``np.unique`` for ``f2t``); here one stable argsort of integer keys gives all three, and
+    :meth:`attach` hands them to the mesh so that neither this module nor the solver builds
+    them again.
+    """
+
+    facets: np.ndarray
+    t2f: np.ndarray
+    f2t: np.ndarray
+    keys: np.ndarray  # lower * n_vertices + higher of each facet, ascending
+    n_vertices: int
+
+    @classmethod
+    def of(cls, t: np.ndarray, n_vertices: int) -> _Topology:
+        """The topology of the triangles ``t`` (3, n_triangles) on ``n_vertices`` vertices."""
+        n_triangles = t.shape[1]
+        start = np.concatenate([t[a] for a, _ in _TRIANGLE_FACETS]).astype(np.int64)
+        end = np.concatenate([t[b] for _, b in _TRIANGLE_FACETS]).astype(np.int64)
+        low, high = np.minimum(start, end), np.maximum(start, end)
+        keys = low * n_vertices + high
+        order = np.argsort(keys, kind="stable")  # equal keys keep their t2f order
+        ordered = keys[order]
+        new = np.ones(len(keys), dtype=bool)
+        new[1:] = ordered[1:] != ordered[:-1]
+        starts = np.flatnonzero(new)
+        t2f = np.empty(len(keys), dtype=np.int64)
+        t2f[order] = np.cumsum(new) - 1
+        head = order[starts]  # first use of each facet (k * n_triangles + triangle)
+        tail = order[np.append(starts[1:], len(keys)) - 1]  # last use
+        first, last = head % n_triangles, tail % n_triangles
+        f2t = np.vstack([first, np.where(last == first, -1, last)])
+        return cls(
+            facets=np.vstack([low[head], high[head]]).astype(t.dtype),
+            t2f=t2f.reshape(len(_TRIANGLE_FACETS), n_triangles),
+            f2t=f2t.astype(np.int32),
+            keys=ordered[starts],
+            n_vertices=n_vertices,
+        )
+
+    def find(self, pairs: np.ndarray) -> np.ndarray:
+        """Facet index of each vertex pair (k, 2), either order; -1 where there is none or a
+        vertex is -1."""
+        pairs = np.sort(pairs, axis=1)
+        keys = pairs[:, 0] * self.n_vertices + pairs[:, 1]
+        at = np.minimum(np.searchsorted(self.keys, keys), len(self.keys) - 1)
+        found = (pairs[:, 0] >= 0) & (self.keys[at] == keys)
+        return np.where(found, at, -1)
+
+    def attach(self, mesh: MeshTri) -> None:
+        """Give ``mesh`` (whose ``t`` these were built from) its facets and incidences."""
+        mesh._facets, mesh._t2f, mesh._f2t = self.facets, self.t2f, self.f2t
+
+
+def _mid_edge_nodes(points: np.ndarray, triangles: np.ndarray, topology: _Topology) -> np.ndarray:
+    """Coordinates (2, n_facets) of each facet's mid-edge node, from quadratic ``triangles``
+    (corners, then the nodes of edges 0-1, 1-2, 2-0)."""
+    middle = np.full(topology.facets.shape[1], -1, dtype=np.int64)
+    for k, column in enumerate((3, 4, 5)):  # the nodes of edges 0-1, 1-2, 0-2
+        middle[topology.t2f[k]] = triangles[:, column]
     if np.any(middle < 0):
         raise GeometryError("a quadratic mesh has an edge without its mid-edge node")
-    doflocs = np.hstack([mesh.p, points[middle].T])
-    return MeshTri2(doflocs=np.ascontiguousarray(doflocs), t=mesh.t, sort_t=False)
+    return points[middle].T
 
 
-def _pair_keys(pairs: np.ndarray, n_nodes: int) -> np.ndarray:
-    pairs = np.sort(np.asarray(pairs, dtype=np.int64), axis=1)
-    return pairs[:, 0] * n_nodes + pairs[:, 1]
-
-
-def _facet_midpoint(mesh: MeshTri, facet: int) -> tuple[float, float]:
-    x, y = mesh.p[:, mesh.facets[:, facet]].mean(axis=1)
+def _facet_midpoint(vertices: np.ndarray, facets: np.ndarray, facet: int) -> tuple[float, float]:
+    x, y = vertices[:, facets[:, facet]].mean(axis=1)
     return (round(float(x), 6), round(float(y), 6))
 
 
@@ -332,12 +402,13 @@ def _mid_nodes(mesh: MeshTri, facets: np.ndarray) -> np.ndarray:
     return mesh.p[:, mesh.facets[:, facets]].mean(axis=1)
 
 
-def _facts(mesh: MeshTri, axisymmetric: bool, multiplier: int) -> SectionFacts:
-    # Quadratic map of each triangle through its corners and mid-edge nodes (straight when
-    # the mid-edge nodes are midpoints), integrated with a degree-4 rule: exact for the area
-    # and first moments of quadratic triangles.
-    x = mesh.p[:, mesh.t]  # (2, 3, m)
-    mids = np.stack([_mid_nodes(mesh, mesh.t2f[k]) for k in range(3)], axis=1)  # 01, 12, 02
+def _curved_integrals(corners: np.ndarray, mids: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Area (m,) and first moments (2, m) of quadratic triangles from their corners and the
+    mid-edge nodes of edges 01, 12, 02 (each (2, 3, m), m).
+
+    The quadratic map of each triangle through its six nodes is integrated with a degree-4
+    rule: exact for the area and first moments of quadratic triangles.
+    """
     xi, eta = _QUAD_POINTS[:, 0], _QUAD_POINTS[:, 1]
     l0, l1, l2 = 1 - xi - eta, xi, eta
     shape = np.array(
@@ -352,17 +423,30 @@ def _facts(mesh: MeshTri, axisymmetric: bool, multiplier: int) -> SectionFacts:
     )  # (6, q)
     d_xi = np.array([1 - 4 * l0, 4 * l1 - 1, 0 * xi, 4 * (l0 - l1), 4 * l2, -4 * l2])
     d_eta = np.array([1 - 4 * l0, 0 * xi, 4 * l2 - 1, -4 * l1, 4 * l1, 4 * (l0 - l2)])
-    nodes = np.concatenate([x, mids], axis=1)  # (2, 6, m)
-    at = np.einsum("cnm,nq->cqm", nodes, shape)  # (2, q, m) quadrature point coordinates
-    jx = np.einsum("cnm,nq->cqm", nodes, d_xi)
-    jy = np.einsum("cnm,nq->cqm", nodes, d_eta)
+    nodes = np.concatenate([corners, mids], axis=1)  # (2, 6, m)
+    # (3q, 6) @ (2, 6, m): one small matrix product per coordinate gives the quadrature
+    # points and both columns of the Jacobian, each (2, q, m).
+    at, jx, jy = np.split(np.vstack([shape.T, d_xi.T, d_eta.T]) @ nodes, 3, axis=1)
     det = np.abs(jx[0] * jy[1] - jx[1] * jy[0])
     weight = 0.5 * _QUAD_WEIGHTS[:, None] * det  # (q, m): dA at each quadrature point
-    element_area = weight.sum(axis=0)
-    revolve = 2 * np.pi * at[0] if axisymmetric else np.ones_like(at[0])
-    element_volume = (weight * revolve).sum(axis=0)
+    return weight.sum(axis=0), (weight * at).sum(axis=1)
+
+
+def _facts(mesh: MeshTri, axisymmetric: bool, multiplier: int) -> SectionFacts:
+    x = mesh.p[:, mesh.t]  # (2, 3, m)
+    if isinstance(mesh, MeshTri2):
+        element_area, moments = _curved_integrals(x, mesh.doflocs[:, mesh.nvertices + mesh.t2f])
+    else:
+        # Straight triangles: the area is half the cross product of two sides and the first
+        # moments are the area times the mean of the corners, exactly what the quadratic map
+        # and degree-4 rule of ``_curved_integrals`` give for them (to round-off), with a
+        # quarter of the temporary arrays.
+        d1, d2 = x[:, 1] - x[:, 0], x[:, 2] - x[:, 0]
+        element_area = 0.5 * np.abs(d1[0] * d2[1] - d1[1] * d2[0])
+        moments = element_area * x.mean(axis=1)
+    element_volume = 2 * np.pi * moments[0] if axisymmetric else element_area
     area = float(element_area.sum())
-    centroid = (float((weight * at[0]).sum() / area), float((weight * at[1]).sum() / area))
+    centroid = (float(moments[0].sum() / area), float(moments[1].sum() / area))
 
     lengths, surfaces = {}, {}
     for name, facets in mesh.boundaries.items():
