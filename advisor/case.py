@@ -406,7 +406,7 @@ def _read_case(root: _Table, path: Path) -> Case:
     options: dict = {"method": run.text("method", "crank-nicolson", METHODS)}
     if options["method"] == "exponential":
         try:
-            check_exponential_parts(materials.values(), boundaries, sources)
+            check_exponential_parts(materials, boundaries, sources)
         except ModelError as error:
             run.fail("method", str(error))
     for key, kind in (

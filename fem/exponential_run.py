@@ -42,18 +42,24 @@ class ExponentialOutcome:
 
 def check_exponential(model) -> None:
     """Raise ModelError unless ``model`` can be solved by exponential steps."""
-    check_exponential_parts(model.materials.values(), model.boundaries, model.heat_sources)
+    check_exponential_parts(model.materials, model.boundaries, model.heat_sources)
 
 
 def check_exponential_parts(materials, boundaries, heat_sources) -> None:
-    """The same check on a model's parts: materials, boundaries (group → condition or
-    conditions) and heat sources (region → value or schedule), before any mesh exists."""
-    if not all(m.is_constant for m in materials) or any(
-        isinstance(c, Radiation) for _, c in _each(boundaries)
-    ):
+    """The same check on a model's parts: materials (region → Material), boundaries (group →
+    condition or conditions) and heat sources (region → value or schedule), before any mesh
+    exists."""
+    varying = [region for region, m in materials.items() if not m.is_constant]
+    radiating = [group for group, c in _each(boundaries) if isinstance(c, Radiation)]
+    if varying or radiating:
+        reason = (
+            f"radiation on {radiating[0]!r}"
+            if radiating
+            else f"temperature-dependent properties in region {varying[0]!r}"
+        )
         raise ModelError(
-            "method 'exponential' needs a linear model (constant properties, no radiation); "
-            "use 'crank-nicolson'"
+            "method 'exponential' needs a linear model (constant properties, no radiation), "
+            f"not {reason}: use 'crank-nicolson'"
         )
     named = [(region, "heat source", q) for region, q in heat_sources.items()]
     for group, c in _each(boundaries):
@@ -76,9 +82,13 @@ def _each(boundaries):
             yield group, condition
 
 
-def run_exponential(run, recorder, breakpoints, record_step: float) -> ExponentialOutcome:
+def run_exponential(
+    run, recorder, breakpoints, record_step: float, earliest: float
+) -> ExponentialOutcome:
     """March ``run`` (a transient ``_Run`` with its system assembled) from breakpoint to
-    breakpoint, recording into ``recorder``."""
+    breakpoint, recording into ``recorder`` every ``record_step`` s and, after each jump, at
+    step/2^k down to ``earliest`` s (the surface elements' diffusion time: before it the mesh
+    does not resolve the field)."""
     c, s = run.c, run.system
     free = s.free_dofs
     fixed = run.fixed_all
@@ -118,7 +128,7 @@ def run_exponential(run, recorder, breakpoints, record_step: float) -> Exponenti
         forcing = load[free] - (operator[free][:, fixed] @ held if len(fixed) else 0.0)
         shift = 2.0 ** round(math.log2(length * SHIFT_FRACTION))
         solve = run._shifted_solver(shift, inside)
-        taus = _record_taus(start, end, record_step, outputs) - start
+        taus = _record_taus(start, end, record_step, earliest, outputs) - start
         approximation, estimate_here, converged = krylov_exponential(
             solve,
             capacity_ff,
@@ -182,12 +192,16 @@ def run_exponential(run, recorder, breakpoints, record_step: float) -> Exponenti
     )
 
 
-def _record_taus(start: float, end: float, step: float, outputs: np.ndarray) -> np.ndarray:
+def _record_taus(
+    start: float, end: float, step: float, earliest: float, outputs: np.ndarray
+) -> np.ndarray:
     """The record times in (start, end]: a uniform grid of ``step`` from 0, the outputs, the
-    end, and start + step/2^k for the fast change after a jump."""
+    end, and start + step/2^k (not before start + earliest) for the fast change after a
+    jump."""
     length = end - start
     uniform = step * np.arange(math.floor(start / step) + 1, math.ceil(end / step) + 1)
-    early = start + min(step, length) * 0.5 ** np.arange(1, STARTUP_REFINEMENT + 1)
+    early = min(step, length) * 0.5 ** np.arange(1, STARTUP_REFINEMENT + 1)
+    early = start + early[early >= earliest]
     times = np.concatenate([uniform, outputs, early, [end]])
     times = np.unique(times[(times > start + 1e-12 * length) & (times <= end * (1 + 1e-12))])
     keep = np.diff(times, prepend=start) > 1e-9 * length  # no near-duplicates

@@ -777,7 +777,11 @@ class _Run:
     def _exponential(self, recorder, started, assembled, initial_stored) -> Solution:
         c = self.c
         outcome = run_exponential(
-            self, recorder, sorted(_breakpoints(self.model, c.end_time)), c.step
+            self,
+            recorder,
+            sorted(_breakpoints(self.model, c.end_time)),
+            c.step,
+            _surface_diffusion_time(self.model),
         )
         finished = clock.perf_counter()
         histories = recorder.histories()
@@ -879,12 +883,16 @@ class _Run:
                 max(low - histories["minimum"].min(), histories["maximum"].max() - high, 0.0)
             )
             if excursion > EXCURSION_TOLERANCE * max(high - low, 1.0):
+                remedy = (
+                    "refine the mesh near the heat-exchanging edges"
+                    if c.method == "exponential"
+                    else "refine the mesh near the heat-exchanging edges or take a larger step"
+                )
                 warnings.append(
                     f"temperatures left the range of initial and boundary values [{low:.6g}, "
                     f"{high:.6g}] degC by {excursion:.3g} K; consistent-capacity elements "
-                    "overshoot when the step is far below the diffusion time of the surface "
-                    "elements: refine the mesh near the heat-exchanging edges or take a larger "
-                    "step"
+                    "overshoot at times far below the diffusion time of the surface elements: "
+                    + remedy
                 )
 
         ratio = smallest_step / _surface_diffusion_time(model)
@@ -928,4 +936,10 @@ def _breakpoints(model: ThermalModel, end: float) -> set[float]:
     schedules += list(model.heat_sources.values())
     for schedule in schedules:
         points.update(schedule.breakpoints(end))
-    return points
+    # Round-off (k·period against end_time) must not make sliver steps: points closer than
+    # 1e-9·end_time to the end or to the previous point are one point.
+    merged: list[float] = []
+    for point in sorted(points):
+        if end - point > 1e-9 * end and (not merged or point - merged[-1] > 1e-9 * end):
+            merged.append(point)
+    return set(merged)
