@@ -2,8 +2,9 @@
 wrote them, CSV histories read back with the csv module, plots, the animation, the report and
 the progress line.
 
-The VTK files are read with the independent ``vtk`` package (not meshio, which writes them);
-the XDMF series is read with ElementTree and h5py directly.
+The VTK files (written by the project's own .vtu writer) are read with the independent ``vtk``
+package, and in ``test_vtk_files.py`` with meshio too; the XDMF series (written through
+meshio) is read with ElementTree and h5py directly.
 """
 
 from __future__ import annotations
