@@ -51,7 +51,15 @@ from test_solver_conditions import (
     BAR_HALF_WIDTH,
     BAR_TAU,
     LUMPED_SHARE,
+    SLAB,
+    SLAB_AMBIENT,
+    SLAB_H,
+    SLAB_HALF,
+    SLAB_SIZE,
+    SLAB_SOURCE,
+    SLAB_WIDTH,
     bar_model,
+    generating_slab,
     lumped_piecewise,
     plane_wall_first_root,
 )
@@ -651,29 +659,12 @@ def test_fixed_face_matches_the_series_and_passes_the_heat_it_stores(stepped):
 
 @pytest.mark.parametrize("order", [1, 2])
 def test_slab_with_generation_settles_on_the_parabola_in_one_step(order):
-    # The slab of test_slab_with_generation_reaches_the_steady_profile: half-thickness L,
-    # symmetry at y = 0, convection at y = L, uniform generation q.
-    width, half = 0.004, 0.010  # m
-    k, rho, c = 10.0, 7000.0, 600.0  # invented
-    h, ambient, q = 500.0, 30.0, 2.0e6  # W/(m^2 K), degC, W/m^3
-    size = 0.001
-    section = Rectangle(
-        width,
-        half,
-        edge_names={"bottom": "symmetry", "left": "ends", "right": "ends", "top": "cooled"},
-    ).mesh(size, order=order)
-    model = ThermalModel(
-        section,
-        Material(k, rho, c),
-        boundaries={
-            "symmetry": Insulated("symmetry"),
-            "ends": Insulated(),
-            "cooled": Convection(h, ambient),
-        },
-        initial_temperature=ambient,
-        element_order=order,
-        heat_sources={"solid": q},
-    )
+    # The slab of test_slab_with_generation_reaches_the_steady_profile.
+    width, half, size = SLAB_WIDTH, SLAB_HALF, SLAB_SIZE
+    k, rho, c = SLAB.conductivity, SLAB.density, SLAB.specific_heat
+    h, ambient, q = SLAB_H, SLAB_AMBIENT, SLAB_SOURCE
+    model = generating_slab(order)
+    section = model.section
     # The slowest mode's time constant (98 s); after 100 of them the transient is e^-100 of
     # the rise: the end state is the steady one, reached in one step from the start.
     tau_1 = half**2 * rho * c / k / plane_wall_first_root(h * half / k) ** 2

@@ -110,30 +110,41 @@ def time_limit(seconds: int):
 # ---------------------------------------------------------------------------------------------
 
 
-@pytest.mark.parametrize("order", [1, 2])
-def test_slab_with_generation_reaches_the_steady_profile(order):
-    # Strip of half-thickness L (y), symmetry at y = 0, convection at y = L, insulated ends.
-    width, half = 0.004, 0.010  # m
-    k, rho, c = 10.0, 7000.0, 600.0  # invented
-    h, ambient, q = 500.0, 30.0, 2.0e6  # W/(m^2 K), degC, W/m^3
-    size = 0.001
+SLAB_WIDTH, SLAB_HALF = 0.004, 0.010  # m
+SLAB = Material(10.0, 7000.0, 600.0)  # invented
+SLAB_H, SLAB_AMBIENT, SLAB_SOURCE = 500.0, 30.0, 2.0e6  # W/(m^2 K), degC, W/m^3
+SLAB_SIZE = 0.001  # m
+
+
+def generating_slab(order: int) -> ThermalModel:
+    """Strip of half-thickness L (y), symmetry at y = 0, convection at y = L, insulated ends,
+    uniform generation, starting at the ambient temperature."""
     section = Rectangle(
-        width,
-        half,
+        SLAB_WIDTH,
+        SLAB_HALF,
         edge_names={"bottom": "symmetry", "left": "ends", "right": "ends", "top": "cooled"},
-    ).mesh(size, order=order)
-    model = ThermalModel(
+    ).mesh(SLAB_SIZE, order=order)
+    return ThermalModel(
         section,
-        Material(k, rho, c),
+        SLAB,
         boundaries={
             "symmetry": Insulated("symmetry"),
             "ends": Insulated(),
-            "cooled": Convection(h, ambient),
+            "cooled": Convection(SLAB_H, SLAB_AMBIENT),
         },
-        initial_temperature=ambient,
+        initial_temperature=SLAB_AMBIENT,
         element_order=order,
-        heat_sources={"solid": q},
+        heat_sources={"solid": SLAB_SOURCE},
     )
+
+
+@pytest.mark.parametrize("order", [1, 2])
+def test_slab_with_generation_reaches_the_steady_profile(order):
+    width, half, size = SLAB_WIDTH, SLAB_HALF, SLAB_SIZE
+    k, rho, c = SLAB.conductivity, SLAB.density, SLAB.specific_heat
+    h, ambient, q = SLAB_H, SLAB_AMBIENT, SLAB_SOURCE
+    model = generating_slab(order)
+    section = model.section
     biot = h * half / k
     tau_1 = half**2 * rho * c / k / plane_wall_first_root(biot) ** 2  # slowest mode, 98 s
     solution = steady_run(model, tau_1)
