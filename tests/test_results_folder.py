@@ -1,5 +1,5 @@
 """The README's demo command writes every file the README promises, and the VTK files read
-back — with the independent ``vtk`` package, not with meshio that wrote them — holding the
+back — with the independent ``vtk`` package, not with the project's own writer — holding the
 values, times and regions written."""
 
 import json
