@@ -105,9 +105,19 @@ class KrylovExponential:
         weights = g / self.theta * (self.eigenvectors[0] * self.scale)
         return self.eigenvectors @ weights.T
 
-    def fields(self, taus) -> np.ndarray:
-        """u(τ) for each τ, shape (len(taus), n)."""
-        return self.start + self._coefficients("value", taus).T @ self.basis
+    def fields(self, taus, out: np.ndarray | None = None) -> np.ndarray:
+        """u(τ) for each τ, shape (len(taus), n); written into ``out`` (rows) when given, so
+        a run of many records reuses one buffer instead of faulting in fresh pages."""
+        coefficients = self._coefficients("value", taus).T
+        if out is None:
+            out = np.empty((coefficients.shape[0], self.start.size))
+        out = out[: coefficients.shape[0]]
+        if self.dimension:
+            np.matmul(coefficients, self.basis, out=out)
+            out += self.start
+        else:
+            out[:] = self.start
+        return out
 
     def functional(self, row: np.ndarray, taus, kind: str = "value") -> np.ndarray:
         """rowᵀu(τ) ("value"), rowᵀu'(τ) ("rate") or rowᵀ∫₀^τ u ("integral") for each τ,
