@@ -19,7 +19,6 @@ from .boundary import Radiation, conditions
 from .errors import ModelError, SolverError
 from .exponential import KrylovExponential, krylov_exponential
 from .schedules import as_schedule
-from .system import inner
 
 SHIFT_FRACTION = 1 / 32  # γ ≈ this × the interval (rounded to a power of two seconds)
 STARTUP_REFINEMENT = 10  # record times at step/2^k, k = 1..this, after each breakpoint
@@ -164,24 +163,25 @@ def run_exponential(
             values = approximation.fields(chunk, buffer)
             energy = absorbed + ledger.absorbed(chunk)
             reactions = ledger.reactions(chunk, values)
-            for i, tau in enumerate(chunk):
-                if len(fixed):
-                    field = u.copy()
-                    field[free] = values[i]
-                else:
-                    field = values[i]
-                time = start + float(tau)
-                recorder.record(
-                    time,
-                    field,
-                    inner(capacity_columns, field),
-                    float(energy[i]),
-                    {name: float(r[i]) for name, r in reactions.items()},
-                )
+            if len(fixed):
+                states = np.tile(u, (chunk.size, 1))
+                states[:, free] = values
+            else:
+                states = values
+            times = start + chunk
+            recorder.record_many(
+                times,
+                states,
+                states @ capacity_columns,
+                energy,
+                reactions,
+            )
+            for i, time in enumerate(times):
                 if np.any(np.abs(outputs - time) <= 1e-9 * length) or (
                     stop_time is not None and i == chunk.size - 1 and k + CHUNK >= taus.size
                 ):
-                    recorder.store_field(time, field)
+                    recorder.store_field(float(time), states[i])
+            field = states[-1]
             if run.progress is not None:
                 run.progress(start + float(chunk[-1]), c.end_time, steps)
         absorbed += float(ledger.absorbed(taus[-1:])[0])

@@ -36,18 +36,64 @@ class HistoryRecorder:
         reactions: dict[str, float],
     ) -> None:
         """Add one state; ``stored`` is 1ᵀC(T) (J), ``reactions`` the fixed groups' flows."""
-        low, high = int(np.argmin(temperature)), int(np.argmax(temperature))
         flows = self._system.edge_heat_flows(temperature, time)
         flows.update(reactions)
+        self._append(
+            time,
+            inner(self._system.volume_weights, temperature),
+            temperature,
+            self._system.probe_matrix @ temperature,
+            flows,
+            stored,
+            absorbed,
+        )
+
+    def record_many(
+        self,
+        times: np.ndarray,
+        temperatures: np.ndarray,
+        stored: np.ndarray,
+        absorbed: np.ndarray,
+        reactions: dict[str, np.ndarray],
+    ) -> None:
+        """Add several states at once, ``temperatures`` one per row (linear models: the
+        edge flows are linear in the field, so the whole batch takes one product each)."""
+        s = self._system
+        means = temperatures @ s.volume_weights  # BLAS: a batch is worth its threads
+        probes = (s.probe_matrix @ temperatures.T).T
+        flows = {name: np.zeros(len(times)) for name in self._flow_names}
+        for name, c in s.model.convection.items():
+            edge = s.edges[name]
+            h = np.array([c.heat_transfer_coefficient(t) for t in times])
+            ambient = np.array([c.ambient(t) for t in times])
+            surface_integral = temperatures @ edge.weights
+            flows[name] += h * (ambient * edge.area - surface_integral)
+        for name, c in s.model.fluxes.items():
+            flows[name] += np.array([c.flux(t) for t in times]) * s.edges[name].area
+        for name, values in reactions.items():
+            flows[name] = np.asarray(values, dtype=float)
+        for i, time in enumerate(times):
+            self._append(
+                float(time),
+                float(means[i]),
+                temperatures[i],
+                probes[i],
+                {name: float(v[i]) for name, v in flows.items()},
+                float(stored[i]),
+                float(absorbed[i]),
+            )
+
+    def _append(self, time, mean, temperature, probes, flows, stored, absorbed) -> None:
+        low, high = int(np.argmin(temperature)), int(np.argmax(temperature))
         self._rows.append(
             (
                 time,
-                inner(self._system.volume_weights, temperature),
+                mean,
                 temperature[low],
                 temperature[high],
                 self._locations[:, low],
                 self._locations[:, high],
-                self._system.probe_matrix @ temperature,
+                probes,
                 [flows.get(n, 0.0) for n in self._flow_names],
                 self._system.generated(time),
                 stored - self._initial_stored,
