@@ -14,6 +14,7 @@ from .errors import GeometryError
 
 # Degree-4 rule on the reference triangle (Dunavant 1985, 6 points; weights sum to 1).
 _A, _B = 0.445948490915965, 0.091576213509771
+FEW_POINTS = 32  # up to this many points are located without building a search tree
 _QUAD_POINTS = np.array(
     [[_A, _A], [1 - 2 * _A, _A], [_A, 1 - 2 * _A], [_B, _B], [1 - 2 * _B, _B], [_B, 1 - 2 * _B]]
 )
@@ -141,13 +142,18 @@ class SectionMesh:
             Naming the first point that lies outside the section.
         """
         points = np.asarray(points, dtype=float).reshape(2, -1)
-        corners = MeshTri(self.vertices, self.mesh.t, sort_t=False)
-        finder = corners.element_finder()
-        centres = self.mesh.p[:, self.mesh.t].mean(axis=1)
-        tree = cKDTree(centres.T)
-        mapping = self.mesh.mapping()
-        cells = np.empty(points.shape[1], dtype=np.int64)
+        cells = np.full(points.shape[1], -1, dtype=np.int64)
+        if points.shape[1] <= FEW_POINTS:  # a few probes: one pass over the triangles each
+            for i, point in enumerate(points.T):
+                cells[i] = self._straight_triangle_of(point)
+        if np.any(cells < 0):
+            finder = MeshTri(self.vertices, self.mesh.t, sort_t=False).element_finder()
+            centres = self.mesh.p[:, self.mesh.t].mean(axis=1)
+            tree = cKDTree(centres.T)
+            mapping = self.mesh.mapping()
         for i, (x, y) in enumerate(points.T):
+            if cells[i] >= 0:
+                continue
             try:
                 cells[i] = finder(np.array([x]), np.array([y]))[0]
                 continue
@@ -162,6 +168,17 @@ class SectionMesh:
             else:
                 raise GeometryError(f"the point ({x:.6g}, {y:.6g}) m lies outside the section")
         return cells
+
+    def _straight_triangle_of(self, point: np.ndarray) -> int:
+        """The first triangle whose corners enclose ``point`` (barycentric coordinates ≥
+        −1e-12), or −1."""
+        t = self.mesh.t[:3]
+        a, b, c = (self.vertices[:, t[k]] for k in range(3))
+        area = (b[0] - a[0]) * (c[1] - a[1]) - (b[1] - a[1]) * (c[0] - a[0])
+        u = ((b[0] - point[0]) * (c[1] - point[1]) - (b[1] - point[1]) * (c[0] - point[0])) / area
+        v = ((c[0] - point[0]) * (a[1] - point[1]) - (c[1] - point[1]) * (a[0] - point[0])) / area
+        inside = np.flatnonzero((u >= -1e-12) & (v >= -1e-12) & (1.0 - u - v >= -1e-12))
+        return int(inside[0]) if inside.size else -1
 
     def max_distance_to(self, groups: Iterable[str]) -> float:
         """The largest distance in m from the section to the nearest edge of ``groups``.

@@ -30,6 +30,7 @@ from geometries import (
     SectionMesh,
     profiles,
 )
+from geometries.section_mesh import FEW_POINTS
 
 ROUND_OFF = 1e-12  # relative, for what the mesh represents exactly
 SIDES = ("bottom", "right", "top", "left")
@@ -612,6 +613,31 @@ def test_locate_finds_inside_points_and_refuses_outside_ones():
         section.locate(np.array([[0.05], [0.01]]))
     with pytest.raises(GeometryError, match="lies outside"):
         section.locate(np.array([[BORE_CENTRE[0]], [BORE_CENTRE[1]]]))  # in the bore
+
+
+def test_few_and_many_points_are_located_alike():
+    """A few points are found by a pass over the triangles, many through a search tree: on
+    the same points both give a triangle that holds the point (its barycentric coordinates,
+    solved here, lie in [0, 1])."""
+    section = meshed("plate with bore")
+    mesh = section.mesh
+    rng = np.random.default_rng(7)
+    candidates = rng.uniform([0.0, 0.0], PLATE, size=(400, 2)).T
+    outside_bore = np.hypot(candidates[0] - BORE_CENTRE[0], candidates[1] - BORE_CENTRE[1])
+    points = candidates[:, outside_bore > 1.2 * BORE_RADIUS][:, : FEW_POINTS + 8]
+    assert points.shape[1] == FEW_POINTS + 8
+    many = section.locate(points)
+    few = np.concatenate(
+        [section.locate(points[:, k : k + 4]) for k in range(0, points.shape[1], 4)]
+    )
+    for cells in (many, few):
+        for (x, y), cell in zip(points.T, cells, strict=True):
+            corners = mesh.p[:, mesh.t[:, cell]]
+            jacobian = np.column_stack(
+                [corners[:, 1] - corners[:, 0], corners[:, 2] - corners[:, 0]]
+            )
+            local = np.linalg.solve(jacobian, np.array([x, y]) - corners[:, 0])
+            assert local.min() >= -1e-9 and local.sum() <= 1 + 1e-9
 
 
 # ---------------------------------------------------------------------------------------------
