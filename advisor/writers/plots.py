@@ -117,7 +117,11 @@ def save_figure(figure: Figure, stem: Path, formats: Sequence[str] = FORMATS) ->
     paths = []
     for kind in formats:
         path = stem.with_name(f"{stem.name}.{kind}")
-        write_with(path, lambda p, k=kind: figure.savefig(p, format=k))
+        # tight: a left-aligned title wider than its axes (tall sections) stays in the picture
+        write_with(
+            path,
+            lambda p, k=kind: figure.savefig(p, format=k, bbox_inches="tight", pad_inches=0.08),
+        )
         paths.append(path)
     return paths
 
@@ -333,9 +337,13 @@ def snapshot_figure(assessment: Assessment, count: int = 4) -> Figure:
     )
     columns = 1 if len(indices) == 1 else 2
     rows = -(-len(indices) // columns)
-    figure = new_figure(4.2 * columns, 3.4 * rows + 0.4)
-    grid = np.atleast_1d(figure.subplots(rows, columns, squeeze=False).ravel())
     triangulation = section_triangulation(solution)
+    # a panel as wide as the section's shape needs (plus its colour bar), so tall sections do
+    # not leave a gap between the columns
+    aspect = np.ptp(triangulation.x) / max(np.ptp(triangulation.y), 1e-300)
+    panel = float(np.clip(2.6 * aspect + 2.0, 3.0, 4.2))
+    figure = new_figure(panel * columns, 3.4 * rows + 0.4)
+    grid = np.atleast_1d(figure.subplots(rows, columns, squeeze=False).ravel())
     xs, ys = triangulation.x, triangulation.y
     x_name, y_name = axis_names(solution)
     for axes, index in zip(grid, indices, strict=False):
