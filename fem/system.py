@@ -252,7 +252,10 @@ def assemble(model: ThermalModel) -> ConductionSystem:
     element = element_for(model)
     axisymmetric = model.section.axisymmetric
     basis = Basis(mesh, element)
-    region_bases = {r: Basis(mesh, element, elements=e) for r, e in mesh.subdomains.items()}
+    region_bases = {  # a region that is the whole section shares the section's basis
+        r: basis if len(e) == mesh.t.shape[1] else Basis(mesh, element, elements=e)
+        for r, e in mesh.subdomains.items()
+    }
     materials = model.materials
 
     capacity = stiffness = None
