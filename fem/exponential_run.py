@@ -100,8 +100,7 @@ def run_exponential(
     outputs = np.array(c.output_times)
 
     u = np.array(run.system_initial)
-    for name, condition in run.model.fixed.items():
-        u[s.fixed_dofs[name]] = condition.temperature(0.0)
+    s.impose_fixed(u, 0.0)
     absorbed = 0.0
     steps = solves = dimension = 0
     estimate = 0.0
@@ -118,8 +117,7 @@ def run_exponential(
         if len(fixed):
             before = u[fixed]
             u = u.copy()
-            for name, condition in run.model.fixed.items():
-                u[s.fixed_dofs[name]] = condition.temperature(inside)
+            s.impose_fixed(u, inside)
             # a jump of a fixed temperature stores heat at once: the fixed edge supplies it
             absorbed += float(capacity_columns[fixed] @ (u[fixed] - before))
         held = u[fixed]

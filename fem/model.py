@@ -214,6 +214,37 @@ class ThermalModel:
         """True when the initial state is the field of an earlier run."""
         return isinstance(self.initial_temperature, np.ndarray)
 
+    def conditions(self) -> list[tuple[str, Condition]]:
+        """Every (edge group, condition) pair, in group order."""
+        return [(name, c) for name, cs in self.boundaries.items() for c in cs]
+
+    def breakpoints(self, end_time: float) -> tuple[float, ...]:
+        """Times in (0, end_time] where a condition or a source jumps or kinks, sorted (not
+        merged: the solver merges points within round-off of each other)."""
+        schedules = []
+        for c in self.convection.values():
+            schedules += [c.heat_transfer_coefficient, c.ambient]
+        schedules += [r.surroundings for r in self.radiation.values()]
+        schedules += [f.flux for f in self.fluxes.values()]
+        schedules += [f.temperature for f in self.fixed.values()]
+        schedules += list(self.heat_sources.values())
+        points: set[float] = set()
+        for schedule in schedules:
+            points.update(schedule.breakpoints(end_time))
+        return tuple(sorted(points))
+
+    def driving_temperatures(self, end_time: float) -> tuple[float, float]:
+        """Lowest and highest of the initial temperatures and every temperature a condition
+        drives the part towards over [0, end_time], °C."""
+        values = [*self.initial_range()]
+        for c in self.convection.values():
+            values.extend(c.ambient.extremes(end_time))
+        for r in self.radiation.values():
+            values.extend(r.surroundings.extremes(end_time))
+        for f in self.fixed.values():
+            values.extend(f.temperature.extremes(end_time))
+        return (min(values), max(values))
+
     def initial_range(self) -> tuple[float, float]:
         """Lowest and highest starting temperature, °C."""
         value = self.initial_temperature

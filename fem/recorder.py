@@ -62,14 +62,7 @@ class HistoryRecorder:
         means = temperatures @ s.volume_weights  # BLAS: a batch is worth its threads
         probes = (s.probe_matrix @ temperatures.T).T
         flows = {name: np.zeros(len(times)) for name in self._flow_names}
-        for name, c in s.model.convection.items():
-            edge = s.edges[name]
-            h = np.array([c.heat_transfer_coefficient(t) for t in times])
-            ambient = np.array([c.ambient(t) for t in times])
-            surface_integral = temperatures @ edge.weights
-            flows[name] += h * (ambient * edge.area - surface_integral)
-        for name, c in s.model.fluxes.items():
-            flows[name] += np.array([c.flux(t) for t in times]) * s.edges[name].area
+        flows.update(s.edge_heat_flows_many(times, temperatures))
         for name, values in reactions.items():
             flows[name] = np.asarray(values, dtype=float)
         for i, time in enumerate(times):

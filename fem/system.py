@@ -227,6 +227,30 @@ class ConductionSystem:
             flows[name] = flows.get(name, 0.0) + c.flux(time) * self.edges[name].area
         return flows
 
+    def edge_heat_flows_many(
+        self, times: np.ndarray, temperatures: np.ndarray
+    ) -> dict[str, np.ndarray]:
+        """Heat flow into the part through each edge group of a linear model (W) for many
+        states at once, ``temperatures`` one per row: one product per group for the batch."""
+        flows: dict[str, np.ndarray] = {}
+        for name, c in self.model.convection.items():
+            edge = self.edges[name]
+            h = np.array([c.heat_transfer_coefficient(t) for t in times])
+            ambient = np.array([c.ambient(t) for t in times])
+            flow = h * (ambient * edge.area - temperatures @ edge.weights)
+            flows[name] = flows.get(name, 0.0) + flow
+        for name, c in self.model.fluxes.items():
+            flows[name] = flows.get(name, 0.0) + np.array([c.flux(t) for t in times]) * (
+                self.edges[name].area
+            )
+        return flows
+
+    def impose_fixed(self, temperature: np.ndarray, time: float) -> None:
+        """Set the fixed-temperature degrees of freedom of ``temperature`` to their values at
+        ``time`` (in place)."""
+        for name, c in self.model.fixed.items():
+            temperature[self.fixed_dofs[name]] = c.temperature(time)
+
     def generated(self, time: float) -> float:
         """Heat generated in the part (W)."""
         return float(

@@ -327,20 +327,9 @@ def _positive(value) -> bool:
     )
 
 
-def _boundary_temperatures(model: ThermalModel, end: float) -> list[float]:
-    values = [*model.initial_range()]
-    for c in model.convection.values():
-        values.extend(c.ambient.extremes(end))
-    for r in model.radiation.values():
-        values.extend(r.surroundings.extremes(end))
-    for f in model.fixed.values():
-        values.extend(f.temperature.extremes(end))
-    return values
-
-
 def _temperature_span(model: ThermalModel) -> float:
-    values = _boundary_temperatures(model, 1e30)
-    return max(max(values) - min(values), 1.0)
+    low, high = model.driving_temperatures(1e30)
+    return max(high - low, 1.0)
 
 
 def _smallest_surface_edge(model: ThermalModel) -> float:
@@ -504,8 +493,7 @@ class _Run:
         fixed = self.fixed_all
         known = None
         if len(fixed):
-            for name, c in self.model.fixed.items():
-                u[s.fixed_dofs[name]] = c.temperature(inside1)
+            s.impose_fixed(u, inside1)
             coupling = s.capacity[:, fixed] @ u[fixed] + beta * scale * (
                 operator1[:, fixed] @ u[fixed]
             )
@@ -552,8 +540,7 @@ class _Run:
             known = known + (1 - formula.beta) * outflow0
             inflow_old = -float(outflow0.sum())
         u = guess.copy()
-        for name, c in self.model.fixed.items():
-            u[s.fixed_dofs[name]] = c.temperature(inside1)
+        s.impose_fixed(u, inside1)
         free = s.free_dofs
 
         def residual(field):
@@ -621,8 +608,7 @@ class _Run:
 
         u = initial_field(s)
         self.system_initial = u.copy()
-        for name, fixed in model.fixed.items():
-            u[s.fixed_dofs[name]] = fixed.temperature(0.0)
+        s.impose_fixed(u, 0.0)
         stored = float(s.stored(u).sum())
         recorder = HistoryRecorder(s, dof_locations, self.fields, stored)
         recorder.record(0.0, u, stored, 0.0, dict.fromkeys(s.fixed_dofs, 0.0))
@@ -902,8 +888,7 @@ class _Run:
 
         excursion = 0.0
         if not (model.fluxes or model.heat_sources):
-            bounds = _boundary_temperatures(model, c.end_time)
-            low, high = min(bounds), max(bounds)
+            low, high = model.driving_temperatures(c.end_time)
             excursion = float(
                 max(low - histories["minimum"].min(), histories["maximum"].max() - high, 0.0)
             )
@@ -951,16 +936,7 @@ def _reached(histories, stop: StopWhen) -> bool:
 
 
 def _breakpoints(model: ThermalModel, end: float) -> set[float]:
-    points: set[float] = set()
-    schedules = []
-    for c in model.convection.values():
-        schedules += [c.heat_transfer_coefficient, c.ambient]
-    schedules += [r.surroundings for r in model.radiation.values()]
-    schedules += [f.flux for f in model.fluxes.values()]
-    schedules += [f.temperature for f in model.fixed.values()]
-    schedules += list(model.heat_sources.values())
-    for schedule in schedules:
-        points.update(schedule.breakpoints(end))
+    points = model.breakpoints(end)
     # Round-off (k·period against end_time) must not make sliver steps: points closer than
     # 1e-9·end_time to the end or to the previous point are one point.
     merged: list[float] = []
