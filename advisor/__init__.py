@@ -3,12 +3,12 @@
 Nothing in ``geometries`` or ``fem`` imports this package.
 """
 
-from .assessment import Assessment, LumpedError, Verdict, assess
-from .biot import BiotNumber, biot_numbers
+from .analysis.assessment import Assessment, LumpedError, Verdict, assess
+from .analysis.biot import BiotNumber, biot_numbers
+from .analysis.lumped import FittedExponential, LumpedModel, TwoNodeModel
+from .analysis.modes import SlowestMode, slowest_mode
+from .analysis.quick import QuickCheck, quick_check
 from .errors import AdvisorError, ResultsFolderExistsError
-from .lumped import FittedExponential, LumpedModel, TwoNodeModel
-from .modes import SlowestMode, slowest_mode
-from .quick import QuickCheck, quick_check
 from .results import write_results
 
 __all__ = [

@@ -34,7 +34,7 @@ log = logging.getLogger("soakwise")
 
 
 def build_parser() -> argparse.ArgumentParser:
-    from .starters import SCENARIOS
+    from .casefile.starters import SCENARIOS
 
     parser = argparse.ArgumentParser(
         prog="soakwise",
@@ -163,8 +163,8 @@ def main(argv: list[str] | None = None) -> int:
 def _run(args) -> int:
     from fem import solve
 
-    from .assessment import assess, check_request
-    from .case import load_case
+    from .analysis.assessment import assess, check_request
+    from .casefile.case import load_case
     from .results import check_results_folder, write_results
 
     case = load_case(args.case)  # every check that needs no mesh, before anything is written
@@ -183,8 +183,8 @@ def _run(args) -> int:
 
 
 def _check(args) -> int:
-    from .case import load_case
-    from .quick import quick_check
+    from .analysis.quick import quick_check
+    from .casefile.case import load_case
 
     case = load_case(args.case)
     check = quick_check(case.model(), target=case.advisor_options.get("target"))
@@ -220,7 +220,7 @@ def _demo(args: argparse.Namespace) -> int:
 
 
 def _new(args) -> int:
-    from .starters import starter_text
+    from .casefile.starters import starter_text
 
     out = args.out or Path(f"{args.scenario}.toml")
     if out.exists() and not args.force:

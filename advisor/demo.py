@@ -12,7 +12,7 @@ from __future__ import annotations
 from fem import Convection, Insulated, Material, Solution, ThermalModel, solve
 from geometries import Rectangle
 
-from .assessment import Assessment, assess
+from .analysis.assessment import Assessment, assess
 
 WIDTH, HEIGHT = 0.060, 0.040  # m, the full section
 TARGET = 200.0  # degC

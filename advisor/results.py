@@ -31,7 +31,7 @@ import shutil
 import tempfile
 from pathlib import Path
 
-from .assessment import Assessment
+from .analysis.assessment import Assessment
 from .errors import AdvisorError, ResultsFolderExistsError
 from .writers.animation import mp4_available, write_animation
 from .writers.histories_csv import write_histories_csv

@@ -5,7 +5,7 @@ from __future__ import annotations
 from pathlib import Path
 
 from advisor import assess, write_results
-from advisor.case import load_case
+from advisor.casefile.case import load_case
 from fem import solve
 
 

@@ -58,7 +58,7 @@ from scipy.optimize import brentq, minimize_scalar
 from scipy.special import j0, j1
 
 from advisor import AdvisorError, assess
-from advisor.modes import slowest_mode
+from advisor.analysis.modes import slowest_mode
 from fem import Convection, Insulated, Material, ThermalModel, solve
 from geometries import Circle, Rectangle, Section
 

@@ -22,10 +22,10 @@ import pytest
 
 import fem
 from advisor import assess
-from advisor.case import CaseError, load_case
+from advisor.casefile.case import CaseError, load_case
+from advisor.casefile.starters import SCENARIOS, starter_text
+from advisor.casefile.units import UnitError, quantity
 from advisor.cli import EXIT_OK, EXIT_USAGE, main
-from advisor.starters import SCENARIOS, starter_text
-from advisor.units import UnitError, quantity
 from geometries import Rectangle
 
 CASES = Path(__file__).parent / "cases"

@@ -11,9 +11,9 @@ MODULES = [
     "fem.materials",
     "fem.model",
     "fem.transient",
-    "advisor.assessment",
-    "advisor.modes",
-    "advisor.quick",
+    "advisor.analysis.assessment",
+    "advisor.analysis.modes",
+    "advisor.analysis.quick",
     "geometries.section",
 ]
 

@@ -8,7 +8,7 @@ from pathlib import Path
 
 import pytest
 
-from advisor.starters import SCENARIOS, starter_text
+from advisor.casefile.starters import SCENARIOS, starter_text
 
 EXAMPLES = Path(__file__).resolve().parents[1] / "examples"
 

@@ -25,7 +25,7 @@ def test_ci_runs_the_readme_test_command_exactly():
 
 
 def test_readme_case_example_is_a_valid_case(tmp_path):
-    from advisor.case import load_case
+    from advisor.casefile.case import load_case
 
     text = (ROOT / "README.md").read_text(encoding="utf-8")
     example = text.split("A complete annotated example", 1)[1].split("```toml\n", 1)[1]

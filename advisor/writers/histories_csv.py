@@ -15,7 +15,7 @@ from pathlib import Path
 
 import numpy as np
 
-from ..assessment import Assessment
+from ..analysis.assessment import Assessment
 from .atomic import write_text
 
 

@@ -20,8 +20,8 @@ from matplotlib.tri import Triangulation
 
 from fem import Solution
 
-from ..assessment import Assessment
-from ..lumped import heat_capacity
+from ..analysis.assessment import Assessment
+from ..analysis.lumped import heat_capacity
 from .atomic import write_with
 from .section_fields import outline_segments
 

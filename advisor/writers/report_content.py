@@ -20,8 +20,8 @@ from fem import (
     Radiation,
 )
 
-from ..assessment import Assessment
-from ..biot import mean_coefficient
+from ..analysis.assessment import Assessment
+from ..analysis.biot import mean_coefficient
 from ..caution import CAUTION
 from .plots import clock
 

@@ -14,7 +14,7 @@ import numpy as np
 
 from fem import Constant
 
-from ..assessment import Assessment
+from ..analysis.assessment import Assessment
 from ..caution import CAUTION
 from .atomic import write_text
 

@@ -18,7 +18,7 @@ from scipy.linalg import eigh
 from fem import ThermalModel, assemble
 from fem.forms import KELVIN, STEFAN_BOLTZMANN
 
-from .errors import AdvisorError
+from ..errors import AdvisorError
 from .lumped import exchange_conductance, heat_capacity, mean_initial
 
 DENSE_LIMIT = 400  # below this many unknowns a dense eigensolver is simpler and safe

@@ -8,7 +8,7 @@ import numpy as np
 
 from fem import ThermalModel
 
-from .errors import AdvisorError
+from ..errors import AdvisorError
 from .lumped import mean_initial, radiation_coefficient
 
 COMMON_LIMIT = 0.1  # common practice: lumped estimates are usually accepted below Bi = 0.1

@@ -52,7 +52,7 @@ from geometries import (
     read_section_mesh,
 )
 
-from .errors import AdvisorError
+from ..errors import AdvisorError
 from .units import UnitError, quantity
 
 if sys.version_info >= (3, 11):

@@ -9,8 +9,8 @@ import numpy as np
 
 from fem import Solution, ThermalModel
 
+from ..errors import AdvisorError
 from .biot import COMMON_LIMIT, BiotNumber, biot_numbers, mean_coefficient
-from .errors import AdvisorError
 from .lumped import (
     FittedExponential,
     LumpedModel,

@@ -28,7 +28,7 @@ from scipy.optimize import least_squares
 from fem import ThermalModel
 from fem.forms import KELVIN, STEFAN_BOLTZMANN
 
-from .errors import AdvisorError
+from ..errors import AdvisorError
 
 
 def mean_initial(model: ThermalModel) -> float:
