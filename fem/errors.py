@@ -2,7 +2,25 @@
 
 
 class ModelError(ValueError):
-    """A thermal model or solver request with an invalid value; the message names it."""
+    """A thermal model or solver request with an invalid value; the message names it.
+
+    Attributes
+    ----------
+    argument : str or None
+        The name of the offending argument or field (``"end_time"``, ``"emissivity"``), so a
+        caller that took the value from elsewhere (a case file) can point at its own key.
+    """
+
+    def __init__(self, message: str, *, argument: str | None = None) -> None:
+        super().__init__(message)
+        self.argument = argument
+
+    def __reduce__(self):  # keep ``argument`` when the error crosses to another process
+        return (_rebuild_model_error, (type(self), str(self), self.argument))
+
+
+def _rebuild_model_error(kind: type, message: str, argument: str | None) -> ModelError:
+    return kind(message, argument=argument)
 
 
 class SolverError(RuntimeError):
