@@ -15,7 +15,8 @@ import meshio
 import numpy as np
 
 from .errors import GeometryError
-from .section_mesh import SectionMesh, section_mesh_from_arrays
+from .mesh_arrays import section_mesh_from_arrays
+from .section_mesh import SectionMesh
 
 UNITS = {"m": 1.0, "cm": 1e-2, "mm": 1e-3, "um": 1e-6, "in": 0.0254, "ft": 0.3048}
 _TRIANGLES = {"triangle": 3, "triangle6": 6}

@@ -10,8 +10,11 @@ its heel at the origin.
 
 from __future__ import annotations
 
+from .checks import check_length
 from .errors import GeometryError
-from .shapes import Annulus, Difference, Outline, Rectangle, check_length, rounded_polygon
+from .outline import Outline
+from .shape_tree import Difference
+from .shapes import Annulus, Rectangle, rounded_polygon
 
 
 def _outline(points, sides, radii, corner_names, region) -> Outline:

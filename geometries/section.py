@@ -8,8 +8,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .checks import check_name
 from .errors import GeometryError
-from .shapes import Shape, check_name
+from .shape_tree import Shape
 
 AXIS_GROUP = "axis"
 DEFAULT_MAX_ELEMENTS = 2_000_000

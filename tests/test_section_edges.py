@@ -30,7 +30,7 @@ from geometries import (
     SectionMesh,
     profiles,
 )
-from geometries.section_mesh import FEW_POINTS
+from geometries.point_location import FEW_POINTS
 
 ROUND_OFF = 1e-12  # relative, for what the mesh represents exactly
 SIDES = ("bottom", "right", "top", "left")
