@@ -59,51 +59,67 @@ def read_section_mesh(
         reason = "no reader accepts it" if isinstance(error, SystemExit) else str(error)
         raise GeometryError(f"meshio cannot read {str(path)!r}: {reason}") from None
 
-    points = np.asarray(mesh.points, dtype=float)
-    if points.shape[1] == 3:
-        if np.abs(points[:, 2]).max(initial=0.0) > 1e-12 * max(np.ptp(points[:, :2]), 1e-300):
-            raise GeometryError(f"{path.name}: the mesh is not planar (z varies)")
-        points = points[:, :2]
-    points = points * UNITS[units]
-
+    points = _planar_points(mesh, path.name) * UNITS[units]
     labels = _labels(mesh, label_array, path.name)
-    triangle_blocks = [i for i, b in enumerate(mesh.cells) if b.type in _TRIANGLES]
-    line_blocks = [i for i, b in enumerate(mesh.cells) if b.type in _LINES]
-    other = sorted({b.type for b in mesh.cells} - set(_TRIANGLES) - set(_LINES) - {"vertex"})
-    if other:
-        raise GeometryError(
-            f"{path.name}: cells of type {other} are not supported; "
-            "soakwise reads triangles with boundary lines"
-        )
-    if not triangle_blocks:
-        raise GeometryError(f"{path.name}: the file has no triangles")
-    if len({mesh.cells[i].type for i in triangle_blocks}) > 1:
-        raise GeometryError(f"{path.name}: linear and quadratic triangles are mixed")
-
-    triangles, triangle_labels = _gather(mesh, triangle_blocks, labels)
-    lines, line_labels = _gather(mesh, line_blocks, labels)
-    if triangle_labels is None:
-        regions = {"solid": np.arange(len(triangles))}
-    else:
-        regions = {
-            name: np.flatnonzero(triangle_labels == name)
-            for name in dict.fromkeys(triangle_labels)
-        }
-    if line_labels is None:
-        raise GeometryError(
-            f"{path.name}: the boundary lines carry no labels; name them (gmsh physical "
-            "groups, cell sets or label_array) so no edge silently becomes insulated"
-        )
-    edge_lines = {name: lines[line_labels == name] for name in dict.fromkeys(line_labels)}
-    if "" in edge_lines:
-        raise GeometryError(
-            f"{path.name}: {len(edge_lines['']):d} boundary line(s) carry no label"
-        )
-    if not lines.size:
-        raise GeometryError(f"{path.name}: the file has no boundary lines to name the edges")
+    triangles, regions = _triangles(mesh, labels, path.name)
+    edge_lines = _edge_lines(mesh, labels, path.name)
     return section_mesh_from_arrays(
         points, triangles, edge_lines, regions, axisymmetric=axisymmetric
     )
+
+
+def _planar_points(mesh: meshio.Mesh, name: str) -> np.ndarray:
+    """The nodes as (n, 2) coordinates in the file's unit; a z that varies is refused."""
+    points = np.asarray(mesh.points, dtype=float)
+    if points.shape[1] == 3:
+        if np.abs(points[:, 2]).max(initial=0.0) > 1e-12 * max(np.ptp(points[:, :2]), 1e-300):
+            raise GeometryError(f"{name}: the mesh is not planar (z varies)")
+        points = points[:, :2]
+    return points
+
+
+def _triangles(
+    mesh: meshio.Mesh, labels: list[np.ndarray] | None, name: str
+) -> tuple[np.ndarray, dict[str, np.ndarray]]:
+    """All triangles (one kind, linear or quadratic) and the triangle indices of each region
+    (one region ``solid`` when the triangles carry no labels)."""
+    other = sorted({b.type for b in mesh.cells} - set(_TRIANGLES) - set(_LINES) - {"vertex"})
+    if other:
+        raise GeometryError(
+            f"{name}: cells of type {other} are not supported; "
+            "soakwise reads triangles with boundary lines"
+        )
+    blocks = [i for i, b in enumerate(mesh.cells) if b.type in _TRIANGLES]
+    if not blocks:
+        raise GeometryError(f"{name}: the file has no triangles")
+    if len({mesh.cells[i].type for i in blocks}) > 1:
+        raise GeometryError(f"{name}: linear and quadratic triangles are mixed")
+    triangles, triangle_labels = _gather(mesh, blocks, labels)
+    if triangle_labels is None:
+        return triangles, {"solid": np.arange(len(triangles))}
+    return triangles, {
+        region: np.flatnonzero(triangle_labels == region)
+        for region in dict.fromkeys(triangle_labels)
+    }
+
+
+def _edge_lines(
+    mesh: meshio.Mesh, labels: list[np.ndarray] | None, name: str
+) -> dict[str, np.ndarray]:
+    """The boundary lines of each edge group; every line must carry a label."""
+    blocks = [i for i, b in enumerate(mesh.cells) if b.type in _LINES]
+    lines, line_labels = _gather(mesh, blocks, labels)
+    if line_labels is None:
+        raise GeometryError(
+            f"{name}: the boundary lines carry no labels; name them (gmsh physical "
+            "groups, cell sets or label_array) so no edge silently becomes insulated"
+        )
+    edge_lines = {group: lines[line_labels == group] for group in dict.fromkeys(line_labels)}
+    if "" in edge_lines:
+        raise GeometryError(f"{name}: {len(edge_lines['']):d} boundary line(s) carry no label")
+    if not lines.size:
+        raise GeometryError(f"{name}: the file has no boundary lines to name the edges")
+    return edge_lines
 
 
 def _labels(mesh: meshio.Mesh, label_array: str | None, name: str) -> list[np.ndarray] | None:
