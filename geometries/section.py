@@ -10,10 +10,10 @@ import numpy as np
 
 from .checks import check_name
 from .errors import GeometryError
+from .mesh_options import DEFAULT_MAX_ELEMENTS
 from .shape_tree import Shape
 
 AXIS_GROUP = "axis"
-DEFAULT_MAX_ELEMENTS = 2_000_000
 
 
 @dataclass(frozen=True)

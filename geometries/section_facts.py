@@ -54,7 +54,9 @@ def _element_integrals(mesh: MeshTri) -> tuple[np.ndarray, np.ndarray]:
     return element_area, element_area * x.mean(axis=1)
 
 
-def _edge_integrals(mesh: MeshTri, axisymmetric: bool) -> tuple[dict, dict]:
+def _edge_integrals(
+    mesh: MeshTri, axisymmetric: bool
+) -> tuple[dict[str, float], dict[str, float]]:
     """Length (m) and surface area (m², planar per metre of depth) of every edge group, each
     facet integrated along its quadratic curve through its mid-edge node."""
     lengths, surfaces = {}, {}

@@ -14,13 +14,11 @@ not load gmsh. Its rooms:
 
 from __future__ import annotations
 
-import math
-
 import gmsh
-import numpy as np
 
 from ..errors import GeometryError
-from ..section import DEFAULT_MAX_ELEMENTS, Section
+from ..mesh_options import DEFAULT_MAX_ELEMENTS, check_mesh_options
+from ..section import Section
 from ..section_mesh import SectionMesh
 from ..shape_tree import Shape
 from .edge_naming import name_curves
@@ -95,7 +93,14 @@ def mesh_section(
     if not isinstance(section, Section):
         section = Section(section)
     shape = section.shape
-    _check_options(shape, size, order, refine, max_elements, curvature_elements)
+    check_mesh_options(
+        shape,
+        size,
+        order=order,
+        refine=refine,
+        max_elements=max_elements,
+        curvature_elements=curvature_elements,
+    )
 
     with gmsh_session():
         regions = build_regions(shape)
@@ -133,37 +138,6 @@ def boundary_groups(section: Section | Shape) -> set[str]:
         regions = build_regions(section.shape)
         gmsh.model.occ.synchronize()
         return set(name_curves(section, regions))
-
-
-def _check_options(shape, size, order, refine, max_elements, curvature_elements) -> None:
-    if not isinstance(size, int | float | np.floating) or not (math.isfinite(size) and size > 0):
-        raise GeometryError(f"mesh size must be a finite length > 0 m, got {size!r}")
-    if size > shape.size:
-        raise GeometryError(
-            f"mesh size {size} m is larger than the section ({shape.size:.6g} m); "
-            "choose a size below the section's smallest feature"
-        )
-    if order not in (1, 2):
-        raise GeometryError(f"element order must be 1 or 2, got {order!r}")
-    if not isinstance(max_elements, int) or max_elements < 1:
-        raise GeometryError(f"max_elements must be a whole number >= 1, got {max_elements!r}")
-    if not isinstance(curvature_elements, int) or curvature_elements < 0:
-        raise GeometryError(
-            f"curvature_elements must be a whole number >= 0, got {curvature_elements!r}"
-        )
-    for group, value in (refine or {}).items():
-        try:
-            local, growth = (float(v) for v in value)
-        except (TypeError, ValueError):
-            raise GeometryError(
-                f"refine[{group!r}] must be (size in m, growth factor), got {value!r}"
-            ) from None
-        if not (0 < local <= size):
-            raise GeometryError(
-                f"refine[{group!r}] size must be in (0, {size}] m (the global size), got {local}"
-            )
-        if not (growth > 1):
-            raise GeometryError(f"refine[{group!r}] growth must be > 1, got {growth}")
 
 
 def _splits(estimate: float) -> int:
