@@ -9,7 +9,7 @@ import numpy as np
 from fem import ThermalModel
 
 from ..errors import AdvisorError
-from .lumped import mean_initial, radiation_coefficient
+from .lumped import mean_coefficient, mean_initial
 
 COMMON_LIMIT = 0.1  # common practice: lumped estimates are usually accepted below Bi = 0.1
 
@@ -44,21 +44,6 @@ class BiotNumber:
     explanation: str
 
 
-def mean_coefficient(model: ThermalModel, temperature: float, time: float) -> float:
-    """Surface-weighted mean of h over the exchanging edges, radiation linearised, W/(m²·K)."""
-    surfaces = model.section.facts.surface_areas
-    groups = model.exchange_groups
-    total = 0.0
-    for name, c in model.convection.items():
-        total += c.heat_transfer_coefficient(time) * surfaces[name]
-    for name, r in model.radiation.items():
-        total += (
-            radiation_coefficient(r.emissivity, temperature, r.surroundings(time))
-            * (surfaces[name])
-        )
-    return total / sum(surfaces[g] for g in groups)
-
-
 def biot_numbers(
     model: ThermalModel,
     *,
@@ -68,7 +53,8 @@ def biot_numbers(
     """Biot numbers of the model's section under its surface conditions.
 
     Only edges that exchange heat count as exposed. With several coefficients the mean weighted
-    by surface area is used; radiation enters as εσ(T² + T_s²)(T + T_s). The value is for the
+    by surface area is used; each condition enters with its coefficient linearised at the
+    surface temperature (radiation as εσ(T² + T_s²)(T + T_s)). The value is for the
     start; the range covers coefficients over [0, ``end_time``] and temperatures in
     ``temperature_range`` (°C; default the initial temperature). With several materials the
     lowest conductivity is used (the worst case). V and A_s are the section's volume and
