@@ -296,48 +296,14 @@ def assemble(model: ThermalModel) -> ConductionSystem:
         r: basis if len(e) == mesh.t.shape[1] else Basis(mesh, element, elements=e)
         for r, e in mesh.subdomains.items()
     }
-    materials = model.materials
-
-    capacity = stiffness = None
-    for region, region_basis in region_bases.items():
-        material: Material = materials[region]
-        # Temperature-dependent properties are assembled later at the field's temperatures;
-        # these constant matrices then only hold the pattern and are not used.
-        rho_c = material.volumetric_heat_capacity
-        k = material.nominal_conductivity
-        c = asm(
-            forms.heat_capacity,
-            region_basis,
-            volumetric_heat_capacity=float(rho_c),
-            axisymmetric=axisymmetric,
-        )
-        s = asm(forms.conduction, region_basis, conductivity=k, axisymmetric=axisymmetric)
-        capacity = c if capacity is None else capacity + c
-        stiffness = s if stiffness is None else stiffness + s
-
-    edges: dict[str, EdgeTerms] = {}
-    for name, group_conditions in model.boundaries.items():
-        flowing = tuple(c for c in group_conditions if c.flows)
-        if flowing:
-            edge = FacetBasis(mesh, element, facets=mesh.boundaries[name])
-            weights = asm(forms.shape_integral, edge, axisymmetric=axisymmetric)
-            edges[name] = EdgeTerms(edge, weights, float(weights.sum()), axisymmetric, flowing)
-
+    capacity, stiffness = _matrices(model, region_bases)
     source_weights = {
         r: asm(forms.shape_integral, region_bases[r], axisymmetric=axisymmetric)
         for r in model.heat_sources
     }
     volume_weights = asm(forms.shape_integral, basis, axisymmetric=axisymmetric)
     volume_weights /= volume_weights.sum()
-
-    fixed_dofs: dict[str, np.ndarray] = {}
-    taken: set[int] = set()
-    for name in model.fixed:
-        dofs = [d for d in basis.get_dofs(facets=mesh.boundaries[name]).all() if d not in taken]
-        taken.update(dofs)
-        fixed_dofs[name] = np.array(sorted(dofs), dtype=np.int64)
-    free = np.setdiff1d(np.arange(basis.N), np.array(sorted(taken), dtype=np.int64))
-
+    fixed_dofs, free = _fixed_dofs(model, basis)
     points = np.array([model.probes[name] for name in model.probes], dtype=float).reshape(-1, 2)
     probe_matrix = _probe_matrix(basis, points.T, model.section.locate(points.T))
     return ConductionSystem(
@@ -345,9 +311,9 @@ def assemble(model: ThermalModel) -> ConductionSystem:
         basis=basis,
         region_bases=region_bases,
         size=int(basis.N),
-        capacity=capacity.tocsr(),
-        stiffness=stiffness.tocsr(),
-        edges=edges,
+        capacity=capacity,
+        stiffness=stiffness,
+        edges=_edge_terms(model, element),
         source_weights=source_weights,
         volume_weights=volume_weights,
         probe_matrix=probe_matrix,
@@ -355,6 +321,58 @@ def assemble(model: ThermalModel) -> ConductionSystem:
         fixed_dofs=fixed_dofs,
         free_dofs=free,
     )
+
+
+def _matrices(model: ThermalModel, region_bases: dict[str, Basis]):
+    """The capacity M (J/K) and stiffness K (W/K) at the nominal properties."""
+    axisymmetric = model.section.axisymmetric
+    capacity = stiffness = None
+    for region, region_basis in region_bases.items():
+        material: Material = model.materials[region]
+        # Temperature-dependent properties are assembled later at the field's temperatures;
+        # these constant matrices then only hold the pattern and are not used.
+        c = asm(
+            forms.heat_capacity,
+            region_basis,
+            volumetric_heat_capacity=float(material.volumetric_heat_capacity),
+            axisymmetric=axisymmetric,
+        )
+        s = asm(
+            forms.conduction,
+            region_basis,
+            conductivity=material.nominal_conductivity,
+            axisymmetric=axisymmetric,
+        )
+        capacity = c if capacity is None else capacity + c
+        stiffness = s if stiffness is None else stiffness + s
+    return capacity.tocsr(), stiffness.tocsr()
+
+
+def _edge_terms(model: ThermalModel, element) -> dict[str, EdgeTerms]:
+    """Edge terms for every group with a condition through which heat flows."""
+    mesh, axisymmetric = model.section.mesh, model.section.axisymmetric
+    edges: dict[str, EdgeTerms] = {}
+    for name, group_conditions in model.boundaries.items():
+        flowing = tuple(c for c in group_conditions if c.flows)
+        if flowing:
+            edge = FacetBasis(mesh, element, facets=mesh.boundaries[name])
+            weights = asm(forms.shape_integral, edge, axisymmetric=axisymmetric)
+            edges[name] = EdgeTerms(edge, weights, float(weights.sum()), axisymmetric, flowing)
+    return edges
+
+
+def _fixed_dofs(model: ThermalModel, basis: Basis) -> tuple[dict[str, np.ndarray], np.ndarray]:
+    """The held degrees of freedom of each fixed-temperature group (a shared corner goes to
+    the first) and the free ones."""
+    fixed_dofs: dict[str, np.ndarray] = {}
+    taken: set[int] = set()
+    for name in model.fixed:
+        facets = model.section.mesh.boundaries[name]
+        dofs = [d for d in basis.get_dofs(facets=facets).all() if d not in taken]
+        taken.update(dofs)
+        fixed_dofs[name] = np.array(sorted(dofs), dtype=np.int64)
+    free = np.setdiff1d(np.arange(basis.N), np.array(sorted(taken), dtype=np.int64))
+    return fixed_dofs, free
 
 
 def initial_field(system: ConductionSystem) -> np.ndarray:

@@ -63,19 +63,13 @@ def biot_numbers(
     groups = model.exchange_groups
     if not groups:
         raise AdvisorError("the model has no edge that exchanges heat, so it has no Biot number")
-    facts = model.section.facts
     t0 = mean_initial(model)
     low_t, high_t = temperature_range or (t0, t0)
     h0 = mean_coefficient(model, t0, 0.0)
     k0 = min(float(m.conductivity_at(t0)) for m in model.materials.values())
     hs, ks = _coefficient_range(model, end_time, low_t, high_t)
 
-    exposed_surface = sum(facts.surface_areas[g] for g in groups)
-    exposed_length = sum(facts.edge_lengths[g] for g in groups)
-    volume_to_surface = facts.volume / exposed_surface
-    farthest = model.section.max_distance_to(groups)
-
-    def number(name, length, explanation):
+    def number(name: str, length: float) -> BiotNumber:
         return BiotNumber(
             name,
             h0 * length / k0,
@@ -83,36 +77,41 @@ def biot_numbers(
             h0,
             min(hs) * length / max(ks),
             max(hs) * length / min(ks),
-            explanation,
+            EXPLANATIONS[name],
         )
 
-    numbers = [
-        number(
-            "volume_to_surface",
-            volume_to_surface,
-            "L = V / A_s (planar: area / exposed perimeter), the length of the lumped rule "
-            f"of thumb: below {COMMON_LIMIT} (common practice) one temperature usually "
-            "stands for the part",
-        ),
-        number(
-            "conduction_distance",
-            farthest,
-            "L = the largest distance from any point to a heat-exchanging edge: the "
-            "half-thickness of a plate, the radius of a round; it measures the slowest "
-            "internal path against the surface",
-        ),
-    ]
+    return tuple(number(name, length) for name, length in _lengths(model).items())
+
+
+EXPLANATIONS = {
+    "volume_to_surface": (
+        "L = V / A_s (planar: area / exposed perimeter), the length of the lumped rule "
+        f"of thumb: below {COMMON_LIMIT} (common practice) one temperature usually "
+        "stands for the part"
+    ),
+    "four_area_over_perimeter": (
+        "L = 4 × area / exposed perimeter (the hydraulic-diameter convention), twice the "
+        "planar V/A_s length: numbers quoted this way are larger by 2 for the same part"
+    ),
+    "conduction_distance": (
+        "L = the largest distance from any point to a heat-exchanging edge: the "
+        "half-thickness of a plate, the radius of a round; it measures the slowest "
+        "internal path against the surface"
+    ),
+}
+
+
+def _lengths(model: ThermalModel) -> dict[str, float]:
+    """The length scales in m, in report order (4A/P only for planar sections)."""
+    groups = model.exchange_groups
+    facts = model.section.facts
+    exposed_surface = sum(facts.surface_areas[g] for g in groups)
+    lengths = {"volume_to_surface": facts.volume / exposed_surface}
     if not facts.axisymmetric:
-        numbers.insert(
-            1,
-            number(
-                "four_area_over_perimeter",
-                4 * facts.area / exposed_length,
-                "L = 4 × area / exposed perimeter (the hydraulic-diameter convention), twice the "
-                "planar V/A_s length: numbers quoted this way are larger by 2 for the same part",
-            ),
-        )
-    return tuple(numbers)
+        exposed_length = sum(facts.edge_lengths[g] for g in groups)
+        lengths["four_area_over_perimeter"] = 4 * facts.area / exposed_length
+    lengths["conduction_distance"] = model.section.max_distance_to(groups)
+    return lengths
 
 
 def _coefficient_range(model, end_time, low_t, high_t):
