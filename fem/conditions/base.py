@@ -166,6 +166,7 @@ class Condition:
         flow = self.supplied(time) * edge.area
         h = self.exchange_coefficient(time)
         if h:
+            # einsum, not BLAS dot: fem.system.inner says why (per-step histories)
             flow -= h * float(np.einsum("i,i->", edge.weights, temperature))
         remainder = self.outflow(edge, temperature, time)
         return flow if remainder is None else flow - float(remainder.sum())
