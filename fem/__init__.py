@@ -4,7 +4,7 @@ This package knows heat and numerics only: no lumped models, no reports.
 """
 
 from . import solids
-from .boundary import (
+from .conditions import (
     BoundaryCondition,
     Convection,
     FixedTemperature,

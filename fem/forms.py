@@ -1,7 +1,9 @@
 """Every scikit-fem form of the project: the weak form of transient conduction.
 
-ρc ∂T/∂t (as dH/dt, H = ∫ρc dT) + ∇·(−k ∇T) = q̇ in the section, with on its edges
-q = h (T∞ − T) + εσ (T_sur⁴ − T⁴) + q_s into the part.
+ρc ∂T/∂t (as dH/dt, H = ∫ρc dT) + ∇·(−k ∇T) = q̇ in the section, with on its edges the heat
+flux q(T, t) into the part that each boundary condition states (:mod:`fem.conditions`). The
+edge forms know no particular condition: an exchange with a coefficient and a load with a flux,
+either given at the quadrature points, serve every kind.
 
 Planar sections are per metre of depth (dV = dA, dS = ds). Axisymmetric sections are revolved
 about x = 0 with x the radius: dV = 2πr dA and dS = 2πr ds, so every quantity is for the whole
@@ -13,9 +15,6 @@ that depend on temperature.
 import numpy as np
 from skfem import BilinearForm, LinearForm
 from skfem.helpers import dot, grad
-
-STEFAN_BOLTZMANN = 5.670374419e-8  # W/(m²·K⁴), CODATA 2018 exact value
-KELVIN = 273.15  # K at 0 °C: the one place temperatures are converted
 
 
 def _measure(w):
@@ -59,23 +58,15 @@ def enthalpy(v, w):
 
 @BilinearForm
 def surface_exchange(u, v, w):
-    """Robin entries ∫_Γ h φ_j φ_i dS; ``w.heat_transfer_coefficient`` in W/(m²·K)."""
-    return w.heat_transfer_coefficient * u * v * _measure(w)
+    """Robin entries ∫_Γ c φ_j φ_i dS; ``w.coefficient`` in W/(m²·K), a number or an array at
+    the quadrature points (a condition's linear coefficient or its tangent)."""
+    return w.coefficient * u * v * _measure(w)
 
 
 @LinearForm
-def radiation_residual(v, w):
-    """∫_Γ εσ (T⁴ − T_sur⁴) φ_i dS, the heat radiated out; ``w.temperature`` and
-    ``w.surroundings`` in °C, raised to the fourth power in kelvin."""
-    t, s = w.temperature + KELVIN, w.surroundings + KELVIN
-    return w.emissivity * STEFAN_BOLTZMANN * (t**4 - s**4) * v * _measure(w)
-
-
-@BilinearForm
-def radiation_tangent(u, v, w):
-    """Derivative of the radiated heat: ∫_Γ 4εσ T³ δ φ_i dS (kelvin)."""
-    t = w.temperature + KELVIN
-    return 4.0 * w.emissivity * STEFAN_BOLTZMANN * t**3 * u * v * _measure(w)
+def surface_load(v, w):
+    """∫_Γ q φ_i dS; ``w.flux`` in W/m², a number or an array at the quadrature points."""
+    return w.flux * v * _measure(w)
 
 
 @LinearForm

@@ -9,6 +9,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from .errors import ModelError
+from .temperatures import ABSOLUTE_ZERO
 
 
 class PropertyRangeWarning(UserWarning):
@@ -44,8 +45,8 @@ class PropertyTable:
             raise ModelError(
                 f"property table temperatures must increase strictly, got {t.tolist()}"
             )
-        if np.any(t <= -273.15):
-            raise ModelError("property table temperatures must be above -273.15 degC")
+        if np.any(t <= ABSOLUTE_ZERO):
+            raise ModelError(f"property table temperatures must be above {ABSOLUTE_ZERO:g} degC")
         if np.any(v <= 0):
             raise ModelError(f"property table values must be > 0, got {v.tolist()}")
         object.__setattr__(self, "temperatures", tuple(t.tolist()))

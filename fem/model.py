@@ -10,8 +10,7 @@ import numpy as np
 
 from geometries import AXIS_GROUP, GeometryError, SectionMesh
 
-from .boundary import (
-    ABSOLUTE_ZERO,
+from .conditions import (
     Condition,
     Convection,
     FixedTemperature,
@@ -23,6 +22,7 @@ from .boundary import (
 from .errors import ModelError
 from .materials import Material
 from .schedules import Schedule, as_schedule
+from .temperatures import ABSOLUTE_ZERO, above_absolute_zero
 
 
 @dataclass(frozen=True)
@@ -181,7 +181,7 @@ class ThermalModel:
 
     def conditions_of(self, kind) -> dict[str, object]:
         """The conditions of one kind (e.g. ``Convection``), keyed by edge group."""
-        return {n: c for n, cs in self.boundaries.items() for c in cs if isinstance(c, kind)}
+        return {n: c for n, c in self.conditions() if isinstance(c, kind)}
 
     @property
     def convection(self) -> dict[str, Convection]:
@@ -197,17 +197,21 @@ class ThermalModel:
 
     @property
     def fixed(self) -> dict[str, FixedTemperature]:
-        return self.conditions_of(FixedTemperature)
+        """The conditions that hold the surface temperature, keyed by edge group."""
+        return {n: c for n, c in self.conditions() if c.holds_temperature}
 
     @property
     def exchange_groups(self) -> tuple[str, ...]:
-        """Edge groups that exchange heat with surroundings (convection or radiation), sorted."""
-        return tuple(sorted(set(self.convection) | set(self.radiation)))
+        """Edge groups that exchange heat with surroundings (convection, radiation, any kind
+        with a coefficient), sorted."""
+        return tuple(sorted({n for n, c in self.conditions() if c.exchanges}))
 
     @property
     def is_linear(self) -> bool:
-        """True when no property depends on temperature and nothing radiates."""
-        return all(m.is_constant for m in self.materials.values()) and not self.radiation
+        """True when no property depends on temperature and every condition is linear."""
+        return all(m.is_constant for m in self.materials.values()) and all(
+            c.linear for _, c in self.conditions()
+        )
 
     @property
     def starts_from_field(self) -> bool:
@@ -221,28 +225,19 @@ class ThermalModel:
     def breakpoints(self, end_time: float) -> tuple[float, ...]:
         """Times in (0, end_time] where a condition or a source jumps or kinks, sorted (not
         merged: the solver merges points within round-off of each other)."""
-        schedules = []
-        for c in self.convection.values():
-            schedules += [c.heat_transfer_coefficient, c.ambient]
-        schedules += [r.surroundings for r in self.radiation.values()]
-        schedules += [f.flux for f in self.fluxes.values()]
-        schedules += [f.temperature for f in self.fixed.values()]
-        schedules += list(self.heat_sources.values())
         points: set[float] = set()
-        for schedule in schedules:
-            points.update(schedule.breakpoints(end_time))
+        for _, condition in self.conditions():
+            points.update(condition.breakpoints(end_time))
+        for source in self.heat_sources.values():
+            points.update(source.breakpoints(end_time))
         return tuple(sorted(points))
 
     def driving_temperatures(self, end_time: float) -> tuple[float, float]:
         """Lowest and highest of the initial temperatures and every temperature a condition
         drives the part towards over [0, end_time], °C."""
         values = [*self.initial_range()]
-        for c in self.convection.values():
-            values.extend(c.ambient.extremes(end_time))
-        for r in self.radiation.values():
-            values.extend(r.surroundings.extremes(end_time))
-        for f in self.fixed.values():
-            values.extend(f.temperature.extremes(end_time))
+        for _, condition in self.conditions():
+            values.extend(condition.driving_temperatures(end_time))
         return (min(values), max(values))
 
     def initial_range(self) -> tuple[float, float]:
@@ -256,7 +251,5 @@ class ThermalModel:
 
 
 def _check_temperature(value, what: str) -> None:
-    if not (
-        isinstance(value, int | float | np.number) and np.isfinite(value) and value > ABSOLUTE_ZERO
-    ):
-        raise ModelError(f"{what} must be above -273.15 degC, got {value!r}")
+    if not (isinstance(value, int | float | np.number) and above_absolute_zero(value)):
+        raise ModelError(f"{what} must be above {ABSOLUTE_ZERO:g} degC, got {value!r}")

@@ -7,6 +7,7 @@ the time stepper never steps over one.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from dataclasses import dataclass
 
@@ -267,8 +268,25 @@ def as_schedule(value, what: str) -> Schedule:
     )
 
 
-def is_piecewise_constant(schedule: Schedule) -> bool:
-    """True when the value only jumps at breakpoints and is constant between them."""
-    if isinstance(schedule, Periodic):
-        return isinstance(schedule.schedule, Steps) or schedule.is_constant
-    return isinstance(schedule, Constant | Steps) or schedule.is_constant
+def schedule_text(value, unit: str, end_time: float) -> str:
+    """A number or schedule in words for a report: ``"400 W/(m²·K)"``, or its kind and range
+    over [0, ``end_time``] s."""
+    if isinstance(value, Constant):
+        return f"{value.value:.4g} {unit}"
+    if isinstance(value, int | float):
+        return f"{value:.4g} {unit}"
+    low, high = value.extremes(end_time)
+    return f"{type(value).__name__} schedule, {low:.4g} to {high:.4g} {unit}"
+
+
+def schedule_data(value):
+    """A number or schedule as plain data for JSON: a constant stays a number, a schedule
+    becomes its kind and parameters."""
+    if isinstance(value, Constant):
+        return value.value
+    if dataclasses.is_dataclass(value):
+        data = {"schedule": type(value).__name__}
+        for field in dataclasses.fields(value):
+            data[field.name] = schedule_data(getattr(value, field.name))
+        return data
+    return value

@@ -1,21 +1,25 @@
 """Assembly of the semi-discrete system C(T)' + G(T, t) = 0 for a thermal model.
 
 C(T) is the heat stored (∫H(T)φ_i dV, J; the capacity matrix M times T when ρc is constant) and
-G(T, t) = K(T)·T + Σ h(t)·H_g·T − b(t) + R(T, t) the net heat leaving each node (W): conduction,
-convection, radiation R, minus fluxes and sources in b. Everything that does not depend on
-temperature is assembled once; temperature-dependent parts (k(T), ρc(T), radiation) are
-assembled when asked for, at the quadrature points of the current field.
+G(T, t) = K(T)·T + Σ h(t)·H_g·T − b(t) + R(T, t) the net heat leaving each node (W):
+conduction, the linear part of every boundary condition (coefficients h with the unit exchange
+matrices H_g, loads in b, with the sources), and the nonlinear remainders R the conditions
+evaluate themselves (:mod:`fem.conditions`). Everything that does not depend on temperature is
+assembled once; temperature-dependent parts (k(T), ρc(T), nonlinear conditions) are assembled
+when asked for, at the quadrature points of the current field.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import cached_property
 
 import numpy as np
 import scipy.sparse as sp
 from skfem import Basis, ElementTriP1, ElementTriP2, FacetBasis, asm
 
 from . import forms
+from .conditions import Condition
 from .materials import Material
 from .model import ThermalModel
 
@@ -30,12 +34,44 @@ def inner(a: np.ndarray, b: np.ndarray) -> float:
 
 @dataclass
 class EdgeTerms:
-    """One edge group's basis and the pieces of its conditions."""
+    """One edge group's basis and what its conditions ask of it (a
+    :class:`fem.conditions.SurfaceEdge`): fields at its quadrature points, fluxes given there
+    integrated against the shape functions, and exchange matrices for coefficients given
+    there."""
 
     basis: FacetBasis
     weights: np.ndarray  # ∫ φ_i dS
-    area: float = 0.0  # Σ weights: the group's surface area
-    exchange_matrix: sp.csr_matrix | None = None  # ∫ φ_j φ_i dS (for h·…)
+    area: float  # Σ weights: the group's surface area
+    axisymmetric: bool
+    conditions: tuple[Condition, ...]  # those of its conditions through which heat flows
+
+    @cached_property
+    def exchange_matrix(self) -> sp.csr_matrix:
+        """∫ φ_j φ_i dS: the exchange matrix of a unit coefficient, m²."""
+        return self._exchange(1.0)
+
+    def interpolate(self, field_: np.ndarray) -> np.ndarray:
+        """The nodal ``field_`` at the quadrature points, shape (facets, points)."""
+        return np.asarray(self.basis.interpolate(field_))
+
+    def integrate(self, flux) -> np.ndarray:
+        """∫ q φ_i dS per node, ``flux`` q in W/m² at the quadrature points (or a number)."""
+        return asm(forms.surface_load, self.basis, flux=flux, axisymmetric=self.axisymmetric)
+
+    def exchange(self, coefficient) -> sp.csr_matrix:
+        """∫ c φ_j φ_i dS, ``coefficient`` c in W/(m²·K) at the quadrature points (or a
+        number)."""
+        if np.ndim(coefficient) == 0:
+            return coefficient * self.exchange_matrix
+        return self._exchange(coefficient)
+
+    def _exchange(self, coefficient) -> sp.csr_matrix:
+        return asm(
+            forms.surface_exchange,
+            self.basis,
+            coefficient=coefficient,
+            axisymmetric=self.axisymmetric,
+        ).tocsr()
 
 
 @dataclass
@@ -82,28 +118,42 @@ class ConductionSystem:
     def axisymmetric(self) -> bool:
         return self.model.section.axisymmetric
 
+    def flowing(self):
+        """Every (edge terms, condition) pair through which heat flows, in group order."""
+        return [(edge, c) for edge in self.edges.values() for c in edge.conditions]
+
     # -- linear pieces --------------------------------------------------------------------
     def exchange_operator(self, time: float) -> sp.csr_matrix:
         """A(t) = K + Σ h_g(t)·H_g for constant conductivity (W/K)."""
         operator = self.stiffness
-        for name, condition in self.model.convection.items():
-            operator = (
-                operator
-                + condition.heat_transfer_coefficient(time) * self.edges[name].exchange_matrix
-            )
+        for edge, condition in self.flowing():
+            h = condition.exchange_coefficient(time)
+            if h:
+                operator = operator + h * edge.exchange_matrix
         return operator.tocsr()
 
     def exchange_key(self, time: float) -> tuple[float, ...]:
         """The coefficients A(t) depends on: equal keys mean equal matrices."""
-        return tuple(c.heat_transfer_coefficient(time) for c in self.model.convection.values())
+        return tuple(c.exchange_coefficient(time) for _, c in self.flowing())
+
+    def linearised_operator(self, temperature: float, time: float) -> sp.csr_matrix:
+        """K + Σ h_g·H_g with every condition's coefficient linearised at one surface
+        ``temperature`` °C (the secant: see :meth:`fem.conditions.Condition.linearised`), W/K."""
+        operator = self.stiffness
+        for edge, condition in self.flowing():
+            h = condition.linearised(temperature, time).coefficient
+            if h:
+                operator = operator + h * edge.exchange_matrix
+        return operator.tocsr()
 
     def load(self, time: float) -> np.ndarray:
-        """b(t): convection towards the ambient, fluxes and sources (W)."""
+        """b(t): the conditions' loads (convection towards the ambient, fluxes) and sources
+        (W)."""
         b = np.zeros(self.size)
-        for name, c in self.model.convection.items():
-            b += c.heat_transfer_coefficient(time) * c.ambient(time) * self.edges[name].weights
-        for name, c in self.model.fluxes.items():
-            b += c.flux(time) * self.edges[name].weights
+        for edge, condition in self.flowing():
+            supplied = condition.supplied(time)
+            if supplied:
+                b += supplied * edge.weights
         for region, q in self.model.heat_sources.items():
             b += q(time) * self.source_weights[region]
         return b
@@ -146,25 +196,14 @@ class ConductionSystem:
     def net_outflow(self, temperature: np.ndarray, time: float) -> np.ndarray:
         """G(T, t): heat leaving each node (W), conduction included."""
         g = self._conduction(temperature) - self.load(time)
-        for name, c in self.model.convection.items():
-            g += c.heat_transfer_coefficient(time) * (
-                self.edges[name].exchange_matrix @ temperature
-            )
-        for name in self.model.radiation:
-            g += self._radiated(name, temperature, time)
+        for edge, condition in self.flowing():
+            h = condition.exchange_coefficient(time)
+            if h:
+                g += h * (edge.exchange_matrix @ temperature)
+            remainder = condition.outflow(edge, temperature, time)
+            if remainder is not None:
+                g += remainder
         return g
-
-    def _radiated(self, name: str, temperature: np.ndarray, time: float) -> np.ndarray:
-        """∫ εσ(T⁴ − T_sur⁴) φ_i dS over one edge group: the heat it radiates away, W."""
-        r, edge = self.model.radiation[name], self.edges[name]
-        return asm(
-            forms.radiation_residual,
-            edge.basis,
-            temperature=edge.basis.interpolate(temperature),
-            emissivity=r.emissivity,
-            surroundings=r.surroundings(time),
-            axisymmetric=self.axisymmetric,
-        )
 
     def outflow_tangent(self, temperature: np.ndarray, time: float) -> sp.csr_matrix:
         """dG/dT (W/K)."""
@@ -183,16 +222,10 @@ class ConductionSystem:
                     conductivity_slope=material.conductivity_slope(np.asarray(t)),
                     axisymmetric=self.axisymmetric,
                 )
-        for name, r in self.model.radiation.items():
-            edge = self.edges[name]
-            t = edge.basis.interpolate(temperature)
-            total = total + asm(
-                forms.radiation_tangent,
-                edge.basis,
-                temperature=t,
-                emissivity=r.emissivity,
-                axisymmetric=self.axisymmetric,
-            )
+        for edge, condition in self.flowing():
+            tangent = condition.outflow_tangent(edge, temperature, time)
+            if tangent is not None:
+                total = total + tangent
         return total.tocsr()
 
     def _conduction(self, temperature: np.ndarray) -> np.ndarray:
@@ -212,44 +245,27 @@ class ConductionSystem:
 
     # -- what the histories report ----------------------------------------------------------
     def edge_heat_flows(self, temperature: np.ndarray, time: float) -> dict[str, float]:
-        """Heat flow into the part through each convective, radiating or flux edge group (W)."""
-        flows: dict[str, float] = {}
-        for name, c in self.model.convection.items():
-            edge = self.edges[name]
-            flows[name] = flows.get(name, 0.0) + c.heat_transfer_coefficient(time) * (
-                c.ambient(time) * edge.area - inner(edge.weights, temperature)
-            )
-        for name in self.model.radiation:
-            flows[name] = flows.get(name, 0.0) - float(
-                self._radiated(name, temperature, time).sum()
-            )
-        for name, c in self.model.fluxes.items():
-            flows[name] = flows.get(name, 0.0) + c.flux(time) * self.edges[name].area
-        return flows
+        """Heat flow into the part through each edge group with a flowing condition (W)."""
+        return {
+            name: sum(c.heat_flow(edge, temperature, time) for c in edge.conditions)
+            for name, edge in self.edges.items()
+        }
 
     def edge_heat_flows_many(
         self, times: np.ndarray, temperatures: np.ndarray
     ) -> dict[str, np.ndarray]:
         """Heat flow into the part through each edge group of a linear model (W) for many
         states at once, ``temperatures`` one per row: one product per group for the batch."""
-        flows: dict[str, np.ndarray] = {}
-        for name, c in self.model.convection.items():
-            edge = self.edges[name]
-            h = np.array([c.heat_transfer_coefficient(t) for t in times])
-            ambient = np.array([c.ambient(t) for t in times])
-            flow = h * (ambient * edge.area - temperatures @ edge.weights)
-            flows[name] = flows.get(name, 0.0) + flow
-        for name, c in self.model.fluxes.items():
-            flows[name] = flows.get(name, 0.0) + np.array([c.flux(t) for t in times]) * (
-                self.edges[name].area
-            )
-        return flows
+        return {
+            name: sum(c.heat_flows_many(edge, times, temperatures) for c in edge.conditions)
+            for name, edge in self.edges.items()
+        }
 
     def impose_fixed(self, temperature: np.ndarray, time: float) -> None:
         """Set the fixed-temperature degrees of freedom of ``temperature`` to their values at
         ``time`` (in place)."""
         for name, c in self.model.fixed.items():
-            temperature[self.fixed_dofs[name]] = c.temperature(time)
+            temperature[self.fixed_dofs[name]] = c.held_temperature(time)
 
     def generated(self, time: float) -> float:
         """Heat generated in the part (W)."""
@@ -280,55 +296,14 @@ def assemble(model: ThermalModel) -> ConductionSystem:
         r: basis if len(e) == mesh.t.shape[1] else Basis(mesh, element, elements=e)
         for r, e in mesh.subdomains.items()
     }
-    materials = model.materials
-
-    capacity = stiffness = None
-    for region, region_basis in region_bases.items():
-        material: Material = materials[region]
-        # Temperature-dependent properties are assembled later at the field's temperatures;
-        # these constant matrices then only hold the pattern and are not used.
-        rho_c = material.volumetric_heat_capacity
-        k = material.nominal_conductivity
-        c = asm(
-            forms.heat_capacity,
-            region_basis,
-            volumetric_heat_capacity=float(rho_c),
-            axisymmetric=axisymmetric,
-        )
-        s = asm(forms.conduction, region_basis, conductivity=k, axisymmetric=axisymmetric)
-        capacity = c if capacity is None else capacity + c
-        stiffness = s if stiffness is None else stiffness + s
-
-    edges: dict[str, EdgeTerms] = {}
-    exchanging = set(model.convection) | set(model.radiation) | set(model.fluxes)
-    for name in exchanging:
-        edge = FacetBasis(mesh, element, facets=mesh.boundaries[name])
-        weights = asm(forms.shape_integral, edge, axisymmetric=axisymmetric)
-        terms = EdgeTerms(edge, weights, float(weights.sum()))
-        if name in model.convection or name in model.radiation:
-            terms.exchange_matrix = asm(
-                forms.surface_exchange,
-                edge,
-                heat_transfer_coefficient=1.0,
-                axisymmetric=axisymmetric,
-            ).tocsr()
-        edges[name] = terms
-
+    capacity, stiffness = _matrices(model, region_bases)
     source_weights = {
         r: asm(forms.shape_integral, region_bases[r], axisymmetric=axisymmetric)
         for r in model.heat_sources
     }
     volume_weights = asm(forms.shape_integral, basis, axisymmetric=axisymmetric)
     volume_weights /= volume_weights.sum()
-
-    fixed_dofs: dict[str, np.ndarray] = {}
-    taken: set[int] = set()
-    for name in model.fixed:
-        dofs = [d for d in basis.get_dofs(facets=mesh.boundaries[name]).all() if d not in taken]
-        taken.update(dofs)
-        fixed_dofs[name] = np.array(sorted(dofs), dtype=np.int64)
-    free = np.setdiff1d(np.arange(basis.N), np.array(sorted(taken), dtype=np.int64))
-
+    fixed_dofs, free = _fixed_dofs(model, basis)
     points = np.array([model.probes[name] for name in model.probes], dtype=float).reshape(-1, 2)
     probe_matrix = _probe_matrix(basis, points.T, model.section.locate(points.T))
     return ConductionSystem(
@@ -336,9 +311,9 @@ def assemble(model: ThermalModel) -> ConductionSystem:
         basis=basis,
         region_bases=region_bases,
         size=int(basis.N),
-        capacity=capacity.tocsr(),
-        stiffness=stiffness.tocsr(),
-        edges=edges,
+        capacity=capacity,
+        stiffness=stiffness,
+        edges=_edge_terms(model, element),
         source_weights=source_weights,
         volume_weights=volume_weights,
         probe_matrix=probe_matrix,
@@ -346,6 +321,58 @@ def assemble(model: ThermalModel) -> ConductionSystem:
         fixed_dofs=fixed_dofs,
         free_dofs=free,
     )
+
+
+def _matrices(model: ThermalModel, region_bases: dict[str, Basis]):
+    """The capacity M (J/K) and stiffness K (W/K) at the nominal properties."""
+    axisymmetric = model.section.axisymmetric
+    capacity = stiffness = None
+    for region, region_basis in region_bases.items():
+        material: Material = model.materials[region]
+        # Temperature-dependent properties are assembled later at the field's temperatures;
+        # these constant matrices then only hold the pattern and are not used.
+        c = asm(
+            forms.heat_capacity,
+            region_basis,
+            volumetric_heat_capacity=float(material.volumetric_heat_capacity),
+            axisymmetric=axisymmetric,
+        )
+        s = asm(
+            forms.conduction,
+            region_basis,
+            conductivity=material.nominal_conductivity,
+            axisymmetric=axisymmetric,
+        )
+        capacity = c if capacity is None else capacity + c
+        stiffness = s if stiffness is None else stiffness + s
+    return capacity.tocsr(), stiffness.tocsr()
+
+
+def _edge_terms(model: ThermalModel, element) -> dict[str, EdgeTerms]:
+    """Edge terms for every group with a condition through which heat flows."""
+    mesh, axisymmetric = model.section.mesh, model.section.axisymmetric
+    edges: dict[str, EdgeTerms] = {}
+    for name, group_conditions in model.boundaries.items():
+        flowing = tuple(c for c in group_conditions if c.flows)
+        if flowing:
+            edge = FacetBasis(mesh, element, facets=mesh.boundaries[name])
+            weights = asm(forms.shape_integral, edge, axisymmetric=axisymmetric)
+            edges[name] = EdgeTerms(edge, weights, float(weights.sum()), axisymmetric, flowing)
+    return edges
+
+
+def _fixed_dofs(model: ThermalModel, basis: Basis) -> tuple[dict[str, np.ndarray], np.ndarray]:
+    """The held degrees of freedom of each fixed-temperature group (a shared corner goes to
+    the first) and the free ones."""
+    fixed_dofs: dict[str, np.ndarray] = {}
+    taken: set[int] = set()
+    for name in model.fixed:
+        facets = model.section.mesh.boundaries[name]
+        dofs = [d for d in basis.get_dofs(facets=facets).all() if d not in taken]
+        taken.update(dofs)
+        fixed_dofs[name] = np.array(sorted(dofs), dtype=np.int64)
+    free = np.setdiff1d(np.arange(basis.N), np.array(sorted(taken), dtype=np.int64))
+    return fixed_dofs, free
 
 
 def initial_field(system: ConductionSystem) -> np.ndarray:

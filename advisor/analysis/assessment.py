@@ -10,7 +10,7 @@ import numpy as np
 from fem import Solution, ThermalModel
 
 from ..errors import AdvisorError
-from .biot import COMMON_LIMIT, BiotNumber, biot_numbers, mean_coefficient
+from .biot import BiotNumber, biot_numbers
 from .lumped import (
     FittedExponential,
     LumpedModel,
@@ -18,18 +18,21 @@ from .lumped import (
     crossing_time,
     fit_exponential,
     fit_two_node,
-    heat_capacity,
 )
 from .modes import SlowestMode, slowest_mode
+from .verdict import QUANTITIES, RATINGS, SUBJECTS, Verdict, judge
 
-QUANTITIES = ("slowest", "mean", "peak_difference", "time_to_target")
-RATINGS = ("adequate", "marginal", "inadequate")
-SUBJECTS = {
-    "slowest": "the slowest point",
-    "mean": "the field mean",
-    "peak_difference": "the internal temperature difference",
-    "time_to_target": "the slowest point's time to target",
-}
+__all__ = [
+    "QUANTITIES",
+    "RATINGS",
+    "SUBJECTS",
+    "Assessment",
+    "LumpedError",
+    "Verdict",
+    "assess",
+    "check_request",
+    "correction",
+]
 
 
 @dataclass(frozen=True)
@@ -60,48 +63,6 @@ class LumpedError:
     fraction: float
     time: float
     lumped_ahead: bool
-
-
-@dataclass(frozen=True)
-class Verdict:
-    """How good the classical lumped estimate is for the chosen quantity, and why.
-
-    Attributes
-    ----------
-    rating : str
-        ``"adequate"`` (error within the tolerance), ``"marginal"`` (within twice it) or
-        ``"inadequate"``.
-    quantity : str
-        What was judged: ``"slowest"``, ``"mean"``, ``"peak_difference"`` or
-        ``"time_to_target"``.
-    tolerance : float
-        As a fraction (of the driving difference; of the field's time for time to target).
-    error : float
-        The judged error as the same kind of fraction.
-    direction : str
-        Which way the lumped estimate is wrong, in plain words.
-    advice : str
-        What to use instead (or that the lumped estimate will do).
-    reasons : tuple of str
-        The figures behind the rating.
-    """
-
-    rating: str
-    quantity: str
-    tolerance: float
-    error: float
-    direction: str
-    advice: str
-    reasons: tuple[str, ...]
-
-    @property
-    def adequate(self) -> bool:
-        return self.rating == "adequate"
-
-    @property
-    def subject(self) -> str:
-        """The judged quantity in words."""
-        return SUBJECTS[self.quantity]
 
 
 @dataclass(frozen=True)
@@ -168,6 +129,17 @@ class Assessment:
     def slowest(self) -> np.ndarray:
         """Temperature history of the point farthest from the ambient, °C."""
         return self.solution.minimum if self.heating else self.solution.maximum
+
+    @property
+    def lumped_energy(self) -> np.ndarray:
+        """Heat the classical lumped model has stored since the start at ``solution.times``,
+        J (planar: J/m)."""
+        return self.lumped.stored_energy(self.lumped_temperature)
+
+    @property
+    def effective_coefficient(self) -> float:
+        """h_eff of the corrected lumped model at the start, W/(m²·K)."""
+        return self.corrected.surface_coefficient
 
 
 def correction(model: ThermalModel, biot: tuple[BiotNumber, ...]) -> tuple[float, float, str]:
@@ -236,16 +208,46 @@ def assess(
     drive = lumped.initial_temperature - lumped.equilibrium  # > 0 cooling, < 0 heating
     _check_arguments(lumped, drive, target, tolerance, quantity)
     times = solution.times
-    end = float(times[-1])
-
     biot = biot_numbers(
         model,
-        end_time=end,
+        end_time=float(times[-1]),
         temperature_range=(float(solution.minimum.min()), float(solution.maximum.max())),
     )
     beta, scale, note = correction(model, biot)
-    corrected = LumpedModel.of(model, scale=scale, name="corrected")
-    mode = slowest_mode(model)
+    family = _lumped_family(solution, lumped, scale, drive)
+    curves = family["model_temperatures"]
+    spread = solution.internal_difference
+    peak = int(np.argmax(spread))
+    findings = dict(
+        solution=solution,
+        biot=biot,
+        lumped=lumped,
+        correction_shape=beta,
+        correction_note=note,
+        mode=slowest_mode(model),
+        lumped_temperature=curves["classical"],
+        errors=_errors(solution, family, drive),
+        peak_internal_difference=float(spread[peak]),
+        peak_internal_difference_time=float(times[peak]),
+        energy_error=_energy_error(solution, lumped, curves["classical"], drive),
+        target=target,
+        time_to_target=_times_to_target(solution, lumped, family, target, drive),
+        **family,
+    )
+    return Assessment(**findings, verdict=judge(findings, quantity, tolerance, drive))
+
+
+def _energy_error(solution: Solution, lumped: LumpedModel, curve, drive: float) -> float:
+    """Largest |lumped − field stored energy| as a fraction of a full approach's exchange."""
+    gap = np.abs(lumped.stored_energy(curve) - solution.stored_energy).max()
+    return float(gap / (lumped.heat_capacity * abs(drive)))
+
+
+def _lumped_family(solution: Solution, lumped: LumpedModel, scale: float, drive: float) -> dict:
+    """The corrected, fitted and two-node models and every model's curve at the run's
+    times."""
+    times = solution.times
+    corrected = LumpedModel.of(solution.model, scale=scale, name="corrected")
     slowest = solution.minimum if drive < 0 else solution.maximum
     fitted = (
         fit_exponential(times, solution.mean, lumped.ambient, lumped.initial_temperature)
@@ -253,16 +255,20 @@ def assess(
         else None
     )
     two_node = fit_two_node(times, solution.mean, slowest, lumped)
-
     curves = {"classical": lumped.temperature(times), "corrected": corrected.temperature(times)}
     if fitted is not None:
         curves["fitted exponential"] = fitted.temperature(times)
     if two_node is not None:
         curves["two-node"] = two_node.temperature(times)
+    return dict(corrected=corrected, fitted=fitted, two_node=two_node, model_temperatures=curves)
 
+
+def _errors(solution: Solution, family: dict, drive: float) -> dict[str, LumpedError]:
+    """Every model's largest gap to the field quantities it stands for."""
+    times, curves = solution.times, family["model_temperatures"]
     fields = {
         "mean": solution.mean,
-        "slowest": slowest,
+        "slowest": solution.minimum if drive < 0 else solution.maximum,
         "hottest": solution.maximum,
         "coldest": solution.minimum,
     }
@@ -272,59 +278,39 @@ def assess(
         for q, h in fields.items()
     }
     for name in ("corrected", "fitted exponential", "two-node"):
-        if name in curves:
-            for q in ("mean", "slowest"):
-                reference = (
-                    curves[name]
-                    if not (name == "two-node" and q == "slowest")
-                    else (two_node.states(times)[0])
-                )
-                errors[f"{name} vs {q}"] = _largest_error(
-                    q, name, fields[q], reference, times, drive
-                )
+        if name not in curves:
+            continue
+        for q in ("mean", "slowest"):
+            reference = curves[name]
+            if name == "two-node" and q == "slowest":
+                reference = family["two_node"].states(times)[0]
+            errors[f"{name} vs {q}"] = _largest_error(q, name, fields[q], reference, times, drive)
+    return errors
 
-    spread = solution.internal_difference
-    peak = int(np.argmax(spread))
-    capacity = heat_capacity(model, lumped.initial_temperature)
-    lumped_energy = capacity * (curves["classical"] - lumped.initial_temperature)
-    energy_error = float(
-        np.abs(lumped_energy - solution.stored_energy).max() / (capacity * abs(drive))
-    )
 
-    time_to_target: dict[str, float | None] = {}
-    if target is not None:
-        time_to_target["classical"] = lumped.time_to(target, end)
-        time_to_target["corrected"] = corrected.time_to(target, end)
-        if fitted is not None:
-            time_to_target["fitted exponential"] = fitted.time_to(target)
-        if two_node is not None:
-            time_to_target["two-node (core)"] = two_node.time_to(target, end)
-        time_to_target["mean"] = crossing_time(times, solution.mean, target, drive)
-        time_to_target["slowest"] = crossing_time(times, slowest, target, drive)
-        for name, history in solution.probes.items():
-            time_to_target[f"probe:{name}"] = crossing_time(times, history, target, drive)
-
-    partial = dict(
-        solution=solution,
-        biot=biot,
-        lumped=lumped,
-        corrected=corrected,
-        correction_shape=beta,
-        correction_note=note,
-        fitted=fitted,
-        two_node=two_node,
-        mode=mode,
-        lumped_temperature=curves["classical"],
-        model_temperatures=curves,
-        errors=errors,
-        peak_internal_difference=float(spread[peak]),
-        peak_internal_difference_time=float(times[peak]),
-        energy_error=energy_error,
-        target=target,
-        time_to_target=time_to_target,
-    )
-    verdict = _verdict(partial, quantity, tolerance, drive)
-    return Assessment(**partial, verdict=verdict)
+def _times_to_target(
+    solution: Solution, lumped: LumpedModel, family: dict, target: float | None, drive: float
+) -> dict[str, float | None]:
+    """When each model and field quantity reaches ``target``, s (empty without a target)."""
+    if target is None:
+        return {}
+    times = solution.times
+    end = float(times[-1])
+    fitted, two_node = family["fitted"], family["two_node"]
+    found: dict[str, float | None] = {
+        "classical": lumped.time_to(target, end),
+        "corrected": family["corrected"].time_to(target, end),
+    }
+    if fitted is not None:
+        found["fitted exponential"] = fitted.time_to(target)
+    if two_node is not None:
+        found["two-node (core)"] = two_node.time_to(target, end)
+    slowest = solution.minimum if drive < 0 else solution.maximum
+    found["mean"] = crossing_time(times, solution.mean, target, drive)
+    found["slowest"] = crossing_time(times, slowest, target, drive)
+    for name, history in solution.probes.items():
+        found[f"probe:{name}"] = crossing_time(times, history, target, drive)
+    return found
 
 
 def check_request(
@@ -374,135 +360,3 @@ def _largest_error(quantity, model, field_history, lumped, times, drive) -> Lump
         float(times[i]),
         ahead,
     )
-
-
-def _rating(error: float, tolerance: float) -> str:
-    if error <= tolerance:
-        return "adequate"
-    return "marginal" if error <= 2 * tolerance else "inadequate"
-
-
-def _verdict(a: dict, quantity: str, tolerance: float, drive: float) -> Verdict:
-    heating = drive < 0
-    verb = "heats" if heating else "cools"
-    errors, times_to = a["errors"], a["time_to_target"]
-    bi = a["biot"][0]
-    subject = SUBJECTS[quantity]
-    reasons = []
-
-    if quantity in ("slowest", "mean"):
-        e = errors[f"classical vs {quantity}"]
-        error = e.fraction
-        reasons.append(
-            f"largest lumped error against {subject}: {e.largest:.3g} K, "
-            f"{100 * e.fraction:.2f} % of the driving difference of {abs(drive):.4g} K (at "
-            f"t = {e.time:.4g} s); the tolerance is {100 * tolerance:.3g} %"
-        )
-        if e.lumped_ahead:
-            direction = (
-                f"the lumped estimate runs ahead of {subject}: it says the part "
-                f"{verb} faster than it does — "
-                + (
-                    "non-conservative for a soak or hold time"
-                    if heating
-                    else "non-conservative for the end of a quench or a safe-to-handle time"
-                )
-            )
-        else:
-            direction = (
-                f"the lumped estimate lags behind {subject}: the part {verb} faster "
-                "than it says — conservative for the time to get there"
-            )
-    elif quantity == "peak_difference":
-        error = a["peak_internal_difference"] / abs(drive)
-        reasons.append(
-            f"the section's largest internal temperature difference is "
-            f"{a['peak_internal_difference']:.3g} K ({100 * error:.2f} % of the driving "
-            f"difference of {abs(drive):.4g} K) at t = {a['peak_internal_difference_time']:.4g} "
-            "s; a lumped model has none"
-        )
-        direction = (
-            "the lumped estimate says the part stays uniform: it hides the "
-            "internal temperature difference that drives distortion and cracking"
-        )
-    else:
-        lumped_time, field_time = times_to.get("classical"), times_to.get("slowest")
-        if field_time is None or lumped_time is None or field_time <= 0:
-            raise AdvisorError(
-                "the time to target cannot be judged: the slowest point or the lumped model "
-                "does not reach the target within the run; run longer"
-            )
-        error = abs(lumped_time - field_time) / field_time
-        early = lumped_time < field_time
-        reasons.append(
-            f"the lumped estimate reaches {a['target']:g} degC at {lumped_time:.4g} s, the "
-            f"slowest point at {field_time:.4g} s ({100 * error:.1f} % "
-            f"{'early' if early else 'late'}); the tolerance is {100 * tolerance:.3g} %"
-        )
-        direction = (
-            "the lumped estimate says the part is through too early — non-conservative"
-            if early
-            else "the lumped estimate says the part is through later than it is — conservative"
-        )
-
-    rating = _rating(error, tolerance)
-    reasons.append(
-        f"Biot number (V/A_s) = {bi.value:.3g} (over the run {bi.low:.3g} to "
-        f"{bi.high:.3g}): "
-        + ("below" if bi.high < COMMON_LIMIT else "not below")
-        + f" the common-practice limit of {COMMON_LIMIT}"
-    )
-    mode = a["mode"]
-    reasons.append(
-        f"slowest-mode ratio {mode.ratio:.3g}: the part's last temperature difference decays "
-        f"at {100 * mode.ratio:.3g} % of the lumped rate (a lumped model would need h = "
-        f"{mode.equivalent_coefficient:.4g} W/(m^2*K))"
-    )
-    if a["target"] is not None and quantity != "time_to_target":
-        lumped_time, field_time = times_to.get("classical"), times_to.get("slowest")
-        if field_time is None:
-            reasons.append("the slowest point does not reach the target within the run")
-        elif lumped_time is not None and field_time > 0:
-            change = 100 * (lumped_time - field_time) / field_time
-            reasons.append(
-                f"the lumped estimate reaches {a['target']:g} degC at {lumped_time:.4g} s, "
-                f"{abs(change):.1f} % {'earlier' if change < 0 else 'later'} than the slowest "
-                f"point ({field_time:.4g} s)"
-            )
-
-    advice = _advice(a, rating, quantity, tolerance)
-    return Verdict(
-        rating, quantity, float(tolerance), float(error), direction, advice, tuple(reasons)
-    )
-
-
-def _advice(a: dict, rating: str, quantity: str, tolerance: float) -> str:
-    warnings = a["solution"].checks.warnings
-    tail = (
-        (
-            " The run's own checks flagged problems (see the checks): refine the mesh or the "
-            "step before relying on these figures."
-        )
-        if warnings
-        else ""
-    )
-    if rating == "adequate":
-        return "The classical lumped estimate will do for this quantity." + tail
-    if quantity in ("slowest", "mean"):
-        candidates = [
-            ("corrected", "the corrected lumped model"),
-            ("two-node", "the fitted two-node model"),
-            ("fitted exponential", "the fitted single exponential"),
-        ]
-        for key, label in candidates:
-            e = a["errors"].get(f"{key} vs {quantity}")
-            if e is not None and e.fraction <= tolerance:
-                extra = ""
-                if key == "corrected":
-                    h = mean_coefficient(a["lumped"].model, a["lumped"].initial_temperature, 0.0)
-                    extra = f", h_eff = {a['corrected'].coefficient_scale * h:.4g} W/(m^2*K)"
-                return (
-                    f"Use {label} ({100 * e.fraction:.2f} % error{extra}) or the field "
-                    "result." + tail
-                )
-    return "Use the field result: no lumped model is within the tolerance." + tail

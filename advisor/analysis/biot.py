@@ -9,7 +9,7 @@ import numpy as np
 from fem import ThermalModel
 
 from ..errors import AdvisorError
-from .lumped import mean_initial, radiation_coefficient
+from .lumped import mean_coefficient, mean_initial
 
 COMMON_LIMIT = 0.1  # common practice: lumped estimates are usually accepted below Bi = 0.1
 
@@ -44,21 +44,6 @@ class BiotNumber:
     explanation: str
 
 
-def mean_coefficient(model: ThermalModel, temperature: float, time: float) -> float:
-    """Surface-weighted mean of h over the exchanging edges, radiation linearised, W/(m²·K)."""
-    surfaces = model.section.facts.surface_areas
-    groups = model.exchange_groups
-    total = 0.0
-    for name, c in model.convection.items():
-        total += c.heat_transfer_coefficient(time) * surfaces[name]
-    for name, r in model.radiation.items():
-        total += (
-            radiation_coefficient(r.emissivity, temperature, r.surroundings(time))
-            * (surfaces[name])
-        )
-    return total / sum(surfaces[g] for g in groups)
-
-
 def biot_numbers(
     model: ThermalModel,
     *,
@@ -68,7 +53,8 @@ def biot_numbers(
     """Biot numbers of the model's section under its surface conditions.
 
     Only edges that exchange heat count as exposed. With several coefficients the mean weighted
-    by surface area is used; radiation enters as εσ(T² + T_s²)(T + T_s). The value is for the
+    by surface area is used; each condition enters with its coefficient linearised at the
+    surface temperature (radiation as εσ(T² + T_s²)(T + T_s)). The value is for the
     start; the range covers coefficients over [0, ``end_time``] and temperatures in
     ``temperature_range`` (°C; default the initial temperature). With several materials the
     lowest conductivity is used (the worst case). V and A_s are the section's volume and
@@ -77,19 +63,13 @@ def biot_numbers(
     groups = model.exchange_groups
     if not groups:
         raise AdvisorError("the model has no edge that exchanges heat, so it has no Biot number")
-    facts = model.section.facts
     t0 = mean_initial(model)
     low_t, high_t = temperature_range or (t0, t0)
     h0 = mean_coefficient(model, t0, 0.0)
     k0 = min(float(m.conductivity_at(t0)) for m in model.materials.values())
     hs, ks = _coefficient_range(model, end_time, low_t, high_t)
 
-    exposed_surface = sum(facts.surface_areas[g] for g in groups)
-    exposed_length = sum(facts.edge_lengths[g] for g in groups)
-    volume_to_surface = facts.volume / exposed_surface
-    farthest = model.section.max_distance_to(groups)
-
-    def number(name, length, explanation):
+    def number(name: str, length: float) -> BiotNumber:
         return BiotNumber(
             name,
             h0 * length / k0,
@@ -97,36 +77,41 @@ def biot_numbers(
             h0,
             min(hs) * length / max(ks),
             max(hs) * length / min(ks),
-            explanation,
+            EXPLANATIONS[name],
         )
 
-    numbers = [
-        number(
-            "volume_to_surface",
-            volume_to_surface,
-            "L = V / A_s (planar: area / exposed perimeter), the length of the lumped rule "
-            f"of thumb: below {COMMON_LIMIT} (common practice) one temperature usually "
-            "stands for the part",
-        ),
-        number(
-            "conduction_distance",
-            farthest,
-            "L = the largest distance from any point to a heat-exchanging edge: the "
-            "half-thickness of a plate, the radius of a round; it measures the slowest "
-            "internal path against the surface",
-        ),
-    ]
+    return tuple(number(name, length) for name, length in _lengths(model).items())
+
+
+EXPLANATIONS = {
+    "volume_to_surface": (
+        "L = V / A_s (planar: area / exposed perimeter), the length of the lumped rule "
+        f"of thumb: below {COMMON_LIMIT} (common practice) one temperature usually "
+        "stands for the part"
+    ),
+    "four_area_over_perimeter": (
+        "L = 4 × area / exposed perimeter (the hydraulic-diameter convention), twice the "
+        "planar V/A_s length: numbers quoted this way are larger by 2 for the same part"
+    ),
+    "conduction_distance": (
+        "L = the largest distance from any point to a heat-exchanging edge: the "
+        "half-thickness of a plate, the radius of a round; it measures the slowest "
+        "internal path against the surface"
+    ),
+}
+
+
+def _lengths(model: ThermalModel) -> dict[str, float]:
+    """The length scales in m, in report order (4A/P only for planar sections)."""
+    groups = model.exchange_groups
+    facts = model.section.facts
+    exposed_surface = sum(facts.surface_areas[g] for g in groups)
+    lengths = {"volume_to_surface": facts.volume / exposed_surface}
     if not facts.axisymmetric:
-        numbers.insert(
-            1,
-            number(
-                "four_area_over_perimeter",
-                4 * facts.area / exposed_length,
-                "L = 4 × area / exposed perimeter (the hydraulic-diameter convention), twice the "
-                "planar V/A_s length: numbers quoted this way are larger by 2 for the same part",
-            ),
-        )
-    return tuple(numbers)
+        exposed_length = sum(facts.edge_lengths[g] for g in groups)
+        lengths["four_area_over_perimeter"] = 4 * facts.area / exposed_length
+    lengths["conduction_distance"] = model.section.max_distance_to(groups)
+    return lengths
 
 
 def _coefficient_range(model, end_time, low_t, high_t):

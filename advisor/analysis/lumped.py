@@ -1,6 +1,7 @@
 """The lumped-capacitance family: one (or two) temperatures for the whole part.
 
-Classical: ρ·c·V·dT/dt = Σ h_i·A_i·(T∞,i − T) + Σ ε_i·σ·A_i·(T_sur,i⁴ − T⁴) + Σ q_i·A_i + q̇·V.
+Classical: ρ·c·V·dT/dt = Σ q_i(T, t)·A_i + q̇·V, with q_i the heat flux each boundary
+condition lets into a part at one temperature (h·(T∞ − T), εσ(T_sur⁴ − T⁴), a flux, ...).
 With constant coefficients and no radiation, T(t) = T∞ + (T0 − T∞)·exp(−t/τ),
 τ = ρ·c·V / Σ h·A and T∞ the h·A-weighted ambient (Incropera et al., *Fundamentals of Heat
 and Mass Transfer*, 6th ed., §5.1, eq. 5.6 — from memory); otherwise the same balance is
@@ -26,7 +27,6 @@ from scipy.integrate import solve_ivp
 from scipy.optimize import least_squares
 
 from fem import ThermalModel
-from fem.forms import KELVIN, STEFAN_BOLTZMANN
 
 from ..errors import AdvisorError
 
@@ -56,29 +56,37 @@ def heat_capacity(model: ThermalModel, temperature: float) -> float:
 def exchange_conductance(
     model: ThermalModel, temperature: float, time: float, scale: float = 1.0
 ) -> tuple[float, float]:
-    """Σ h·A (W/K; radiation linearised at ``temperature``) and Σ h·A·T∞ (W), coefficients
-    multiplied by ``scale``."""
+    """Σ h·A (W/K) and Σ h·A·T∞ (W) over the boundary conditions, each linearised at the
+    surface ``temperature`` °C and ``time`` s (:meth:`fem.conditions.Condition.linearised`),
+    coefficients multiplied by ``scale``."""
     surfaces = model.section.facts.surface_areas
     conductance = weighted = 0.0
-    for name, c in model.convection.items():
-        ha = scale * c.heat_transfer_coefficient(time) * surfaces[name]
-        conductance += ha
-        weighted += ha * c.ambient(time)
-    for name, r in model.radiation.items():
-        ha = (
-            scale
-            * radiation_coefficient(r.emissivity, temperature, r.surroundings(time))
-            * (surfaces[name])
-        )
-        conductance += ha
-        weighted += ha * r.surroundings(time)
+    for name, condition in model.conditions():
+        if condition.flows:
+            line = condition.linearised(temperature, time)
+            ha = scale * line.coefficient * surfaces[name]
+            conductance += ha
+            weighted += ha * line.ambient
     return conductance, weighted
 
 
-def radiation_coefficient(emissivity: float, temperature: float, surroundings: float) -> float:
-    """h_r = εσ(T² + T_s²)(T + T_s) in W/(m²·K), temperatures in °C converted to kelvin."""
-    t, s = temperature + KELVIN, surroundings + KELVIN
-    return emissivity * STEFAN_BOLTZMANN * (t * t + s * s) * (t + s)
+def mean_coefficient(model: ThermalModel, temperature: float, time: float) -> float:
+    """Surface-weighted mean of h over the exchanging edges, each condition linearised at
+    ``temperature`` °C, W/(m²·K)."""
+    surfaces = model.section.facts.surface_areas
+    conductance, _ = exchange_conductance(model, temperature, time)
+    return conductance / sum(surfaces[g] for g in model.exchange_groups)
+
+
+def supplied_heat(model: ThermalModel, temperature: float, time: float) -> float:
+    """Heat into the part that does not depend on its temperature (fluxes and sources), W."""
+    facts = model.section.facts
+    supplied = sum(
+        c.linearised(temperature, time).supplied * facts.surface_areas[name]
+        for name, c in model.conditions()
+        if c.flows
+    )
+    return supplied + sum(q(time) * facts.region_volumes[r] for r, q in model.heat_sources.items())
 
 
 @dataclass(frozen=True)
@@ -136,18 +144,10 @@ class LumpedModel:
         t0 = mean_initial(model) if initial_temperature is None else initial_temperature
         conductance, weighted = exchange_conductance(model, t0, 0.0, scale)
         closed = (
-            not model.radiation
-            and not model.fluxes
+            all(c.lumped_closed_form() for _, c in model.conditions())
             and not model.heat_sources
-            and all(
-                c.heat_transfer_coefficient.is_constant and c.ambient.is_constant
-                for c in model.convection.values()
-            )
             and all(m.is_constant for m in model.materials.values())
         )
-        facts = model.section.facts
-        supplied = sum(f.flux(0.0) * facts.surface_areas[n] for n, f in model.fluxes.items())
-        supplied += sum(q(0.0) * facts.region_volumes[r] for r, q in model.heat_sources.items())
         return cls(
             name,
             heat_capacity(model, t0) / conductance,
@@ -155,9 +155,30 @@ class LumpedModel:
             float(t0),
             closed,
             scale,
-            (weighted + supplied) / conductance,
+            (weighted + supplied_heat(model, t0, 0.0)) / conductance,
             model,
         )
+
+    @property
+    def heat_capacity(self) -> float:
+        """ρ·c·V at the initial temperature, J/K (planar: J/(K·m))."""
+        return heat_capacity(self.model, self.initial_temperature)
+
+    @property
+    def surface_coefficient(self) -> float:
+        """The mean surface coefficient it uses at the start (scaled: h_eff for the corrected
+        model), W/(m²·K)."""
+        surfaces = self.model.section.facts.surface_areas
+        exposed = sum(surfaces[g] for g in self.model.exchange_groups)
+        conductance, _ = exchange_conductance(
+            self.model, self.initial_temperature, 0.0, self.coefficient_scale
+        )
+        return conductance / exposed
+
+    def stored_energy(self, temperatures) -> np.ndarray:
+        """Heat stored since the start for lumped ``temperatures`` °C, J (planar: J/m), with
+        the capacity at the initial temperature."""
+        return self.heat_capacity * (np.asarray(temperatures) - self.initial_temperature)
 
     def temperature(self, times) -> np.ndarray:
         """T(t) in °C at ``times`` in s."""
@@ -194,28 +215,15 @@ class LumpedModel:
         model = self.model
         facts = model.section.facts
         surfaces = facts.surface_areas
-        k = self.coefficient_scale
+        scale = self.coefficient_scale
 
         def rate(t, y):
             temperature = y[0]
-            heat = 0.0
-            for name, c in model.convection.items():
-                heat += (
-                    k
-                    * c.heat_transfer_coefficient(t)
-                    * surfaces[name]
-                    * (c.ambient(t) - temperature)
-                )
-            for name, r in model.radiation.items():
-                heat += (
-                    k
-                    * r.emissivity
-                    * STEFAN_BOLTZMANN
-                    * surfaces[name]
-                    * ((r.surroundings(t) + KELVIN) ** 4 - (temperature + KELVIN) ** 4)
-                )
-            for name, f in model.fluxes.items():
-                heat += f.flux(t) * surfaces[name]
+            heat = sum(
+                c.lumped_heat(temperature, t, scale) * surfaces[name]
+                for name, c in model.conditions()
+                if c.flows
+            )
             for region, q in model.heat_sources.items():
                 heat += q(t) * facts.region_volumes[region]
             return [heat / heat_capacity(model, temperature)]
@@ -344,7 +352,7 @@ def fit_two_node(times, mean, slowest, lumped: LumpedModel) -> TwoNodeModel | No
     and slowest point (total capacity and surface conductance stay those of the part)."""
     if not lumped.closed_form:
         return None
-    capacity = heat_capacity(lumped.model, lumped.initial_temperature)
+    capacity = lumped.heat_capacity
     surface = capacity / lumped.time_constant
     drive = lumped.initial_temperature - lumped.equilibrium
     sample = np.linspace(0, len(times) - 1, min(len(times), 120)).astype(int)

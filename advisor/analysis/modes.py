@@ -1,9 +1,10 @@
-"""The slowest mode of a section: how fast its last temperature difference dies away.
+"""The slowest mode against the lumped model: how fast the last temperature difference dies
+away compared with the rate one temperature would give.
 
-The semi-discrete system M·T' + A·T = b decays, once the fast modes are gone, like
-exp(−λ₁·t) with λ₁ the smallest generalised eigenvalue of A·φ = λ·M·φ. A lumped model decays
-at h·A_s/(ρ·c·V). Their ratio does not depend on time: near 1 the lumped model is right about
-the rate; below 1 the part is slower than the lumped model says. It implies the coefficient
+The field's slowest decay is exp(−λ₁·t) with λ₁ the smallest generalised eigenvalue of the
+model's operator (:func:`fem.modes.slowest_eigenpair`). A lumped model decays at
+h·A_s/(ρ·c·V). Their ratio does not depend on time: near 1 the lumped model is right about the
+rate; below 1 the part is slower than the lumped model says. It implies the coefficient
 h_equivalent = λ₁·ρ·c·V/A_s that a lumped model would need to decay at the true rate.
 """
 
@@ -12,16 +13,12 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-import scipy.sparse.linalg as spla
-from scipy.linalg import eigh
 
 from fem import ThermalModel, assemble
-from fem.forms import KELVIN, STEFAN_BOLTZMANN
+from fem.modes import slowest_eigenpair
 
 from ..errors import AdvisorError
 from .lumped import exchange_conductance, heat_capacity, mean_initial
-
-DENSE_LIMIT = 400  # below this many unknowns a dense eigensolver is simpler and safe
 
 
 @dataclass(frozen=True)
@@ -51,8 +48,9 @@ class SlowestMode:
 
 
 def slowest_mode(model: ThermalModel) -> SlowestMode:
-    """The first generalised eigenvalue of the model's operator at t = 0 (radiation
-    linearised at the initial temperature), by shift-invert Lanczos.
+    """The first generalised eigenvalue of the model's operator at t = 0, every condition
+    linearised at the initial mean temperature (radiation by its secant coefficient), against
+    the lumped model's rate.
 
     Examples
     --------
@@ -69,22 +67,9 @@ def slowest_mode(model: ThermalModel) -> SlowestMode:
         raise AdvisorError("a part that exchanges no heat has no decaying mode")
     system = assemble(model)
     t0 = mean_initial(model)
-    operator = system.exchange_operator(0.0)
-    for name, r in model.radiation.items():  # linearised: 4εσT³ about the mean temperature
-        t = 0.5 * (t0 + r.surroundings(0.0)) + KELVIN
-        matrix = system.edges[name].exchange_matrix  # ∫ φ_j φ_i dS
-        operator = operator + 4 * r.emissivity * STEFAN_BOLTZMANN * t**3 * matrix
-    capacity = system.capacity
-    free = system.free_dofs
-    a = operator[free][:, free].tocsc()
-    m = capacity[free][:, free].tocsc()
-    if len(free) <= DENSE_LIMIT:
-        values, vectors = eigh(a.toarray(), m.toarray(), subset_by_index=[0, 0])
-    else:
-        values, vectors = spla.eigsh(a, k=1, M=m, sigma=0.0, which="LM")
-    rate = float(values[0])
-    shape = np.abs(vectors[:, 0])
-    weights = system.volume_weights[free]
+    pair = slowest_eigenpair(system, t0, 0.0)
+    shape = np.abs(pair.shape)
+    weights = system.volume_weights[pair.dofs]
     core_to_mean = float(shape.max() / (weights @ shape / weights.sum()))
 
     conductance, _ = exchange_conductance(model, t0, 0.0)
@@ -92,9 +77,11 @@ def slowest_mode(model: ThermalModel) -> SlowestMode:
     lumped_rate = conductance / capacity_total if conductance > 0 else float("nan")
     surface = sum(model.section.facts.surface_areas[g] for g in model.exchange_groups)
     return SlowestMode(
-        rate=rate,
+        rate=pair.rate,
         lumped_rate=lumped_rate,
-        ratio=rate / lumped_rate if conductance > 0 else float("nan"),
-        equivalent_coefficient=rate * capacity_total / surface if surface > 0 else float("nan"),
+        ratio=pair.rate / lumped_rate if conductance > 0 else float("nan"),
+        equivalent_coefficient=pair.rate * capacity_total / surface
+        if surface > 0
+        else float("nan"),
         core_to_mean=core_to_mean,
     )

@@ -21,7 +21,6 @@ from matplotlib.tri import Triangulation
 from fem import Solution
 
 from ..analysis.assessment import Assessment
-from ..analysis.lumped import heat_capacity
 from .atomic import write_with
 from .section_fields import outline_segments
 
@@ -390,10 +389,7 @@ def energy_figure(assessment: Assessment) -> Figure:
     model = solution.model
     scale, unit = time_axis(float(solution.times[-1]))
     t = solution.times / scale
-    capacity = heat_capacity(model, assessment.lumped.initial_temperature)
-    lumped_energy = capacity * (
-        assessment.lumped_temperature - assessment.lumped.initial_temperature
-    )
+    lumped_energy = assessment.lumped_energy
     per_depth = not model.section.axisymmetric
     largest = float(
         max(np.max(np.abs(solution.stored_energy)), np.max(np.abs(solution.absorbed_heat)), 1.0)

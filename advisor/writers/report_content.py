@@ -11,17 +11,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from fem import (
-    Constant,
-    Convection,
-    FixedTemperature,
-    HeatFlux,
-    Insulated,
-    Radiation,
-)
+from fem.schedules import schedule_text
 
 from ..analysis.assessment import Assessment
-from ..analysis.biot import mean_coefficient
 from ..caution import CAUTION
 from .plots import clock
 
@@ -136,32 +128,9 @@ def _parameter(key: str) -> tuple[str, str]:
     return key.replace("_", " "), ""
 
 
-def _schedule(value, unit: str, end_time: float) -> str:
-    if isinstance(value, Constant):
-        return f"{value.value:.4g} {unit}"
-    if isinstance(value, int | float):
-        return f"{value:.4g} {unit}"
-    low, high = value.extremes(end_time)
-    return f"{type(value).__name__} schedule, {low:.4g} to {high:.4g} {unit}"
-
-
 def condition_text(condition, end_time: float) -> str:
     """One boundary condition in words."""
-    if isinstance(condition, Convection):
-        h = _schedule(condition.heat_transfer_coefficient, "W/(m²·K)", end_time)
-        return f"convection, h = {h}, to a fluid at {_schedule(condition.ambient, '°C', end_time)}"
-    if isinstance(condition, Radiation):
-        return (
-            f"radiation, emissivity {condition.emissivity:.3g}, surroundings at "
-            f"{_schedule(condition.surroundings, '°C', end_time)}"
-        )
-    if isinstance(condition, HeatFlux):
-        return f"heat flux into the part {_schedule(condition.flux, 'W/m²', end_time)}"
-    if isinstance(condition, FixedTemperature):
-        return f"fixed temperature {_schedule(condition.temperature, '°C', end_time)}"
-    if isinstance(condition, Insulated):
-        return f"no heat flow ({condition.reason})"
-    return type(condition).__name__
+    return condition.describe(end_time)
 
 
 def _property(value, unit: str) -> str:
@@ -366,7 +335,7 @@ def _inputs_part(a: Assessment) -> Part:
             Table(
                 ("region", "heat generated"),
                 tuple(
-                    (region, _schedule(q, "W/m³", end))
+                    (region, schedule_text(q, "W/m³", end))
                     for region, q in sorted(model.heat_sources.items())
                 ),
                 caption="Heat sources",
@@ -455,12 +424,11 @@ def _models_part(a: Assessment) -> Part:
 
     add("classical lumped", a.lumped.parameters())
     add("corrected lumped", a.corrected.parameters())
-    h = mean_coefficient(a.lumped.model, a.lumped.initial_temperature, 0.0)
     rows.append(
         (
             "corrected lumped",
             "effective heat-transfer coefficient",
-            number(a.corrected.coefficient_scale * h, 5),
+            number(a.effective_coefficient, 5),
             "W/(m²·K)",
         )
     )

@@ -5,14 +5,13 @@ Every number carries its unit in its key (``_s``, ``_degC``, ``_K``, ``_m``, ...
 
 from __future__ import annotations
 
-import dataclasses
 import json
 from importlib.metadata import PackageNotFoundError, version
 from pathlib import Path
 
 import numpy as np
 
-from fem import Constant
+from fem.schedules import schedule_data as _schedule
 
 from ..analysis.assessment import Assessment
 from ..caution import CAUTION
@@ -146,43 +145,7 @@ def _plain(value):
 
 def _boundary(conditions) -> list[dict]:
     """Each condition of an edge group as JSON data, schedules spelled out."""
-    described = []
-    for condition in conditions:
-        entry = {"kind": _KINDS[type(condition).__name__]}
-        for field in dataclasses.fields(condition):
-            value = getattr(condition, field.name)
-            key = field.name + _UNITS.get(field.name, "")
-            entry[key] = _schedule(value) if not isinstance(value, str) else value
-        described.append(entry)
-    return described
-
-
-_KINDS = {
-    "Convection": "convection",
-    "Radiation": "radiation",
-    "HeatFlux": "heat flux",
-    "FixedTemperature": "fixed temperature",
-    "Insulated": "no heat flow",
-}
-_UNITS = {
-    "heat_transfer_coefficient": "_W_per_m2_K",
-    "ambient": "_degC",
-    "surroundings": "_degC",
-    "flux": "_W_per_m2",
-    "temperature": "_degC",
-}
-
-
-def _schedule(value):
-    """A number stays a number; a schedule becomes its kind and parameters."""
-    if isinstance(value, Constant):
-        return value.value
-    if dataclasses.is_dataclass(value):
-        data = {"schedule": type(value).__name__}
-        for field in dataclasses.fields(value):
-            data[field.name] = _schedule(getattr(value, field.name))
-        return data
-    return value
+    return [condition.summary() for condition in conditions]
 
 
 def _models(assessment: Assessment) -> dict:

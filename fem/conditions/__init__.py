@@ -1,0 +1,36 @@
+"""Boundary conditions, one module per kind; each knows its own physics.
+
+Heat flows are positive *into* the part. Every coefficient, ambient, flux and temperature may be
+a number or a schedule of time (see :mod:`fem.schedules`). ``KINDS`` maps the name case files
+use to the class.
+"""
+
+from .base import KINDS, Condition, Linearised, SurfaceEdge, conditions, register
+
+# Kinds register in import order, the order messages list them in.
+# isort: off
+from .convection import Convection
+from .radiation import STEFAN_BOLTZMANN, Radiation
+from .flux import HeatFlux
+from .fixed import FixedTemperature
+from .insulated import Insulated
+
+# isort: on
+
+BoundaryCondition = Condition | tuple[Condition, ...]
+
+__all__ = [
+    "KINDS",
+    "STEFAN_BOLTZMANN",
+    "BoundaryCondition",
+    "Condition",
+    "Convection",
+    "FixedTemperature",
+    "HeatFlux",
+    "Insulated",
+    "Linearised",
+    "Radiation",
+    "SurfaceEdge",
+    "conditions",
+    "register",
+]
