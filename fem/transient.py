@@ -126,15 +126,8 @@ def solve(
     >>> bool(result.mean[-1] < 850.0)
     True
     """
-    if not isinstance(model, ThermalModel | ConductionSystem):
-        raise ModelError(
-            f"model must be a ThermalModel or its ConductionSystem, got {model!r}",
-            argument="model",
-        )
-    system = model if isinstance(model, ConductionSystem) else None
-    thermal_model = model if system is None else system.model
     controls = check_arguments(
-        thermal_model,
+        _model_of(model),
         end_time,
         method=method,
         time_step=time_step,
@@ -149,17 +142,31 @@ def solve(
         newton_tolerance=newton_tolerance,
         max_newton_iterations=max_newton_iterations,
     )
+    return _run(model, controls, FieldSeries(field_folder), progress)
+
+
+def _model_of(model: ThermalModel | ConductionSystem) -> ThermalModel:
+    if isinstance(model, ConductionSystem):
+        return model.model
+    if isinstance(model, ThermalModel):
+        return model
+    raise ModelError(
+        f"model must be a ThermalModel or its ConductionSystem, got {model!r}", argument="model"
+    )
+
+
+def _run(model, controls: RunControls, fields: FieldSeries, progress) -> Solution:
+    """Assemble (unless given a system), march by the requested method, check the run."""
     started = clock.perf_counter()
-    if system is None:
-        system = assemble(thermal_model)
+    system = model if isinstance(model, ConductionSystem) else assemble(model)
     assembled = clock.perf_counter()
-    run, start = _start(system, controls, FieldSeries(field_folder), progress)
+    run, start = _start(system, controls, fields, progress)
     stepper = stepper_for(controls.method)
     march = stepper.march(run)
     finished = clock.perf_counter()
     histories = run.recorder.histories()
     checks = check_run(
-        thermal_model,
+        system.model,
         controls,
         stepper,
         histories,
@@ -168,17 +175,12 @@ def solve(
         run.surface_diffusion_time,
         march.recent_startup_steps,
     )
+    stats = _stats(
+        stepper, controls, march, run.cost, system.size, assembled - started, finished - assembled
+    )
     return Solution(
-        model=thermal_model,
-        stats=_stats(
-            stepper,
-            controls,
-            march,
-            run.cost,
-            system.size,
-            assembled - started,
-            finished - assembled,
-        ),
+        model=system.model,
+        stats=stats,
         checks=checks,
         final_state=march.final_state,
         stop_time=march.stop_time,
