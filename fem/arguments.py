@@ -14,9 +14,9 @@ from collections.abc import Iterable
 from dataclasses import dataclass
 
 from .errors import ModelError
+from .methods import METHODS, stepper_for
 from .model import ThermalModel
 from .scales import surface_diffusion_time, temperature_span
-from .steppers import STEPPERS, stepper_for
 
 DEFAULT_METHOD = "crank-nicolson"
 DEFAULT_NEWTON_TOLERANCE = 1e-6  # K
@@ -124,9 +124,9 @@ def check_run_options(
             f"end_time must be a finite time > 0 s, got {end_time!r}", argument="end_time"
         )
     end = float(end_time)
-    if method not in STEPPERS:
+    if method not in METHODS:
         raise ModelError(
-            f"method must be one of {tuple(STEPPERS)}, got {method!r}", argument="method"
+            f"method must be one of {tuple(METHODS)}, got {method!r}", argument="method"
         )
     stepper = stepper_for(method)
     if time_step is not None and (not _positive(time_step) or time_step > end):

@@ -2,7 +2,7 @@
 
 The driver (:func:`fem.solve`) checks the arguments, assembles the system, records the
 initial state and hands a :class:`RunContext` to the method registered under the requested
-name (:mod:`fem.steppers`). The method marches to the end (or the stop), recording into the
+name (:mod:`fem.methods`). The method marches to the end (or the stop), recording into the
 context's recorder as it goes, and returns a :class:`March`: what the run did, for the
 statistics and the run's checks.
 """

@@ -1,6 +1,6 @@
 """The driver: :func:`solve` checks its arguments, assembles the system (unless given one),
 records the initial state, hands the run to the method registered under its name
-(:mod:`fem.steppers`) and gathers the histories, the cost and the run's checks into a
+(:mod:`fem.methods`) and gathers the histories, the cost and the run's checks into a
 :class:`~fem.solution.Solution`.
 
 Methods (:mod:`fem.multistep`, :mod:`fem.exponential_run`): Crank–Nicolson with
@@ -27,13 +27,13 @@ from .errors import ModelError
 from .events import merged_breakpoints
 from .fields import FieldSeries
 from .linalg import Cost, LinearAlgebra
+from .methods import stepper_for
 from .model import ThermalModel
 from .recorder import HistoryRecorder
 from .run_checks import check_run
 from .scales import surface_diffusion_time
 from .solution import Solution, SolverStats
 from .stepper import March, RunContext, Stepper
-from .steppers import stepper_for
 from .system import ConductionSystem, assemble, initial_field
 
 __all__ = ["StopWhen", "solve"]

@@ -22,7 +22,7 @@ from fem import (
     check_run_options,
     solve,
 )
-from fem.steppers import STEPPERS
+from fem.methods import METHODS
 from geometries import Rectangle
 
 STEEL = Material(45.0, 7850.0, 475.0)
@@ -126,8 +126,8 @@ def test_the_model_free_check_accepts_good_options_and_settles_what_it_can():
 
 
 def test_every_method_is_registered_once_by_name():
-    assert set(STEPPERS) == {"crank-nicolson", "bdf2", "backward-euler", "exponential"}
-    for name, stepper in STEPPERS.items():
+    assert set(METHODS) == {"crank-nicolson", "bdf2", "backward-euler", "exponential"}
+    for name, stepper in METHODS.items():
         assert stepper.name == name
 
 

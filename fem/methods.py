@@ -6,11 +6,11 @@ from .exponential_run import Exponential
 from .multistep import BDF2, BackwardEuler, CrankNicolson
 from .stepper import Stepper
 
-STEPPERS: dict[str, Stepper] = {
+METHODS: dict[str, Stepper] = {
     stepper.name: stepper for stepper in (CrankNicolson(), BDF2(), BackwardEuler(), Exponential())
 }
 
 
 def stepper_for(method: str) -> Stepper:
     """The stepper registered as ``method``."""
-    return STEPPERS[method]
+    return METHODS[method]
