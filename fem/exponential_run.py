@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Iterator
+from dataclasses import fields, is_dataclass
 
 import numpy as np
 
@@ -60,10 +61,9 @@ def check_exponential_parts(materials, boundaries, heat_sources) -> None:
         )
     named = [(region, "heat source", as_schedule(q, "heat source")) for region, q in sources]
     named += [
-        (group, what, value)
+        (group, what, schedule)
         for group, condition in _each(boundaries)
-        for what, value in vars(condition).items()
-        if isinstance(value, Schedule)
+        for what, schedule in _schedules(condition)
     ]
     for where, what, schedule in named:
         if not schedule.is_stepwise:
@@ -79,6 +79,15 @@ def _each(boundaries) -> Iterator[tuple[str, object]]:
     for group, value in boundaries.items():
         for condition in value if isinstance(value, tuple | list) else (value,):
             yield group, condition
+
+
+def _schedules(condition) -> Iterator[tuple[str, Schedule]]:
+    """A condition's schedules of time, by field name (the coefficient, the ambient, ...)."""
+    names = [f.name for f in fields(condition)] if is_dataclass(condition) else vars(condition)
+    for name in names:
+        value = getattr(condition, name)
+        if isinstance(value, Schedule):
+            yield name, value
 
 
 class Exponential(Stepper):
