@@ -125,6 +125,14 @@ def solve(
     1
     >>> bool(result.mean[-1] < 850.0)
     True
+
+    An assembled system serves several runs without assembling again:
+
+    >>> from fem import assemble
+    >>> system = assemble(model)
+    >>> again = solve(system, end_time=600.0, time_step=1.0)
+    >>> bool(again.mean[-1] == result.mean[-1])
+    True
     """
     controls = check_arguments(
         _model_of(model),
