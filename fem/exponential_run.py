@@ -47,7 +47,7 @@ def check_exponential_parts(materials, boundaries, heat_sources) -> None:
     """
     sources = heat_sources.items()
     varying = [region for region, m in materials.items() if not m.is_constant]
-    radiating = [group for group, c in _each(boundaries) if isinstance(c, Radiation)]
+    radiating = [group for group, item in _each(boundaries) if isinstance(item, Radiation)]
     if varying or radiating:
         reason = (
             f"radiation on {radiating[0]!r}"
@@ -110,15 +110,17 @@ class _ExponentialMarch:
     """One run by exponential steps, interval by interval."""
 
     def __init__(self, run: RunContext):
-        c, s = run.controls, run.system
-        self.run, self.c = run, c
-        free = s.free_dofs
-        self.capacity_free = s.capacity[free][:, free].tocsr()
+        controls, system = run.controls, run.system
+        self.run, self.controls = run, controls
+        free = system.free_dofs
+        self.capacity_free = system.capacity[free][:, free].tocsr()
         self.max_dimension = int(
             min(MAX_DIMENSION, free.size + 1, max(12, BASIS_MEMORY // (8 * max(free.size, 1))))
         )
-        self.outputs = np.array(c.output_times)
-        self.watch = None if c.stop is None else StopWatch(c.stop, run.quantity, run.initial)
+        self.outputs = np.array(controls.output_times)
+        self.watch = (
+            None if controls.stop is None else StopWatch(controls.stop, run.quantity, run.initial)
+        )
         self.u = np.array(run.initial)
         self.absorbed = 0.0
         self.steps = self.dimension = 0
@@ -127,7 +129,7 @@ class _ExponentialMarch:
         self.stop_time: float | None = None
 
     def march(self) -> March:
-        edges = sorted({0.0, *self.run.breakpoints, self.c.end_time})
+        edges = sorted({0.0, *self.run.breakpoints, self.controls.end_time})
         for start, end in zip(edges[:-1], edges[1:], strict=True):
             self._interval(start, end)
             if self.stop_time is not None:
@@ -147,21 +149,23 @@ class _ExponentialMarch:
 
     def _interval(self, start: float, end: float) -> None:
         """One exponential step from ``start`` to ``end`` (or the stop), recorded."""
-        s, fixed, free = self.run.system, self.run.fixed, self.run.system.free_dofs
+        system, fixed, free = self.run.system, self.run.fixed, self.run.system.free_dofs
         length = end - start
         inside = start + 1e-9 * length
-        operator, load = s.exchange_operator(inside), s.load(inside)
+        operator, load = system.exchange_operator(inside), system.load(inside)
         u = self.u
         if len(fixed):
             before = u[fixed]
             u = u.copy()
-            s.impose_fixed(u, inside)
+            system.impose_fixed(u, inside)
             # a jump of a fixed temperature stores heat at once: the fixed edge supplies it
             self.absorbed += float(self.run.capacity_columns[fixed] @ (u[fixed] - before))
         forcing = load[free] - (operator[free][:, fixed] @ u[fixed] if len(fixed) else 0.0)
         shift = 2.0 ** round(math.log2(length * SHIFT_FRACTION))
         taus = (
-            _record_taus(start, end, self.c.step, self.run.surface_diffusion_time, self.outputs)
+            _record_taus(
+                start, end, self.controls.step, self.run.surface_diffusion_time, self.outputs
+            )
             - start
         )
         approximation, estimate, converged = krylov_exponential(
@@ -172,13 +176,13 @@ class _ExponentialMarch:
             u[free],
             shift,
             taus,
-            self.c.tolerance,
+            self.controls.tolerance,
             self.max_dimension,
         )
         if not converged:
             raise SolverError(
                 f"the exponential step from t = {start:.6g} s to {end:.6g} s did not reach the "
-                f"tolerance {self.c.tolerance:.3g} K with {approximation.dimension} basis "
+                f"tolerance {self.controls.tolerance:.3g} K with {approximation.dimension} basis "
                 f"vectors (estimate {estimate:.3g} K): loosen the tolerance or use "
                 "'crank-nicolson'"
             )
@@ -192,7 +196,7 @@ class _ExponentialMarch:
             if crossing is not None:
                 self.stop_time = start + crossing
                 taus = np.append(taus[taus < crossing], crossing)
-        ledger = _Ledger(s, approximation, u, free, fixed, operator, load)
+        ledger = _Ledger(system, approximation, u, free, fixed, operator, load)
         self._record(start, length, u, approximation, ledger, taus)
 
     def _record(self, start, length, u, approximation, ledger, taus) -> None:
@@ -276,7 +280,7 @@ class _Ledger:
     approximation in closed form: the φ2 integral of u gives ∫(b − A·u) dt exactly, so the
     energy balance measures the approximation's own error."""
 
-    def __init__(self, s, approximation: KrylovExponential, u, free, fixed, operator, load):
+    def __init__(self, system, approximation: KrylovExponential, u, free, fixed, operator, load):
         self.approximation = approximation
         columns = np.asarray(operator.sum(axis=0)).ravel()  # 1ᵀA
         self.columns_free = columns[free]
@@ -285,10 +289,10 @@ class _Ledger:
         self.constant_inflow = float(load.sum()) - float(columns[fixed] @ held)
         self.start_free = u[free]
         self.groups = {}  # per fixed group: 1ᵀM rows, 1ᵀA rows (free part), constant part
-        for name, dofs in s.fixed_dofs.items():
+        for name, dofs in system.fixed_dofs.items():
             rows = operator[dofs]
             self.groups[name] = (
-                np.asarray(s.capacity[dofs][:, free].sum(axis=0)).ravel(),
+                np.asarray(system.capacity[dofs][:, free].sum(axis=0)).ravel(),
                 np.asarray(rows[:, free].sum(axis=0)).ravel(),
                 float(np.asarray(rows[:, fixed].sum(axis=0)).ravel() @ held)
                 - float(load[dofs].sum()),

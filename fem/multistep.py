@@ -67,12 +67,14 @@ class _FormulaMarch:
     """One run of a formula stepper: steps to every event, restarts at breakpoints, stops."""
 
     def __init__(self, stepper: FormulaStepper, run: RunContext):
-        c = run.controls
-        self.stepper, self.run, self.c = stepper, run, c
+        controls = run.controls
+        self.stepper, self.run, self.controls = stepper, run, controls
         self.solver = LinearStep(run) if run.system.model.is_linear else NewtonStep(run)
-        self.events = Events(run.breakpoints, c.output_times, c.end_time)
-        self.control = StepControl(c)
-        self.watch = None if c.stop is None else StopWatch(c.stop, run.quantity, run.initial)
+        self.events = Events(run.breakpoints, controls.output_times, controls.end_time)
+        self.control = StepControl(controls)
+        self.watch = (
+            None if controls.stop is None else StopWatch(controls.stop, run.quantity, run.initial)
+        )
         self.history: list[tuple[float, np.ndarray]] = [(0.0, run.initial)]  # newest last
         self.time = 0.0
         self.absorbed = 0.0
@@ -83,9 +85,9 @@ class _FormulaMarch:
         self.stop_time: float | None = None
 
     def march(self) -> March:
-        c = self.c
-        while self.time < c.end_time * (1 - 1e-12):
-            startup = self.startup_done < c.startup_steps
+        controls = self.controls
+        while self.time < controls.end_time * (1 - 1e-12):
+            startup = self.startup_done < controls.startup_steps
             h, t1 = self.control.propose(
                 self.time,
                 self.events.next_after(self.time),
@@ -94,7 +96,7 @@ class _FormulaMarch:
                 self.stepper.max_step_ratio,
             )
             formula, result = self._take(h, t1, startup)
-            if c.adaptive and not startup and len(self.history) >= 3:
+            if controls.adaptive and not startup and len(self.history) >= 3:
                 past = [state for _, state in reversed(self.history)]
                 times = (t1, *[t for t, _ in reversed(self.history)])
                 free = self.run.system.free_dofs
@@ -171,15 +173,17 @@ class _FormulaMarch:
         return False
 
     def _outcome(self) -> March:
-        c = self.c
-        taken = min(self.startup_done, c.startup_steps)
+        controls = self.controls
+        taken = min(self.startup_done, controls.startup_steps)
         return March(
             steps=self.steps,
             rejected_steps=self.control.rejected,
             startup_steps=2 * taken if self.stepper.half_step_startup else taken,
-            time_step=float(self.previous_step if c.adaptive and self.previous_step else c.step),
-            smallest_step=float(self.smallest if self.steps else c.step),
-            largest_step=float(self.largest if self.steps else c.step),
+            time_step=float(
+                self.previous_step if controls.adaptive and self.previous_step else controls.step
+            ),
+            smallest_step=float(self.smallest if self.steps else controls.step),
+            largest_step=float(self.largest if self.steps else controls.step),
             final_state=self.history[-1][1].copy(),
             stop_time=self.stop_time,
             recent_startup_steps=self.startup_done,

@@ -40,45 +40,47 @@ class NewtonStep:
         guess: np.ndarray,
     ) -> StepResult:
         """The state at ``t1`` from ``states`` (newest first), iterating from ``guess``."""
-        s = self.run.system
+        system = self.run.system
         inside0, inside1 = t0 + 1e-9 * step, t1 - 1e-9 * step
-        known = sum(a * s.stored(u) for a, u in zip(formula.a[1:], states, strict=False)) / step
+        known = (
+            sum(a * system.stored(u) for a, u in zip(formula.a[1:], states, strict=False)) / step
+        )
         inflow_old = 0.0
         if formula.beta < 1:
-            outflow0 = s.net_outflow(states[0], inside0)
+            outflow0 = system.net_outflow(states[0], inside0)
             known = known + (1 - formula.beta) * outflow0
             inflow_old = -float(outflow0.sum())
 
         def residual(field):
             return (
-                formula.a[0] * s.stored(field) / step
+                formula.a[0] * system.stored(field) / step
                 + known
-                + formula.beta * s.net_outflow(field, inside1)
+                + formula.beta * system.net_outflow(field, inside1)
             )
 
         u = guess.copy()
-        s.impose_fixed(u, inside1)
+        system.impose_fixed(u, inside1)
         self._iterate(u, residual, formula, step, t1)
         r = residual(u)
-        reactions = {name: float(r[d].sum()) for name, d in s.fixed_dofs.items()}
-        inflow = formula.beta * -float(s.net_outflow(u, inside1).sum())
+        reactions = {name: float(r[d].sum()) for name, d in system.fixed_dofs.items()}
+        inflow = formula.beta * -float(system.net_outflow(u, inside1).sum())
         inflow += (1 - formula.beta) * inflow_old
         heat = step * (inflow + sum(reactions.values()))
-        return StepResult(u, float(s.stored(u).sum()), heat, reactions)
+        return StepResult(u, float(system.stored(u).sum()), heat, reactions)
 
     def _iterate(self, u, residual, formula: StepFormula, step: float, t1: float) -> None:
         """Newton's iterations on the free degrees of freedom of ``u`` (in place)."""
-        s, controls = self.run.system, self.run.controls
+        system, controls = self.run.system, self.run.controls
         inside1 = t1 - 1e-9 * step
-        free = s.free_dofs
+        free = system.free_dofs
         key = (float(f"{formula.a[0] / step:.12e}"), formula.beta)
         refresh = self.tangent is None or self.tangent[0] != key
         previous = math.inf
         for iteration in range(1, controls.max_newton_iterations + 1):
             r = residual(u)
             if refresh:
-                jacobian = (formula.a[0] / step) * s.capacity_tangent(u) + formula.beta * (
-                    s.outflow_tangent(u, inside1)
+                jacobian = (formula.a[0] / step) * system.capacity_tangent(u) + formula.beta * (
+                    system.outflow_tangent(u, inside1)
                 )
                 self.tangent = (key, self.run.algebra.factor(jacobian, self.symmetric))
             change = self.tangent[1].solve(-r[free])

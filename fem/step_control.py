@@ -10,11 +10,15 @@ one.
 from __future__ import annotations
 
 import math
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from .errors import SolverError
 from .integrators import StepFormula, local_error
+
+if TYPE_CHECKING:
+    from .arguments import RunControls
 
 LADDER = 2.0  # adaptive steps take values initial_step · 2^k, so few factorisations are made
 
@@ -22,8 +26,8 @@ LADDER = 2.0  # adaptive steps take values initial_step · 2^k, so few factorisa
 class StepControl:
     """The step size of a run and its adaptation (controls in s and K)."""
 
-    def __init__(self, controls):
-        self.c = controls
+    def __init__(self, controls: RunControls):
+        self.controls = controls
         self.step = controls.step
         self.ladder_base = controls.step
         self.rejected = 0
@@ -39,37 +43,43 @@ class StepControl:
         self, time: float, event: float, previous: float | None, startup: bool, max_ratio: float
     ) -> tuple[float, float]:
         """The next step and where it ends: on the next ``event`` when it is near, s."""
-        c = self.c
+        controls = self.controls
         gap = event - time
         h = self.step
         if previous is not None and not startup:
             h = min(h, max_ratio * previous)
         if abs(gap - h) <= 1e-9 * h:
             return h, event  # the step lands on the event: snap away the round-off
-        stretch = c.adaptive and not startup and not self.retrying
-        if gap < h or (stretch and gap <= 1.5 * h and gap <= c.max_step):
+        stretch = controls.adaptive and not startup and not self.retrying
+        if gap < h or (stretch and gap <= 1.5 * h and gap <= controls.max_step):
             return gap, event
         return h, time + h
 
     def judge(
-        self, formula: StepFormula, step: float, times: tuple, field: np.ndarray, past, free
+        self,
+        formula: StepFormula,
+        step: float,
+        times: tuple[float, ...],
+        field: np.ndarray,
+        past: list[np.ndarray],
+        free: np.ndarray,
     ) -> bool:
         """Accept the step that gave ``field`` at times[0] from ``past`` (at times[1:]) or
         reject it; either way set the next step from the local error."""
-        c = self.c
+        controls = self.controls
         error = float(np.abs(local_error(formula, times, field, past)[free]).max(initial=0.0))
-        factor = 0.9 * (c.tolerance / max(error, 1e-300)) ** (1 / (formula.order + 1))
-        if error > c.tolerance and step > c.min_step * (1 + 1e-9):
+        factor = 0.9 * (controls.tolerance / max(error, 1e-300)) ** (1 / (formula.order + 1))
+        if error > controls.tolerance and step > controls.min_step * (1 + 1e-9):
             self.rejected += 1
             self.retrying = True
-            self.step = self._on_ladder(max(step * max(factor, 0.2), c.min_step))
+            self.step = self._on_ladder(max(step * max(factor, 0.2), controls.min_step))
             return False
-        if error > c.tolerance:
+        if error > controls.tolerance:
             raise SolverError(
                 f"the local error {error:.3g} K at t = {times[0]:.6g} s exceeds the tolerance "
-                f"{c.tolerance:.3g} K at the smallest step {c.min_step:.3g} s"
+                f"{controls.tolerance:.3g} K at the smallest step {controls.min_step:.3g} s"
             )
-        proposal = min(max(step * min(factor, 2.0), c.min_step), c.max_step)
+        proposal = min(max(step * min(factor, 2.0), controls.min_step), controls.max_step)
         if step < self.step * (1 - 1e-9):  # shortened to meet an event: keep the step earned
             proposal = self.step if factor >= 1 else min(self.step, proposal)
         proposal = self._on_ladder(proposal)
@@ -85,8 +95,8 @@ class StepControl:
     def accepted(self) -> None:
         """A step was taken: fixed steps return to the requested size."""
         self.retrying = False
-        if not self.c.adaptive:
-            self.step = self.c.step
+        if not self.controls.adaptive:
+            self.step = self.controls.step
 
     def _on_ladder(self, step: float) -> float:
         base = self.ladder_base
