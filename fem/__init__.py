@@ -4,6 +4,7 @@ This package knows heat and numerics only: no lumped models, no reports.
 """
 
 from . import solids
+from .arguments import check_run_options
 from .conditions import (
     BoundaryCondition,
     Convection,
@@ -13,6 +14,7 @@ from .conditions import (
     Radiation,
 )
 from .errors import ModelError, SolverError
+from .exponential_run import check_exponential_parts
 from .fields import FieldSeries
 from .materials import Material, PropertyRangeWarning, PropertyTable
 from .model import ThermalModel
@@ -46,6 +48,8 @@ __all__ = [
     "StopWhen",
     "ThermalModel",
     "assemble",
+    "check_exponential_parts",
+    "check_run_options",
     "solids",
     "solve",
 ]

@@ -20,7 +20,17 @@ from dataclasses import dataclass
 
 import numpy as np
 
-METHODS = ("crank-nicolson", "bdf2", "backward-euler")
+
+@dataclass
+class StepResult:
+    """What a step produced: the field (°C), 1ᵀC(T) (J), the heat taken in over the step as
+    the scheme integrates it (J, before the multistep correction), and the fixed groups'
+    reactions (W)."""
+
+    field: np.ndarray
+    stored: float
+    heat: float
+    reactions: dict[str, float]
 
 
 @dataclass(frozen=True)

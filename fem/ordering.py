@@ -71,23 +71,7 @@ def nested_dissection(graph: sp.csr_matrix, points: np.ndarray, leaf: int = LEAF
             along = by_coordinate[axis]
             along = along[part[along] >= 0]
             by_coordinate[axis] = along
-            ranked = along[np.argsort(part[along], kind="stable")]
-            rank = np.arange(live.size) - np.repeat(
-                np.cumsum(sizes[sizes > leaf]) - sizes[sizes > leaf], sizes[sizes > leaf]
-            )
-            below = rank < sizes[part[ranked]] // 2
-            # cut at the median value, so that nodes on one grid line stay together; by rank
-            # alone where that leaves a half empty
-            median = np.zeros(first.size)
-            median[part[ranked[rank == sizes[part[ranked]] // 2]]] = points[
-                axis, ranked[rank == sizes[part[ranked]] // 2]
-            ]
-            by_value = points[axis, ranked] < median[part[ranked]]
-            empty = np.bincount(part[ranked[by_value]], minlength=first.size) == 0
-            left = np.zeros(n, dtype=bool)
-            left[ranked[np.where(empty[part[ranked]], below, by_value)]] = True
-            touches = np.zeros(n, dtype=bool)
-            touches[rows[~left[rows] & left[cols]]] = True
+            left, touches = _halves(along, points[axis], part, sizes, leaf, live.size, rows, cols)
             lefts.append(left)
             touching.append(touches)
         separator_sizes = [np.bincount(part[t], minlength=first.size) for t in touching]
@@ -105,6 +89,29 @@ def nested_dissection(graph: sp.csr_matrix, points: np.ndarray, leaf: int = LEAF
         rest = live[~separator[live]]
         part[rest] = np.where(left[rest], part[rest], part[rest] + first.size)
         first = children_first
+
+
+def _halves(along, coordinate, part, sizes, leaf, live_count, rows, cols):
+    """Each part's lower half along one axis, and the nodes outside it that touch it.
+
+    ``along`` holds the live nodes sorted by ``coordinate``. A part is cut at the median
+    value, so that nodes on one grid line stay together; by rank alone where that leaves a
+    half empty.
+    """
+    ranked = along[np.argsort(part[along], kind="stable")]
+    cut = sizes[sizes > leaf]
+    rank = np.arange(live_count) - np.repeat(np.cumsum(cut) - cut, cut)
+    below = rank < sizes[part[ranked]] // 2
+    at_median = ranked[rank == sizes[part[ranked]] // 2]
+    median = np.zeros(sizes.size)
+    median[part[at_median]] = coordinate[at_median]
+    by_value = coordinate[ranked] < median[part[ranked]]
+    empty = np.bincount(part[ranked[by_value]], minlength=sizes.size) == 0
+    left = np.zeros(part.size, dtype=bool)
+    left[ranked[np.where(empty[part[ranked]], below, by_value)]] = True
+    touches = np.zeros(part.size, dtype=bool)
+    touches[rows[~left[rows] & left[cols]]] = True
+    return left, touches
 
 
 def _number(order, nodes, part, first, sizes) -> None:

@@ -95,22 +95,12 @@ class HistoryRecorder:
         )
 
     def store_field(self, time: float, temperature: np.ndarray) -> None:
+        """Keep the field at an output time (its vertex values)."""
         self._output_times.append(time)
         self._fields.append(temperature[self._system.vertex_dofs])
 
-    @property
-    def last_time(self) -> float:
-        return self._rows[-1][0]
-
-    def history(self, name: str) -> np.ndarray:
-        """One quantity over the recorded states: mean, minimum, maximum or a probe name."""
-        column = {"mean": 1, "minimum": 2, "maximum": 3}.get(name)
-        if column is not None:
-            return np.array([row[column] for row in self._rows])
-        k = self._probe_names.index(name)
-        return np.array([row[6][k] for row in self._rows])
-
     def histories(self) -> dict[str, object]:
+        """Every recorded quantity as arrays over the records (the fields of a Solution)."""
         columns = list(zip(*self._rows, strict=True))
         probes = np.array(columns[6]).reshape(len(self._rows), -1)
         flows = np.array(columns[7]).reshape(len(self._rows), -1)

@@ -108,7 +108,7 @@ from fem import (
     solve,
 )
 from fem.exponential import SMALL, krylov_exponential, phi1, phi2
-from fem.transient import EXCURSION_TOLERANCE
+from fem.run_checks import EXCURSION_TOLERANCE
 from geometries import Rectangle
 
 EPS = float(np.finfo(float).eps)

@@ -14,8 +14,8 @@ import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
 from fem import Convection, Material, ThermalModel, assemble
+from fem.linalg import NESTED_DISSECTION_FROM
 from fem.ordering import PermutedFactor, nested_dissection
-from fem.transient import NESTED_DISSECTION_FROM
 from geometries import Circle, Rectangle
 
 

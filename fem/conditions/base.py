@@ -92,6 +92,10 @@ class Condition:
         True when heat crosses the edge through it (its group gets edge terms and a history).
     holds_temperature : bool
         True when it imposes the surface temperature (:meth:`held_temperature`).
+    bounded : bool
+        True when it cannot drive the part beyond the temperatures it drives towards (heat
+        supplied regardless of temperature, as a prescribed flux, can); the solver's
+        maximum-principle check runs only when every condition is bounded.
     units : dict of str to str
         Unit suffix of each field in summary keys.
     """
@@ -103,6 +107,7 @@ class Condition:
     exchanges: ClassVar[bool] = False
     flows: ClassVar[bool] = True
     holds_temperature: ClassVar[bool] = False
+    bounded: ClassVar[bool] = True
     units: ClassVar[dict[str, str]] = {}
 
     # -- time -------------------------------------------------------------------------------

@@ -15,6 +15,7 @@ class HeatFlux(Condition):
 
     name = "flux"
     label = "heat flux"
+    bounded = False  # heat goes in whatever the temperature
     units = {"flux": "_W_per_m2"}
 
     flux: float | Schedule

@@ -1,0 +1,88 @@
+"""The times a run must land on (schedule breakpoints, output times, the end) and the stop
+condition's crossing."""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Iterable
+from typing import TYPE_CHECKING
+
+import numpy as np
+
+from .model import ThermalModel
+
+if TYPE_CHECKING:
+    from .arguments import StopWhen
+
+EVENT_TOLERANCE = 1e-9  # a step ends on an event when within this fraction of max(step, 1 s)
+
+
+def merged_breakpoints(model: ThermalModel, end: float) -> tuple[float, ...]:
+    """The model's breakpoints in (0, end), sorted, without round-off twins.
+
+    Round-off (k·period against end_time) must not make sliver steps: points closer than
+    1e-9·end_time to the end or to the previous point are one point.
+    """
+    merged: list[float] = []
+    for point in sorted(model.breakpoints(end)):
+        if end - point > 1e-9 * end and (not merged or point - merged[-1] > 1e-9 * end):
+            merged.append(point)
+    return tuple(merged)
+
+
+class Events:
+    """The breakpoints, output times and end time, in order."""
+
+    def __init__(self, breakpoints: Iterable[float], outputs: Iterable[float], end: float):
+        self.breakpoints = tuple(breakpoints)
+        self.outputs = tuple(outputs)
+        self._times = sorted(set(self.outputs) | set(self.breakpoints) | {end})
+        self._next = 0
+
+    def next_after(self, time: float) -> float:
+        """The first event after ``time`` (times only increase)."""
+        while self._times[self._next] <= time * (1 + 1e-12):
+            self._next += 1
+        return self._times[self._next]
+
+    def is_output(self, time: float, step: float) -> bool:
+        """Whether a step of ``step`` s ending at ``time`` landed on an output time."""
+        return _near(time, self.outputs, step)
+
+    def is_breakpoint(self, time: float, step: float) -> bool:
+        """Whether a step of ``step`` s ending at ``time`` landed on a breakpoint."""
+        return _near(time, self.breakpoints, step)
+
+
+def _near(time: float, points: tuple[float, ...], step: float) -> bool:
+    return any(abs(time - p) <= EVENT_TOLERANCE * max(step, 1.0) for p in points)
+
+
+class StopWatch:
+    """Watches a stop quantity step by step for the crossing of its target."""
+
+    def __init__(self, stop: StopWhen, quantity: Callable[[np.ndarray, str], float], field):
+        self.stop = stop
+        self._quantity = quantity
+        self.value = quantity(field, stop.quantity)
+        self.side = np.sign(self.value - stop.target)
+
+    def crossed(self, field: np.ndarray, time: float, step: float) -> float | None:
+        """The crossing time within the step that ended at ``time`` with ``field``,
+        interpolated linearly, or None when the target was not reached."""
+        before, after = self.value, self._quantity(field, self.stop.quantity)
+        self.value = after
+        if np.sign(after - self.stop.target) == self.side:
+            return None
+        fraction = 1.0 if after == before else (self.stop.target - before) / (after - before)
+        return float(time - step + step * min(max(fraction, 0.0), 1.0))
+
+    def is_across(self, field: np.ndarray) -> bool:
+        """Whether ``field`` lies on the far side of the target."""
+        return np.sign(self._quantity(field, self.stop.quantity) - self.stop.target) != self.side
+
+
+def reached(histories: dict, stop: StopWhen) -> bool:
+    """Whether the recorded stop quantity ever crossed its target."""
+    values = histories["probes"].get(stop.quantity, histories.get(stop.quantity))
+    values = np.asarray(values)
+    return bool(np.any(np.sign(values - stop.target) != np.sign(values[0] - stop.target)))

@@ -1,0 +1,190 @@
+"""The multistep formulas as steppers, and their march from event to event.
+
+Crank–Nicolson starts with backward-Euler half-steps (Rannacher's start-up: they damp the fast
+modes a sudden plunge excites and use the same matrix M + ½·Δt·A as Crank–Nicolson); BDF2
+starts with backward-Euler steps; backward Euler needs no start. Every schedule breakpoint
+restarts the scheme as at t = 0, so BDF2 does not difference across a jump and Crank–Nicolson
+does not ring after it. Each step is solved by :class:`fem.linear_step.LinearStep` or, for
+nonlinear models, :class:`fem.newton.NewtonStep`.
+"""
+
+from __future__ import annotations
+
+import math
+from typing import ClassVar
+
+import numpy as np
+
+from .events import Events, StopWatch
+from .integrators import StepFormula, StepResult, bdf2_formula, predict, theta_formula
+from .linear_step import LinearStep
+from .newton import NewtonStep
+from .step_control import StepControl
+from .stepper import March, RunContext, Stepper
+
+
+class FormulaStepper(Stepper):
+    """A method that steps by one multistep formula."""
+
+    half_step_startup: ClassVar[bool] = False  # start-up steps taken as two half-steps
+    max_step_ratio: ClassVar[float] = math.inf  # largest step over the previous one
+
+    def formula(self, startup: bool, ratio: float | None) -> StepFormula:
+        """The formula of a step ``ratio`` times the previous one (None after a restart)."""
+        return theta_formula(1.0)
+
+    def march(self, run: RunContext) -> March:
+        return _FormulaMarch(self, run).march()
+
+
+class CrankNicolson(FormulaStepper):
+    name = "crank-nicolson"
+    title = "Crank-Nicolson"
+    default_startup_steps = 2
+    half_step_startup = True
+    rings_without_startup = True
+
+    def formula(self, startup: bool, ratio: float | None) -> StepFormula:
+        return theta_formula(1.0 if startup else 0.5)
+
+
+class BackwardEuler(FormulaStepper):
+    name = "backward-euler"
+    title = "Backward Euler"
+
+
+class BDF2(FormulaStepper):
+    name = "bdf2"
+    title = "BDF2"
+    min_startup_steps = 1
+    max_step_ratio = 2.0  # BDF2 is zero-stable for ratios below 1 + √2
+
+    def formula(self, startup: bool, ratio: float | None) -> StepFormula:
+        return theta_formula(1.0) if startup else bdf2_formula(ratio)
+
+
+class _FormulaMarch:
+    """One run of a formula stepper: steps to every event, restarts at breakpoints, stops."""
+
+    def __init__(self, stepper: FormulaStepper, run: RunContext):
+        controls = run.controls
+        self.stepper, self.run, self.controls = stepper, run, controls
+        self.solver = LinearStep(run) if run.system.model.is_linear else NewtonStep(run)
+        self.events = Events(run.breakpoints, controls.output_times, controls.end_time)
+        self.control = StepControl(controls)
+        self.watch = (
+            None if controls.stop is None else StopWatch(controls.stop, run.quantity, run.initial)
+        )
+        self.history: list[tuple[float, np.ndarray]] = [(0.0, run.initial)]  # newest last
+        self.time = 0.0
+        self.absorbed = 0.0
+        self.last_increment = 0.0
+        self.steps = self.startup_done = 0
+        self.smallest, self.largest = math.inf, 0.0
+        self.previous_step: float | None = None
+        self.stop_time: float | None = None
+
+    def march(self) -> March:
+        controls = self.controls
+        while self.time < controls.end_time * (1 - 1e-12):
+            startup = self.startup_done < controls.startup_steps
+            h, t1 = self.control.propose(
+                self.time,
+                self.events.next_after(self.time),
+                self.previous_step,
+                startup,
+                self.stepper.max_step_ratio,
+            )
+            formula, result = self._take(h, t1, startup)
+            if controls.adaptive and not startup and len(self.history) >= 3:
+                past = [state for _, state in reversed(self.history)]
+                times = (t1, *[t for t, _ in reversed(self.history)])
+                free = self.run.system.free_dofs
+                if not self.control.judge(formula, h, times, result.field, past, free):
+                    continue
+            self.control.accepted()
+            if self._accept(formula, h, t1, result, startup):
+                break
+        return self._outcome()
+
+    def _take(self, h: float, t1: float, startup: bool) -> tuple[StepFormula, StepResult]:
+        """Solve one step of ``h`` s from the current time to ``t1``."""
+        t = self.time
+        past = [state for _, state in reversed(self.history)]
+        guess = past[0]
+        if not self.run.system.model.is_linear and len(self.history) >= 3:
+            times = (t1, *[tt for tt, _ in reversed(self.history)])
+            guess = predict(times, past)  # Newton starts from the trend
+        ratio = None if self.previous_step is None else h / self.previous_step
+        formula = self.stepper.formula(startup, ratio)
+        if startup and self.stepper.half_step_startup:
+            half = self.solver.solve(formula, h / 2, t, t + h / 2, past[:1], past[0])
+            self._record(t + h / 2, formula, half)
+            self.steps += 1
+            result = self.solver.solve(formula, h / 2, t + h / 2, t1, [half.field], half.field)
+            return formula, result
+        return formula, self.solver.solve(formula, h, t, t1, past[: formula.history], guess)
+
+    def _record(self, time: float, formula: StepFormula, result: StepResult) -> None:
+        """Record a state, with the stored-energy increment the scheme's heat balance gives.
+
+        One-step formulas store what came in. BDF2 balances a0·E_n+1 + a1·E_n + a2·E_n−1 =
+        h·Q_n+1 (a0 + a1 + a2 = 0), so the store grows by (h·Q_n+1 + a2·ΔE_n) / a0.
+        """
+        increment = result.heat
+        if formula.history == 2:
+            increment = (result.heat + formula.a[2] * self.last_increment) / formula.a[0]
+        self.last_increment = increment
+        self.absorbed += increment
+        self.run.recorder.record(
+            time, result.field, result.stored, self.absorbed, result.reactions
+        )
+
+    def _accept(
+        self, formula: StepFormula, h: float, t1: float, result: StepResult, startup: bool
+    ) -> bool:
+        """Take the step; True when the stop condition was met in it."""
+        u1 = result.field
+        self._record(t1, formula, result)
+        self.steps += 1
+        self.startup_done += startup
+        self.smallest, self.largest = min(self.smallest, h), max(self.largest, h)
+        self.previous_step = h
+        self.history = [*self.history, (t1, u1)][-3:]
+        self.time = t1
+        output = self.events.is_output(t1, h)
+        if output:
+            self.run.recorder.store_field(t1, u1)
+        restart = self.events.is_breakpoint(t1, h)
+        if restart or output:
+            self.control.anchor = t1
+        if restart:
+            # A schedule jumps or kinks here: start again as at t = 0.
+            self.history = [(t1, u1)]
+            self.startup_done = 0
+            self.previous_step = None
+        self.run.report(t1, self.steps)
+        if self.watch is not None:
+            self.stop_time = self.watch.crossed(u1, t1, h)
+            if self.stop_time is not None:
+                if not output:
+                    self.run.recorder.store_field(t1, u1)
+                return True
+        return False
+
+    def _outcome(self) -> March:
+        controls = self.controls
+        taken = min(self.startup_done, controls.startup_steps)
+        return March(
+            steps=self.steps,
+            rejected_steps=self.control.rejected,
+            startup_steps=2 * taken if self.stepper.half_step_startup else taken,
+            time_step=float(
+                self.previous_step if controls.adaptive and self.previous_step else controls.step
+            ),
+            smallest_step=float(self.smallest if self.steps else controls.step),
+            largest_step=float(self.largest if self.steps else controls.step),
+            final_state=self.history[-1][1].copy(),
+            stop_time=self.stop_time,
+            recent_startup_steps=self.startup_done,
+        )
