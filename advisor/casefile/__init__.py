@@ -13,7 +13,7 @@ command line to list its choices) does not load pint, numpy or the solver.
 
 from __future__ import annotations
 
-__all__ = ["Case", "CaseError", "case_from_toml", "load_case"]
+__all__ = ["Case", "CaseError", "case_from_data", "case_from_toml", "load_case"]
 
 
 def __getattr__(name: str):

@@ -9,6 +9,7 @@ The README documents the format with a complete annotated example.
 
 from __future__ import annotations
 
+import copy
 import sys
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -28,7 +29,7 @@ if sys.version_info >= (3, 11):
 else:  # pragma: no cover - Python 3.10
     import tomli as tomllib
 
-__all__ = ["Case", "CaseError", "case_from_toml", "load_case"]
+__all__ = ["Case", "CaseError", "case_from_data", "case_from_toml", "load_case"]
 
 
 @dataclass(frozen=True)
@@ -93,7 +94,9 @@ def load_case(path: str | Path, overrides: dict | None = None) -> Case:
     return case_from_toml(path.read_text(encoding="utf-8"), path, overrides)
 
 
-def case_from_toml(text: str, path: str | Path = "case.toml", overrides: dict | None = None):
+def case_from_toml(
+    text: str, path: str | Path = "case.toml", overrides: dict | None = None
+) -> Case:
     """A :class:`Case` from the text of a case file; ``path`` names it in messages, and
     relative file paths in it start from its folder."""
     path = Path(path)
@@ -101,13 +104,23 @@ def case_from_toml(text: str, path: str | Path = "case.toml", overrides: dict | 
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as error:
         raise CaseError(f"{path.name}: not valid TOML: {error}") from None
+    return case_from_data(data, path, overrides, text.splitlines())
+
+
+def case_from_data(
+    data: dict, path: str | Path = "case.toml", overrides: dict | None = None, lines=()
+) -> Case:
+    """A :class:`Case` from the tables of a case file as a dict (what ``tomllib`` gives);
+    ``lines``, the file's text, lets messages name lines."""
+    path = Path(path)
+    data = copy.deepcopy(data)  # the overrides must not change the caller's tables
     for dotted, value in (overrides or {}).items():
         target = data
         *parents, last = dotted.split(".")
         for key in parents:
             target = target.setdefault(key, {})
         target[last] = value
-    context = Context(path.name, tuple(text.splitlines()), path.parent)
+    context = Context(path.name, tuple(lines), path.parent)
     try:
         return _read_case(Table(data, "", context), path)
     except LIBRARY_ERRORS as error:  # a library check no key path was found for
