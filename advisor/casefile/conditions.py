@@ -20,7 +20,7 @@ def read_boundaries(root: Table, groups) -> dict[str, tuple]:
     """The conditions of each edge group, for exactly the section's groups (the axis of an
     axisymmetric section needs none)."""
     table = root.table("boundaries")
-    boundaries = {group: _read_group(table.table(group)) for group in table.data}
+    boundaries = {group: _read_group(table.table(group), group) for group in table.data}
     table.done()
     named, known = set(boundaries), set(groups)
     if named - known:
@@ -39,7 +39,7 @@ def read_boundaries(root: Table, groups) -> dict[str, tuple]:
     return boundaries
 
 
-def _read_group(spec: Table) -> tuple:
+def _read_group(spec: Table, group: str) -> tuple:
     """The conditions of one edge group, in the schema's order."""
     found = [
         _read_condition(spec, name, kind) for name, kind in CONDITIONS.items() if spec.has(name)
@@ -50,9 +50,7 @@ def _read_group(spec: Table) -> tuple:
         spec.fail(
             others[0], f"the edge group has no condition: give {', '.join(others)} or {last}"
         )
-    return build(
-        spec, checked_combination, tuple(found), spec.path, default=next(iter(CONDITIONS))
-    )
+    return build(spec, checked_combination, tuple(found), group)  # alone or combined
 
 
 def _read_condition(spec: Table, name: str, kind: ConditionKind):

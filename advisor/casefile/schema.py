@@ -60,8 +60,9 @@ def _name(key: str, argument: str, default: str) -> Field:
 
 
 _CENTRE = Field("centre", "centre", "point", (0.0, 0.0))
-_PROFILE = (_length("depth"), _length("width"), _length("web_thickness"))
-_FLANGED = (*_PROFILE, _length("flange_thickness"), _length("root_radius", 0.0))
+_FLANGED = tuple(
+    _length(key) for key in ("depth", "width", "web_thickness", "flange_thickness")
+) + (_length("root_radius", 0.0),)
 
 
 @dataclass(frozen=True)
