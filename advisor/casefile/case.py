@@ -38,6 +38,33 @@ class Case:
 
     ``model()`` meshes and builds the thermal model; ``run_options`` and ``advisor_options``
     are the keyword arguments of :func:`fem.solve` and :func:`advisor.assess`.
+
+    Attributes
+    ----------
+    path : Path
+        The case file (its name starts every message).
+    title : str
+        The case's title.
+    section, imported : Section or None, SectionMesh or None
+        The geometry to mesh, or a mesh read from a file.
+    mesh_options : dict
+        ``size`` in m and the keyword arguments of :meth:`geometries.Section.mesh`.
+    materials : dict of str to Material
+        One per region, or ``{"*": material}`` for the whole section.
+    boundaries : dict of str to tuple
+        The conditions of each edge group.
+    initial : float or dict of str to float
+        Starting temperature in °C, for the whole section or per region.
+    sources, probes : dict
+        Heat generated in W/m³ per region (values or schedules); named points (x, y) in m.
+    element_order : int
+        1 or 2.
+    end_time : float
+        Duration in s.
+    run_options, advisor_options : dict
+        Keyword arguments of :func:`fem.solve` and :func:`advisor.assess`.
+    outputs : dict of str to bool
+        Which optional files to write.
     """
 
     path: Path

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import re
 from collections.abc import Callable, Mapping
+from typing import NoReturn
 
 from fem import ModelError
 from geometries import GeometryError
@@ -62,7 +63,13 @@ def build(
         raise_at(table, error, keys or {}, default, getattr(constructor, "__name__", ""))
 
 
-def raise_at(table: Table, error: Exception, keys: Mapping[str, str], default, owner: str = ""):
+def raise_at(
+    table: Table,
+    error: Exception,
+    keys: Mapping[str, str],
+    default: str | None,
+    owner: str = "",
+) -> NoReturn:
     """Raise ``error`` of the library as a :class:`CaseError` at the key it concerns."""
     message = str(error)
     known = {*keys, *table.data}
