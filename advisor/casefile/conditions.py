@@ -7,13 +7,13 @@ from __future__ import annotations
 
 import math
 
-from fem import FixedTemperature, Periodic, Sinusoid
+from fem import FixedTemperature, ModelError, Periodic, Sinusoid
 from fem.boundary import conditions as checked_combination
 from geometries import AXIS_GROUP
 
 from .reader import MISSING, Table, suggest
 from .schema import CONDITIONS, INSULATION, SINUSOID_FIELDS, TABLE_SCHEDULES, ConditionKind, Field
-from .validation import build
+from .validation import build, raise_at
 
 
 def read_boundaries(root: Table, groups) -> dict[str, tuple]:
@@ -50,7 +50,13 @@ def _read_group(spec: Table, group: str) -> tuple:
         spec.fail(
             others[0], f"the edge group has no condition: give {', '.join(others)} or {last}"
         )
-    return build(spec, checked_combination, tuple(found), group)  # alone or combined
+    try:
+        return checked_combination(tuple(found), group)  # which kinds may share a group
+    except ModelError as error:
+        message = str(error)
+        for name, kind in CONDITIONS.items():  # the library's class names → the case's keys
+            message = message.replace(kind.condition.__name__, name)
+        raise_at(spec, ModelError(message), {}, None)
 
 
 def _read_condition(spec: Table, name: str, kind: ConditionKind):
