@@ -86,3 +86,42 @@ def test_the_starting_cases_load_without_the_case_reader():
     loaded, pint_loaded = done.stdout.strip().splitlines()
     assert loaded == str(["advisor.casefile", "advisor.casefile.starters"])
     assert pint_loaded == "False"
+
+
+@pytest.mark.parametrize(
+    ("argument", "message", "key_path", "phrase"),
+    [
+        ("time_step", "time_step must be a time in (0, end_time] s", "run.time_step", "must be"),
+        (
+            "stop",
+            "stop quantity must be one of ['mean', 'core'], got 'cor'",
+            "run.stop.quantity",
+            "did you mean 'core'",
+        ),
+    ],
+)
+def test_the_solvers_run_check_is_mapped_to_the_key_it_names(
+    argument, message, key_path, phrase, monkeypatch
+):
+    """The run options go through the solver's own check when it has one; its error names
+    the argument, which the case maps to its key path and line."""
+    import fem
+
+    seen = {}
+
+    def check_run_options(end_time, *, probes=(), **options):
+        seen.update(options, end_time=end_time, probes=probes)
+        raise fem.ModelError(message, argument=argument)
+
+    monkeypatch.setattr(fem, "check_run_options", check_run_options, raising=False)
+    text = starter_text("quench-bar").replace(
+        'time_step = "1 s"', 'time_step = "1 s"\nstop = { quantity = "cor", target = 300 }'
+    )
+    with pytest.raises(CaseError) as error:
+        case_from_toml(text, "bar.toml")
+    lines = text.splitlines()
+    line = next(i for i, t in enumerate(lines, 1) if t.startswith(key_path.split(".")[1]))
+    assert str(error.value).startswith(f"bar.toml, line {line}: {key_path}: ")
+    assert phrase in str(error.value)
+    assert seen["end_time"] == 600.0 and seen["time_step"] == 1.0
+    assert seen["probes"] == ("core", "face_centre")
