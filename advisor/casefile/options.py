@@ -1,0 +1,116 @@
+"""``[run]``, ``[advisor]`` and ``[outputs]``: the keyword arguments of :func:`fem.solve` and
+:func:`advisor.assess`, and which optional files to write.
+
+The run options are checked by the solver's own rules before anything is meshed, through
+:func:`_check_run_options`.
+"""
+
+from __future__ import annotations
+
+import math
+
+import fem
+from fem import ModelError, StopWhen
+
+from ..analysis.assessment import QUANTITIES
+from .conditions import temperature
+from .reader import Table
+from .schema import OUTPUTS, RUN_KEYS, RUN_QUANTITIES
+from .validation import LIBRARY_ERRORS, raise_at
+
+
+def read_run(root: Table, parts: dict) -> tuple[float, dict, int]:
+    """``[run]``: the end time in s, the keyword arguments of :func:`fem.solve` and the element
+    order. ``parts`` holds the model's materials, boundaries, heat sources and probes, which
+    the run options are checked against."""
+    run = root.table("run")
+    end_time = run.get("end_time", "time")
+    options: dict = {"method": run.text("method", "crank-nicolson")}
+    for key, kind in RUN_QUANTITIES.items():
+        value = run.get(key, kind, None)
+        if value is not None:
+            options[key] = value
+    stop = run.table("stop", None)
+    if stop is not None:
+        options["stop"] = StopWhen(stop.text("quantity"), temperature(stop, "target"))
+        stop.done()
+    try:
+        _check_run_options(end_time, tuple(parts["probes"]), options)
+    except LIBRARY_ERRORS as error:
+        raise_at(run, error, RUN_KEYS, None)
+    if options["method"] == "exponential":
+        try:
+            _check_exponential_parts(parts["materials"], parts["boundaries"], parts["sources"])
+        except LIBRARY_ERRORS as error:
+            run.fail("method", str(error))
+    element_order = run.get("element_order", "number", 1)
+    if element_order not in (1, 2):  # the model checks it only once there is a mesh
+        run.fail("element_order", f"must be 1 or 2, got {element_order}")
+    run.done()
+    return end_time, options, int(element_order)
+
+
+def _check_run_options(end_time: float, probes: tuple[str, ...], options: dict) -> None:
+    """The solver's check of a run request, without a model: raises the library's errors."""
+    if hasattr(fem, "check_run_options"):
+        fem.check_run_options(end_time, probes=probes, **options)
+        return
+    # Fallback, to be removed when fem.check_run_options exists: the checks of a run request
+    # that need no mesh, as the solver makes them.
+    if not (isinstance(end_time, float) and math.isfinite(end_time) and end_time > 0):
+        raise ModelError(
+            f"end_time must be a finite time > 0 s, got {end_time!r}", argument="end_time"
+        )
+    methods = ("crank-nicolson", "bdf2", "backward-euler", "exponential")
+    if options["method"] not in methods:
+        raise ModelError(
+            f"method must be one of {methods}, got {options['method']!r}", argument="method"
+        )
+    for key in RUN_QUANTITIES:
+        if key in options and not options[key] > 0:
+            raise ModelError(f"{key} must be > 0, got {options[key]:g}", argument=key)
+    stop = options.get("stop")
+    names = ("mean", "minimum", "maximum", *probes)
+    if stop is not None and stop.quantity not in names:
+        raise ModelError(
+            f"stop quantity must be one of {list(names)}, got {stop.quantity!r}", argument="stop"
+        )
+
+
+def _check_exponential_parts(materials, boundaries, sources) -> None:
+    """Whether the model's parts allow exponential steps (linear, schedules that only jump)."""
+    if hasattr(fem, "check_exponential_parts"):
+        fem.check_exponential_parts(materials, boundaries, sources)
+        return
+    # Fallback, to be removed when fem exports check_exponential_parts.
+    from fem.exponential_run import check_exponential_parts
+
+    check_exponential_parts(materials, boundaries, sources)
+
+
+def read_advisor(root: Table) -> dict:
+    """``[advisor]``: the keyword arguments of :func:`advisor.assess`."""
+    advisor = root.table("advisor", None)
+    if advisor is None:
+        return {}
+    options: dict = {}
+    target = temperature(advisor, "target", None)
+    if target is not None:
+        options["target"] = target
+    tolerance = advisor.get("tolerance", "number", 0.05)
+    if not 0 < tolerance < 1:  # the assessment checks it only once there is a model
+        advisor.fail("tolerance", f"must be a fraction in (0, 1), got {tolerance:g}")
+    options["tolerance"] = tolerance
+    options["quantity"] = advisor.text("quantity", "slowest", QUANTITIES)
+    advisor.done()
+    return options
+
+
+def read_outputs(root: Table) -> dict[str, bool]:
+    """``[outputs]``: which optional files to write (animation, report, VTK)."""
+    table = root.table("outputs", None)
+    if table is None:
+        return {}
+    outputs = {key: table.flag(key, True) for key in OUTPUTS if table.has(key)}
+    table.done()
+    return outputs

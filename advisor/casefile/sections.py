@@ -1,0 +1,199 @@
+"""``[section]``: the shapes and how they combine, symmetry cuts, edge-naming rules, local
+refinement and the mesh options, or a mesh file to import instead.
+
+The geometry is built (booleans included) but not meshed, so the edge groups and regions the
+mesh will have are known while the file is read.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from geometries import (
+    Composite,
+    Difference,
+    GeometryError,
+    Intersection,
+    Section,
+    SectionMesh,
+    Union,
+    read_section_mesh,
+)
+
+from .reader import Table, suggest
+from .schema import COMBINE_FIRST, COMBINE_LATER, MESH_FILE_UNITS
+from .shapes import direction, read_shape
+from .validation import build, raise_at
+
+
+@dataclass(frozen=True)
+class SectionPlan:
+    """What ``[section]`` describes, before meshing.
+
+    Parameters
+    ----------
+    section : Section or None
+        The geometry to mesh (None for an imported mesh).
+    imported : SectionMesh or None
+        A mesh read from a file.
+    mesh_options : dict
+        ``size`` in m and the keyword arguments of :meth:`geometries.Section.mesh`.
+    groups, regions : frozenset of str
+        The edge groups and regions the mesh will have.
+    """
+
+    section: Section | None
+    imported: SectionMesh | None
+    mesh_options: dict = field(default_factory=dict)
+    groups: frozenset[str] = frozenset()
+    regions: frozenset[str] = frozenset()
+
+
+def read_section(table: Table) -> SectionPlan:
+    """The section of the ``[section]`` table (which is left for the caller to close)."""
+    axisymmetric = table.flag("axisymmetric", False)
+    mesh_options = _mesh_options(table)
+    file_table = table.table("file", None)
+    if file_table is not None:
+        imported = _imported(file_table, axisymmetric)
+        table.read.update({"shape", "cut", "refine", "name_edges"})
+        return SectionPlan(
+            None,
+            imported,
+            mesh_options,
+            frozenset(imported.edge_groups),
+            frozenset(imported.regions),
+        )
+    shape = _combined(table)
+    for cut in table.tables("cut"):
+        shape = build(
+            cut,
+            shape.symmetry_cut,
+            cut.point("point", (0.0, 0.0)),
+            direction(cut, "keep"),
+            cut.text("name", "symmetry"),
+            default="keep",
+        )
+        cut.done()
+    section = _named_edges(table, Section(shape, axisymmetric=axisymmetric))
+    if mesh_options["size"] > shape.size:  # refused here, before the geometry is built
+        table.fail(
+            "mesh_size",
+            f"{mesh_options['size']:g} m is larger than the section "
+            f"({shape.size:.6g} m); choose a size below its smallest feature",
+        )
+    try:
+        groups = frozenset(section.boundary_groups())  # builds the geometry, does not mesh it
+    except GeometryError as error:
+        raise_at(table, error, {}, "shape")
+    refine = _refinement(table, groups)
+    if refine is not None:
+        mesh_options["refine"] = refine
+    return SectionPlan(section, None, mesh_options, groups, frozenset(_regions(shape)))
+
+
+def _mesh_options(table: Table) -> dict:
+    """Size, geometry order and element limit; gmsh checks them again when it meshes."""
+    options = {"size": table.get("mesh_size", "length")}
+    if options["size"] <= 0:
+        table.fail("mesh_size", "must be a length > 0")
+    order = table.get("order", "number", 1)
+    if order not in (1, 2):
+        table.fail("order", f"must be 1 or 2, got {order:g}")
+    options["order"] = int(order)
+    max_elements = table.get("max_elements", "number", None)
+    if max_elements is not None:
+        options["max_elements"] = int(max_elements)
+    return options
+
+
+def _imported(file_table: Table, axisymmetric: bool) -> SectionMesh:
+    mesh_file = file_table.context.folder / file_table.text("path")
+    units = file_table.text("units", "m", MESH_FILE_UNITS)
+    file_table.done()
+    return build(
+        file_table,
+        read_section_mesh,
+        mesh_file,
+        units=units,
+        axisymmetric=axisymmetric,
+        default="path",
+    )
+
+
+def _combined(table: Table):
+    """The shapes in order, each added to, subtracted from or intersected with the ones
+    before; a shape of another region makes a composite of regions."""
+    specs = table.tables("shape")
+    if not specs:
+        table.fail(
+            "shape",
+            "is missing: give at least one [[section.shape]] (or a "
+            "[section.file] to import a mesh)",
+        )
+    shape = None
+    for spec in specs:
+        piece = read_shape(spec)
+        later = shape is not None
+        combine = spec.text(
+            "combine", "add" if later else "first", COMBINE_LATER if later else COMBINE_FIRST
+        )
+        spec.done()
+        shape = piece if shape is None else build(spec, _combine, shape, piece, combine)
+    return shape
+
+
+def _combine(shape, piece, combine: str):
+    if combine == "subtract":
+        return Difference(shape, (piece,))
+    if combine == "intersect":
+        return Intersection((shape, piece))
+    if piece.region == shape.region and not isinstance(shape, Composite):
+        return Union((shape, piece))
+    parts = shape.parts if isinstance(shape, Composite) else (shape,)
+    return Composite((*parts, piece))
+
+
+def _named_edges(table: Table, section: Section) -> Section:
+    """``[[section.name_edges]]``: the edges inside a box renamed to a group."""
+    for rule in table.tables("name_edges"):
+        group = rule.text("group")
+        box = rule.raw("box", None)
+        if box is None:
+            rule.fail("box", "is missing: give [x_min, y_min, x_max, y_max]")
+        if not (isinstance(box, list) and len(box) == 4):
+            rule.fail("box", f"expected [x_min, y_min, x_max, y_max], got {box!r}")
+        corners = tuple(rule.quantity("box", value, "length") for value in box)
+        section = build(rule, section.name_edges, group, box=corners, default="box")
+        rule.done()
+    return section
+
+
+def _refinement(table: Table, groups: frozenset[str]) -> dict | None:
+    """``[section.refine.<group>]``: a smaller size along an edge group, growing away."""
+    refine_table = table.table("refine", None)
+    if refine_table is None:
+        return None
+    refine = {}
+    for group in refine_table.data:
+        spec = refine_table.table(group)
+        if group not in groups:
+            refine_table.fail(
+                group,
+                f"is not an edge group of the section {sorted(groups)}" + suggest(group, groups),
+            )
+        refine[group] = (spec.get("size", "length"), spec.get("growth", "number", 1.2))
+        spec.done()
+    refine_table.done()
+    return refine
+
+
+def _regions(shape) -> set[str]:
+    """The regions a shape's parts make (a composite has one per part)."""
+    node = shape.expanded()
+    if isinstance(node, Composite):
+        return {region for part in node.parts for region in _regions(part)}
+    inner = getattr(node, "shape", None) or getattr(node, "base", None)
+    if inner is not None and not isinstance(node, Union | Intersection):
+        return _regions(inner)
+    return {shape.region}
