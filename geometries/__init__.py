@@ -10,6 +10,7 @@ from importlib import import_module
 
 from . import profiles
 from .errors import GeometryError
+from .mesh_options import check_mesh_options
 from .outline import Outline
 from .primitives import EdgeArc, EdgeEllipse, EdgeSegment, Placement
 from .section import AXIS_GROUP, EdgeRule, Section
@@ -69,6 +70,7 @@ __all__ = [
     "Shape",
     "SymmetryCut",
     "Union",
+    "check_mesh_options",
     "mesh_section",
     "profiles",
     "read_section_mesh",

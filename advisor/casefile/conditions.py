@@ -8,7 +8,7 @@ from __future__ import annotations
 import math
 
 from fem import FixedTemperature, ModelError, Periodic, Sinusoid
-from fem.boundary import conditions as checked_combination
+from fem.conditions import conditions as checked_combination
 from geometries import AXIS_GROUP
 
 from .reader import MISSING, Table, suggest

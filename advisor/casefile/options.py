@@ -2,15 +2,13 @@
 :func:`advisor.assess`, and which optional files to write.
 
 The run options are checked by the solver's own rules before anything is meshed, through
-:func:`_check_run_options`.
+:func:`fem.check_run_options`.
 """
 
 from __future__ import annotations
 
-import math
-
 import fem
-from fem import ModelError, StopWhen
+from fem import StopWhen
 
 from ..analysis.assessment import QUANTITIES
 from .conditions import temperature
@@ -35,12 +33,12 @@ def read_run(root: Table, parts: dict) -> tuple[float, dict, int]:
         options["stop"] = StopWhen(stop.text("quantity"), temperature(stop, "target"))
         stop.done()
     try:
-        _check_run_options(end_time, tuple(parts["probes"]), options)
+        fem.check_run_options(end_time, probes=tuple(parts["probes"]), **options)
     except LIBRARY_ERRORS as error:
         raise_at(run, error, RUN_KEYS, None)
     if options["method"] == "exponential":
         try:
-            _check_exponential_parts(parts["materials"], parts["boundaries"], parts["sources"])
+            fem.check_exponential_parts(parts["materials"], parts["boundaries"], parts["sources"])
         except LIBRARY_ERRORS as error:
             run.fail("method", str(error))
     element_order = run.get("element_order", "number", 1)
@@ -48,44 +46,6 @@ def read_run(root: Table, parts: dict) -> tuple[float, dict, int]:
         run.fail("element_order", f"must be 1 or 2, got {element_order}")
     run.done()
     return end_time, options, int(element_order)
-
-
-def _check_run_options(end_time: float, probes: tuple[str, ...], options: dict) -> None:
-    """The solver's check of a run request, without a model: raises the library's errors."""
-    if hasattr(fem, "check_run_options"):
-        fem.check_run_options(end_time, probes=probes, **options)
-        return
-    # Fallback, to be removed when fem.check_run_options exists: the checks of a run request
-    # that need no mesh, as the solver makes them.
-    if not (isinstance(end_time, float) and math.isfinite(end_time) and end_time > 0):
-        raise ModelError(
-            f"end_time must be a finite time > 0 s, got {end_time!r}", argument="end_time"
-        )
-    methods = ("crank-nicolson", "bdf2", "backward-euler", "exponential")
-    if options["method"] not in methods:
-        raise ModelError(
-            f"method must be one of {methods}, got {options['method']!r}", argument="method"
-        )
-    for key in RUN_QUANTITIES:
-        if key in options and not options[key] > 0:
-            raise ModelError(f"{key} must be > 0, got {options[key]:g}", argument=key)
-    stop = options.get("stop")
-    names = ("mean", "minimum", "maximum", *probes)
-    if stop is not None and stop.quantity not in names:
-        raise ModelError(
-            f"stop quantity must be one of {list(names)}, got {stop.quantity!r}", argument="stop"
-        )
-
-
-def _check_exponential_parts(materials, boundaries, sources) -> None:
-    """Whether the model's parts allow exponential steps (linear, schedules that only jump)."""
-    if hasattr(fem, "check_exponential_parts"):
-        fem.check_exponential_parts(materials, boundaries, sources)
-        return
-    # Fallback, to be removed when fem exports check_exponential_parts.
-    from fem.exponential_run import check_exponential_parts
-
-    check_exponential_parts(materials, boundaries, sources)
 
 
 def read_advisor(root: Table) -> dict:

@@ -209,5 +209,5 @@ RUN_QUANTITIES = {
     "max_step": "time",
 }
 # The library's run arguments → [run] keys, where they differ.
-RUN_KEYS = {"stop": "stop.quantity"}
+RUN_KEYS = {"stop": "stop.quantity", "stop.quantity": "stop.quantity"}
 OUTPUTS = ("animation", "report", "vtk")

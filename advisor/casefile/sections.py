@@ -17,6 +17,7 @@ from geometries import (
     Section,
     SectionMesh,
     Union,
+    check_mesh_options,
     read_section_mesh,
 )
 
@@ -76,12 +77,10 @@ def read_section(table: Table) -> SectionPlan:
         )
         cut.done()
     section = _named_edges(table, Section(shape, axisymmetric=axisymmetric))
-    if mesh_options["size"] > shape.size:  # refused here, before the geometry is built
-        table.fail(
-            "mesh_size",
-            f"{mesh_options['size']:g} m is larger than the section "
-            f"({shape.size:.6g} m); choose a size below its smallest feature",
-        )
+    try:  # the mesher's own rules, before the geometry is built
+        check_mesh_options(shape, **mesh_options)
+    except GeometryError as error:
+        table.fail(_MESH_KEYS.get(str(error).split(" ")[0], "mesh_size"), str(error))
     try:
         groups = frozenset(section.boundary_groups())  # builds the geometry, does not mesh it
     except GeometryError as error:
@@ -92,15 +91,15 @@ def read_section(table: Table) -> SectionPlan:
     return SectionPlan(section, None, mesh_options, groups, frozenset(_regions(shape)))
 
 
+# The first word of the mesher's messages → the key it concerns.
+_MESH_KEYS = {"mesh": "mesh_size", "element": "order", "max_elements": "max_elements"}
+
+
 def _mesh_options(table: Table) -> dict:
-    """Size, geometry order and element limit; gmsh checks them again when it meshes."""
+    """Size, geometry order and element limit, checked by the mesher's own rules."""
     options = {"size": table.get("mesh_size", "length")}
-    if options["size"] <= 0:
-        table.fail("mesh_size", "must be a length > 0")
     order = table.get("order", "number", 1)
-    if order not in (1, 2):
-        table.fail("order", f"must be 1 or 2, got {order:g}")
-    options["order"] = int(order)
+    options["order"] = int(order) if order == int(order) else order
     max_elements = table.get("max_elements", "number", None)
     if max_elements is not None:
         options["max_elements"] = int(max_elements)
