@@ -28,10 +28,10 @@ COMMANDS = {
     "materials": materials,
     "show": show,
 }
-# Errors in what the user gave (exit 2) and failures of the run (exit 1), by module and name:
-# a class whose module was never imported cannot have been raised, so none is imported here.
-USAGE_ERRORS = (("fem.errors", "ModelError"), ("geometries.errors", "GeometryError"))
-RUN_FAILURES = (("fem.errors", "SolverError"),)
+# Errors in what the user gave (exit 2) and failures of the run (exit 1), by package and name:
+# a class whose package was never imported cannot have been raised, so none is imported here.
+USAGE_ERRORS = (("fem", "ModelError"), ("geometries", "GeometryError"))
+RUN_FAILURES = (("fem", "SolverError"),)
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -82,10 +82,9 @@ def main(argv: list[str] | None = None) -> int:
 
 
 def _loaded(names: tuple[tuple[str, str], ...]) -> tuple[type[BaseException], ...]:
-    """The exception classes named by (module, class) whose modules have been imported."""
-    return tuple(
-        getattr(sys.modules[module], name) for module, name in names if module in sys.modules
-    )
+    """The exception classes named by (package, class) whose packages have been imported."""
+    found = (getattr(sys.modules.get(module), name, None) for module, name in names)
+    return tuple(kind for kind in found if kind is not None)
 
 
 def _version() -> str:
