@@ -1,31 +1,92 @@
 """The validity advisor: lumped estimates against the finite-element field, and the writers.
 
-Nothing in ``geometries`` or ``fem`` imports this package.
+Nothing in ``geometries`` or ``fem`` imports this package. The public names below are loaded
+on first use, so ``import advisor`` (and the command line's help) does not load the solver,
+the mesher or the plotting.
 """
 
-from .analysis.assessment import Assessment, LumpedError, Verdict, assess
-from .analysis.biot import BiotNumber, biot_numbers
-from .analysis.lumped import FittedExponential, LumpedModel, TwoNodeModel
-from .analysis.modes import SlowestMode, slowest_mode
-from .analysis.quick import QuickCheck, quick_check
+from __future__ import annotations
+
+from importlib import import_module
+from typing import TYPE_CHECKING
+
 from .errors import AdvisorError, ResultsFolderExistsError
-from .results import write_results
+
+# Public name → the module that defines it.
+_LAZY = {
+    **dict.fromkeys(
+        (
+            "Assessment",
+            "BiotNumber",
+            "FittedExponential",
+            "LumpedError",
+            "LumpedModel",
+            "QuickCheck",
+            "SlowestMode",
+            "TwoNodeModel",
+            "Verdict",
+            "assess",
+            "biot_numbers",
+            "check_request",
+            "quick_check",
+            "slowest_mode",
+        ),
+        ".analysis",
+    ),
+    **dict.fromkeys(("Results", "run_case", "run_model", "write_results"), ".pipeline"),
+}
 
 __all__ = [
     "AdvisorError",
     "Assessment",
     "BiotNumber",
-    "LumpedError",
     "FittedExponential",
+    "LumpedError",
     "LumpedModel",
     "QuickCheck",
+    "Results",
+    "ResultsFolderExistsError",
     "SlowestMode",
     "TwoNodeModel",
-    "ResultsFolderExistsError",
     "Verdict",
     "assess",
     "biot_numbers",
+    "check_request",
     "quick_check",
+    "run_case",
+    "run_model",
     "slowest_mode",
     "write_results",
 ]
+
+if TYPE_CHECKING:
+    from .analysis import (
+        Assessment,
+        BiotNumber,
+        FittedExponential,
+        LumpedError,
+        LumpedModel,
+        QuickCheck,
+        SlowestMode,
+        TwoNodeModel,
+        Verdict,
+        assess,
+        biot_numbers,
+        check_request,
+        quick_check,
+        slowest_mode,
+    )
+    from .pipeline import Results, run_case, run_model, write_results
+
+
+def __getattr__(name: str):
+    module = _LAZY.get(name)
+    if module is None:
+        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+    value = getattr(import_module(module, __name__), name)
+    globals()[name] = value  # later look-ups skip this function
+    return value
+
+
+def __dir__() -> list[str]:
+    return sorted({*globals(), *_LAZY})

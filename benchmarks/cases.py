@@ -18,6 +18,7 @@ from pathlib import Path
 from . import models
 from .exact import SquareBarExact, largest_error
 from .machine import FactorSpy, factor_size, peak_rss, read_bandwidth, time_solves
+from .startup import task_startup
 
 PLUNGE_REMAINING = 0.01  # the run ends when the centre is 99 % of the way to the fluid
 TEMPERATURE_DROP = models.INITIAL - models.AMBIENT
@@ -397,4 +398,5 @@ TASKS = {
     "ivp": task_ivp,
     "calibrate": task_calibrate,
     "profile": task_profile,
+    "startup": task_startup,
 }

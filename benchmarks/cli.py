@@ -26,7 +26,17 @@ from .machine import describe_machine, source_state
 
 ROOT = Path(__file__).resolve().parent.parent
 DEFAULT_OUTPUT = Path(__file__).resolve().parent / "results.json"
-GROUPS = ("bandwidth", "demo", "meshing", "square", "plunge", "radiation", "angle", "profile")
+GROUPS = (
+    "startup",
+    "bandwidth",
+    "demo",
+    "meshing",
+    "square",
+    "plunge",
+    "radiation",
+    "angle",
+    "profile",
+)
 SHIPPED, WHAT_IF = "soakwise", "soakwise+sym"
 SCRIPT, IVP = "(a) spsolve script", "(b) solve_ivp BDF"
 
@@ -395,6 +405,8 @@ class Suite:
     # -- groups ------------------------------------------------------------------------------
     def execute(self) -> None:
         a = self.args
+        if "startup" in self.groups:  # first, while the machine is quiet
+            self.r.run("startup", "startup", {"runs": 3 if a.quick else 5}, case="startup")
         if "bandwidth" in self.groups:
             self.r.run(
                 "bandwidth-1",

@@ -321,7 +321,10 @@ def evaluate_targets(suite, rows, outcomes, bandwidth) -> list[dict]:
                     f"solve {r['total_seconds']:.3g} s ({r['variant']})",
                 )
             )
-    return targets
+    # 8. start-up of the small commands, and what importing the packages loads
+    from .startup import startup_targets
+
+    return targets + startup_targets(outcomes, _target)
 
 
 def _verdict(value, passes, row) -> bool | None:
@@ -522,7 +525,7 @@ def print_report(report: dict) -> None:
     others = [
         (k, t)
         for k, t in report["tasks"].items()
-        if t["meta"].get("task") in ("mesh", "demo", "bandwidth")
+        if t["meta"].get("task") in ("startup", "mesh", "demo", "bandwidth")
     ]
     if others:
         print()
@@ -540,6 +543,10 @@ def print_report(report: dict) -> None:
                     f"{t['process_seconds']:.3g} s, peak RSS "
                     f"{(t['ru_maxrss_bytes'] or 0) / 1e6:.0f} MB"
                 )
+            elif t["meta"].get("task") == "startup":
+                from .startup import describe
+
+                extra = describe(d)
             elif t["meta"].get("task") == "bandwidth" and "read_bytes_per_s" in d:
                 extra = (
                     f"read {d['read_bytes_per_s'] / 1e9:.2f} GB/s, copy "

@@ -9,8 +9,8 @@ from __future__ import annotations
 import sys
 from pathlib import Path
 
-from advisor import assess, write_results
-from fem import Convection, Insulated, Material, ThermalModel, solids, solve
+from advisor.pipeline import run_model, write_results
+from fem import Convection, Insulated, Material, ThermalModel, solids
 from geometries import Composite, Rectangle
 
 
@@ -37,10 +37,15 @@ def run(out=None, mesh_size=0.0005, end_time=900.0):
         initial_temperature=25.0,
         probes={"coating_top": (0.010, 0.0086), "steel_back": (0.010, 0.0)},
     )
-    assessment = assess(solve(model, end_time), target=400.0, quantity="peak_difference")
+    results = run_model(
+        model,
+        end_time,
+        title="Coated steel plate in hot gas",
+        advisor_options={"target": 400.0, "quantity": "peak_difference"},
+    )
     if out is not None:
-        write_results(assessment, out, force=True)
-    return assessment
+        write_results(results, out, force=True)
+    return results.assessment
 
 
 if __name__ == "__main__":

@@ -11,8 +11,8 @@ from __future__ import annotations
 import sys
 from pathlib import Path
 
-from advisor import assess, write_results
-from fem import Convection, Material, ThermalModel, solve
+from advisor.pipeline import run_model, write_results
+from fem import Convection, Material, ThermalModel
 from geometries import Rectangle
 
 
@@ -35,11 +35,16 @@ def run(out: Path | None = None, mesh_size: float = 0.002, time_step: float = 10
         initial_temperature=560.0,
         probes={"centre": (0.050, 0.006)},
     )
-    solution = solve(model, end_time=3600.0, time_step=time_step, output_interval=180.0)
-    assessment = assess(solution, target=60.0, tolerance=0.02, quantity="slowest")
+    results = run_model(
+        model,
+        3600.0,
+        title="Aluminium flat bar cooling in a fan draught",
+        run_options={"time_step": time_step, "output_interval": 180.0},
+        advisor_options={"target": 60.0, "tolerance": 0.02, "quantity": "slowest"},
+    )
     if out is not None:
-        write_results(assessment, out, force=True)
-    return assessment
+        write_results(results, out, force=True)
+    return results.assessment
 
 
 if __name__ == "__main__":

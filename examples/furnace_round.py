@@ -9,7 +9,7 @@ from __future__ import annotations
 import sys
 from pathlib import Path
 
-from advisor import assess, write_results
+from advisor.pipeline import run_model, write_results
 from fem import (
     Convection,
     Insulated,
@@ -18,7 +18,6 @@ from fem import (
     Radiation,
     StopWhen,
     ThermalModel,
-    solve,
 )
 from geometries import Rectangle, Section
 
@@ -42,11 +41,16 @@ def run(out=None, mesh_size=0.002, end_time=4 * 3600.0):
         initial_temperature=20.0,
         probes={"core": (0.0, 0.0)},
     )
-    solution = solve(model, end_time, stop=StopWhen("core", 880.0))
-    assessment = assess(solution, target=880.0, quantity="time_to_target")
+    results = run_model(
+        model,
+        end_time,
+        title="Steel round soaked in a furnace",
+        run_options={"stop": StopWhen("core", 880.0)},
+        advisor_options={"target": 880.0, "quantity": "time_to_target"},
+    )
     if out is not None:
-        write_results(assessment, out, force=True)
-    return assessment
+        write_results(results, out, force=True)
+    return results.assessment
 
 
 if __name__ == "__main__":

@@ -26,6 +26,7 @@ from advisor.casefile.case import CaseError, load_case
 from advisor.casefile.starters import SCENARIOS, starter_text
 from advisor.casefile.units import UnitError, quantity
 from advisor.cli import EXIT_OK, EXIT_USAGE, main
+from advisor.pipeline import run_case
 from geometries import Rectangle
 
 CASES = Path(__file__).parent / "cases"
@@ -337,9 +338,7 @@ def test_quench_bar_case_equals_the_same_model_built_in_python(tmp_path):
     assert case.end_time == 300.0
     assert case.run_options == {"method": "crank-nicolson", "time_step": 1.0}
     assert case.advisor_options == {"target": 200.0, "tolerance": 0.05, "quantity": "slowest"}
-    from_file = assess(
-        fem.solve(case.model(), case.end_time, **case.run_options), **case.advisor_options
-    )
+    from_file = run_case(case).assessment
 
     # The same part written with the Python API, read off the starter by hand.
     quarter = Rectangle(

@@ -23,10 +23,10 @@ from vtkmodules.util.numpy_support import vtk_to_numpy
 from vtkmodules.vtkCommonDataModel import VTK_LINE, VTK_TRIANGLE
 from vtkmodules.vtkIOXML import vtkXMLUnstructuredGridReader
 
-import advisor.writers.section_fields
+import fem.heat_flux
 from advisor.writers import vtk_series
-from advisor.writers.section_fields import HeatFluxRecovery, vertex_heat_flux
 from fem import Convection, Insulated, Material, PropertyTable, ThermalModel, solve
+from fem.heat_flux import HeatFluxRecovery, vertex_heat_flux
 from geometries import Composite, Rectangle
 
 # An invented conductivity falling with temperature (a demo table, not material data).
@@ -308,6 +308,6 @@ def test_a_uniform_field_has_no_heat_flux():
     np.testing.assert_array_equal(HeatFluxRecovery(model)(uniform), 0.0)
 
 
-def test_section_fields_docstring_example_runs():
-    result = doctest.testmod(advisor.writers.section_fields)
+def test_heat_flux_docstring_example_runs():
+    result = doctest.testmod(fem.heat_flux)
     assert result.attempted > 0 and result.failed == 0

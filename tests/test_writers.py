@@ -26,9 +26,11 @@ from vtkmodules.util.numpy_support import vtk_to_numpy
 from vtkmodules.vtkCommonDataModel import VTK_LINE, VTK_TRIANGLE
 from vtkmodules.vtkIOXML import vtkXMLUnstructuredGridReader
 
-import advisor.results
-import advisor.writers.progress
+import advisor.cli.progress
+import advisor.pipeline
+import advisor.results_folder
 from advisor import AdvisorError, assess, write_results
+from advisor.cli.progress import RunProgress
 from advisor.writers import animation as animation_writer
 from advisor.writers.plots import (
     PLOTS,
@@ -36,10 +38,9 @@ from advisor.writers.plots import (
     snapshot_figure,
     snapshot_indices,
 )
-from advisor.writers.progress import RunProgress
 from advisor.writers.report_content import HEADINGS
-from advisor.writers.section_fields import vertex_heat_flux
 from fem import Convection, Insulated, Material, Radiation, ThermalModel, solve
+from fem.heat_flux import vertex_heat_flux
 from fem.schedules import PiecewiseLinear
 from geometries import Composite, Rectangle, Section
 
@@ -533,7 +534,7 @@ def test_switches_leave_their_files_out(run, tmp_path):
 
 
 def test_a_required_extra_that_is_missing_stops_before_writing(run, tmp_path, monkeypatch):
-    monkeypatch.setattr(advisor.results, "mp4_available", lambda: False)
+    monkeypatch.setattr(advisor.results_folder, "mp4_available", lambda: False)
     with pytest.raises(AdvisorError, match="mp4"):
         write_results(run, tmp_path / "out", mp4=True)
     assert not (tmp_path / "out").exists() and not list(tmp_path.iterdir())
@@ -542,7 +543,7 @@ def test_a_required_extra_that_is_missing_stops_before_writing(run, tmp_path, mo
 
 
 def test_results_docstring_example_runs():
-    result = doctest.testmod(advisor.results, optionflags=doctest.ELLIPSIS)
+    result = doctest.testmod(advisor.pipeline, optionflags=doctest.ELLIPSIS)
     assert result.attempted > 0 and result.failed == 0
 
 
@@ -611,5 +612,5 @@ def test_progress_shows_simulated_time_steps_and_time_left():
 
 
 def test_progress_docstring_example_runs():
-    result = doctest.testmod(advisor.writers.progress)
+    result = doctest.testmod(advisor.cli.progress)
     assert result.attempted > 0 and result.failed == 0

@@ -1,0 +1,96 @@
+"""The ``soakwise`` command line, the only code that talks to the terminal.
+
+Commands, one module each: ``run`` a case into a results folder, ``check`` a case without the
+field solve, ``demo``, ``new`` (write a starting case for a scenario), ``materials`` (the
+library) and ``show`` (a results folder's summary). A command imports the solver, the mesher
+and the plotting only when it runs, so the help and the small commands start quickly.
+
+Exit status: 0 done, 1 the run failed, 2 bad command line or input (nothing written).
+"""
+
+from __future__ import annotations
+
+import argparse
+import logging
+import sys
+
+from ..errors import AdvisorError
+from . import check, demo, materials, new, run, show
+from .common import EPILOG, EXIT_FAILED, EXIT_OK, EXIT_USAGE, configure_logging
+
+__all__ = ["EXIT_FAILED", "EXIT_OK", "EXIT_USAGE", "build_parser", "main"]
+
+COMMANDS = {
+    "run": run,
+    "check": check,
+    "demo": demo,
+    "new": new,
+    "materials": materials,
+    "show": show,
+}
+# Errors in what the user gave (exit 2) and failures of the run (exit 1), by package and name:
+# a class whose package was never imported cannot have been raised, so none is imported here.
+USAGE_ERRORS = (("fem", "ModelError"), ("geometries", "GeometryError"))
+RUN_FAILURES = (("fem", "SolverError"),)
+
+
+def build_parser() -> argparse.ArgumentParser:
+    """The command line's parser, one sub-command per module of :data:`COMMANDS`."""
+    parser = argparse.ArgumentParser(
+        prog="soakwise",
+        description="Warm-up and cool-down of solid sections: a 2-D transient field checked "
+        "against the lumped estimate.",
+        epilog=EPILOG,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    parser.add_argument("--version", action="version", version=f"soakwise {_version()}")
+    loudness = parser.add_mutually_exclusive_group()
+    loudness.add_argument("-q", "--quiet", action="store_true", help="print errors only")
+    loudness.add_argument("-v", "--verbose", action="store_true", help="print solver details")
+    commands = parser.add_subparsers(dest="command", metavar="COMMAND")
+    for name, module in COMMANDS.items():
+        module.add_arguments(
+            commands.add_parser(
+                name,
+                help=module.SUMMARY,
+                description=module.DESCRIPTION,
+                epilog=EPILOG,
+                formatter_class=argparse.RawDescriptionHelpFormatter,
+            )
+        )
+    return parser
+
+
+def main(argv: list[str] | None = None) -> int:
+    """Run the command line; return the exit status."""
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    configure_logging(
+        logging.ERROR if args.quiet else logging.DEBUG if args.verbose else logging.INFO
+    )
+    if args.command is None:
+        parser.print_help()
+        return EXIT_USAGE
+    try:
+        return COMMANDS[args.command].execute(args)
+    except (AdvisorError, *_loaded(USAGE_ERRORS)) as error:
+        print(f"soakwise: error: {error}", file=sys.stderr)
+        return EXIT_USAGE
+    except (*_loaded(RUN_FAILURES), OSError, RuntimeError, ArithmeticError) as error:
+        print(f"soakwise: the run failed: {error}", file=sys.stderr)
+        return EXIT_FAILED
+
+
+def _loaded(names: tuple[tuple[str, str], ...]) -> tuple[type[BaseException], ...]:
+    """The exception classes named by (package, class) whose packages have been imported."""
+    found = (getattr(sys.modules.get(module), name, None) for module, name in names)
+    return tuple(kind for kind in found if kind is not None)
+
+
+def _version() -> str:
+    from importlib.metadata import PackageNotFoundError, version
+
+    try:
+        return version("soakwise")
+    except PackageNotFoundError:
+        return "unknown"

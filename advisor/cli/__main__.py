@@ -1,0 +1,7 @@
+"""``python -m advisor.cli``: the ``soakwise`` command."""
+
+import sys
+
+from . import main
+
+sys.exit(main())

@@ -1,0 +1,45 @@
+"""``soakwise check CASE``: judge the lumped estimate of a case without solving the field."""
+
+from __future__ import annotations
+
+import argparse
+from pathlib import Path
+
+from ..caution import CAUTION
+from .common import EXIT_OK, log
+
+SUMMARY = "judge the lumped estimate of a case without solving the field"
+DESCRIPTION = (
+    "Read CASE and report Biot numbers, the lumped and corrected times to "
+    "target, the slowest mode and the expected direction of the lumped "
+    "error, on the case's mesh, without time stepping."
+)
+
+
+def add_arguments(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("case", type=Path, metavar="CASE", help="case file (.toml)")
+
+
+def execute(args: argparse.Namespace) -> int:
+    from ..analysis.quick import quick_check
+    from ..casefile.case import load_case
+
+    case = load_case(args.case)
+    check = quick_check(case.model(), target=case.advisor_options.get("target"))
+    for bi in check.biot:
+        log.info(f"Biot number ({bi.name}, L = {1000 * bi.length:.3g} mm): {bi.value:.3g}")
+    mode = check.mode
+    log.info(
+        f"Slowest-mode ratio: {mode.ratio:.3g} (a lumped model would need h = "
+        f"{mode.equivalent_coefficient:.4g} W/(m^2*K))"
+    )
+    log.info(
+        f"Lumped time constant: classical {check.lumped.time_constant:.4g} s, corrected "
+        f"{check.corrected.time_constant:.4g} s"
+    )
+    for name, value in check.time_to_target.items():
+        shown = "not reached" if value is None else f"{value:.4g} s"
+        log.info(f"Time to {check.target:g} degC, {name}: {shown}")
+    log.info(f"Expected direction: {check.expected_direction}.")
+    log.info(f"Caution: {CAUTION}")
+    return EXIT_OK

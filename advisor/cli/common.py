@@ -1,0 +1,78 @@
+"""What the commands share: exit codes, the help's closing text, logging to the terminal, the
+progress display and the report of a finished run.
+
+Only the standard library is imported here, so that every command starts quickly; a command
+imports what it needs when it runs.
+"""
+
+from __future__ import annotations
+
+import logging
+import sys
+import warnings
+from pathlib import Path
+
+from ..caution import CAUTION
+
+EXIT_OK, EXIT_FAILED, EXIT_USAGE = 0, 1, 2
+EPILOG = (
+    f"Caution: {CAUTION}\n\nExit status: 0 done, 1 the run failed, 2 bad command line "
+    "or input (nothing is written)."
+)
+
+log = logging.getLogger("soakwise")
+
+
+def configure_logging(level: int) -> None:
+    """Our messages to stderr at ``level``; other libraries' chatter only when verbose."""
+    warnings.showwarning = _show_warning
+    handler = logging.StreamHandler(sys.stderr)
+    handler.setFormatter(logging.Formatter("%(message)s"))
+    log.handlers[:] = [handler]
+    log.setLevel(level)
+    log.propagate = False
+    logging.getLogger().setLevel(logging.WARNING if level > logging.DEBUG else logging.INFO)
+
+
+def _show_warning(message, category, filename, lineno, file=None, line=None) -> None:
+    """Library warnings (a property table left, ...) as one plain line each."""
+    log.warning(f"warning: {message}")
+
+
+def progress_display():
+    """A progress line for the solve when messages are shown (None without tqdm)."""
+    try:
+        from .progress import RunProgress
+    except ImportError:
+        return None
+    return RunProgress() if log.isEnabledFor(logging.INFO) else None
+
+
+def report_run(assessment, folder: Path, files: list[Path]) -> None:
+    """Log the solver's figures, the Biot numbers, the verdict and where the files went."""
+    solution = assessment.solution
+    stats = solution.stats
+    log.debug(
+        f"{stats.unknowns} unknowns, {stats.steps} steps ({stats.rejected_steps} rejected), "
+        f"{stats.factorisations} factorisations, {stats.solves} solves, "
+        f"{stats.newton_iterations} Newton iterations, "
+        f"stepping {stats.stepping_seconds:.2f} s"
+    )
+    for bi in assessment.biot:
+        log.info(f"Biot number ({bi.name}, L = {1000 * bi.length:.3g} mm): {bi.value:.3g}")
+    log.info(
+        f"Peak internal temperature difference: {assessment.peak_internal_difference:.3g} K "
+        f"at {assessment.peak_internal_difference_time:.4g} s"
+    )
+    verdict = assessment.verdict
+    log.info(f"Classical lumped estimate {verdict.rating.upper()} for {verdict.subject}:")
+    for reason in verdict.reasons:
+        log.info(f"  - {reason}")
+    log.info(f"Direction: {verdict.direction}.")
+    log.info(f"Advice: {verdict.advice}")
+    for warning in solution.checks.warnings:
+        log.warning(f"check: {warning}")
+    log.info(
+        f"Wrote {len(files)} files to {folder}/: open report.html, or fields/ in a VTK viewer"
+    )
+    log.info(f"Caution: {CAUTION}")

@@ -1,0 +1,48 @@
+"""``soakwise run CASE``: solve a case file and write its results folder."""
+
+from __future__ import annotations
+
+import argparse
+from pathlib import Path
+
+from .common import EXIT_OK, log, progress_display, report_run
+
+SUMMARY = "solve a case file and write its results folder"
+DESCRIPTION = (
+    "Read CASE (a TOML case file), check it, mesh and solve it, judge the lumped "
+    "estimate and write the results folder."
+)
+
+
+def add_arguments(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("case", type=Path, metavar="CASE", help="case file (.toml)")
+    parser.add_argument(
+        "--out",
+        type=Path,
+        metavar="DIR",
+        help="results folder (default: the case file's name without .toml)",
+    )
+    parser.add_argument("--force", action="store_true", help="replace the results folder")
+
+
+def execute(args: argparse.Namespace) -> int:
+    from ..casefile.case import load_case
+    from ..pipeline import run_case, write_results
+    from ..results_folder import check_results_folder
+
+    case = load_case(args.case)  # every check that needs no mesh, before anything is written
+    out = results_folder(args.case, args.out)
+    check_results_folder(out, force=args.force)
+    log.info(f"Meshing and solving {case.title!r} ...")
+    results = run_case(case, progress=progress_display())
+    files = write_results(results, out, force=args.force)
+    report_run(results.assessment, out, files)
+    return EXIT_OK
+
+
+def results_folder(case_path: Path, out: Path | None) -> Path:
+    """``out``, or the case file's name without .toml (never the case file itself)."""
+    folder = out or case_path.with_suffix("")
+    if folder.resolve() == case_path.resolve():
+        folder = case_path.parent / f"{case_path.stem}-results"
+    return folder

@@ -1,0 +1,225 @@
+"""From a case to its results, and from results to a results folder.
+
+:func:`run_case` is pure: it meshes, checks the advisor's request, solves and assesses, and
+returns :class:`Results` in memory. It writes no file and prints nothing, so sweeps on worker
+processes, fit loops and notebooks can call it; its results pickle. :func:`run_model` is the
+same pipeline for a model built in Python. :func:`write_results` turns results into the
+results folder (see :mod:`advisor.results_folder` for the layout).
+"""
+
+from __future__ import annotations
+
+import time
+from collections.abc import Callable, Mapping
+from dataclasses import dataclass, field, replace
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+from fem import Solution, ThermalModel, solve
+
+from .analysis.assessment import Assessment, assess, check_request
+
+if TYPE_CHECKING:
+    from .casefile.case import Case
+
+Progress = Callable[[float, float, int], None]
+"""The solver's progress callback: ``progress(time, end_time, steps)``, times in s."""
+
+
+@dataclass(frozen=True)
+class Results:
+    """What one run produced, in memory.
+
+    Attributes
+    ----------
+    assessment : Assessment
+        The advisor's answers; it carries the :class:`fem.Solution` and its model.
+    title : str
+        The case's title (empty for a model built in Python without one).
+    outputs : mapping of str to bool
+        The case's choice of optional outputs (``report``, ``animation``, ``vtk``);
+        :func:`write_results` follows it unless told otherwise.
+    wall_seconds : float
+        Wall-clock time of the run (meshing, solve and assessment), s.
+    """
+
+    assessment: Assessment
+    title: str = ""
+    outputs: Mapping[str, bool] = field(default_factory=dict)
+    wall_seconds: float = 0.0
+
+    @property
+    def solution(self) -> Solution:
+        """The field solution (the assessment's)."""
+        return self.assessment.solution
+
+
+def run_case(case: Case, *, progress: Progress | None = None) -> Results:
+    """Mesh, solve and assess a case file's problem; write nothing.
+
+    Parameters
+    ----------
+    case : advisor.casefile.Case
+        A loaded case (:func:`advisor.casefile.load_case`).
+    progress : callable, optional
+        Passed to :func:`fem.solve`: called as ``progress(time, end_time, steps)``.
+
+    Returns
+    -------
+    Results
+
+    Raises
+    ------
+    AdvisorError
+        If the advisor's request (target, tolerance, quantity) cannot be met by this model;
+        raised after meshing, before the solve.
+
+    Examples
+    --------
+    >>> from advisor.casefile import load_case
+    >>> from advisor.casefile.starters import starter_text
+    >>> import tempfile
+    >>> path = Path(tempfile.mkdtemp()) / "quench-bar.toml"
+    >>> _ = path.write_text(starter_text("quench-bar"), encoding="utf-8")
+    >>> case = load_case(path, {"section.mesh_size": "5 mm", "run.end_time": "1 min"})
+    >>> results = run_case(case)
+    >>> results.title == case.title, float(results.solution.times[-1])
+    (True, 60.0)
+    """
+    started = time.perf_counter()
+    results = run_model(
+        case.model(),
+        case.end_time,
+        title=case.title,
+        run_options=case.run_options,
+        advisor_options=case.advisor_options,
+        outputs=case.outputs,
+        progress=progress,
+    )
+    return replace(results, wall_seconds=time.perf_counter() - started)
+
+
+def run_model(
+    model: ThermalModel,
+    end_time: float,
+    *,
+    title: str = "",
+    run_options: Mapping | None = None,
+    advisor_options: Mapping | None = None,
+    outputs: Mapping[str, bool] | None = None,
+    progress: Progress | None = None,
+) -> Results:
+    """Check the advisor's request, solve and assess a model built in Python; write nothing.
+
+    Parameters
+    ----------
+    model : fem.ThermalModel
+    end_time : float
+        End of the run, s.
+    title : str
+        A name for the run.
+    run_options : mapping, optional
+        Keyword arguments of :func:`fem.solve` (method, time_step, output_interval, ...).
+    advisor_options : mapping, optional
+        Keyword arguments of :func:`advisor.assess` (target, tolerance, quantity).
+    outputs : mapping of str to bool, optional
+        The optional outputs to write by default (``report``, ``animation``, ``vtk``).
+    progress : callable, optional
+        Passed to :func:`fem.solve`.
+
+    Returns
+    -------
+    Results
+        ``wall_seconds`` covers the solve and the assessment.
+    """
+    started = time.perf_counter()
+    advisor_options = dict(advisor_options or {})
+    check_request(model, **advisor_options)  # a bad target fails before the solve
+    solution = solve(model, end_time, progress=progress, **dict(run_options or {}))
+    assessment = assess(solution, **advisor_options)
+    return Results(assessment, title, dict(outputs or {}), time.perf_counter() - started)
+
+
+def write_results(
+    results: Results | Assessment,
+    folder: Path,
+    *,
+    force: bool = False,
+    report: bool | None = None,
+    animation: bool | None = None,
+    vtk: bool | None = None,
+    mp4: bool | None = None,
+    xdmf: bool | None = None,
+) -> list[Path]:
+    """Write the results folder; return the paths of its files (relative to ``folder``).
+
+    The folder is written whole under a temporary name beside it, then renamed, so an
+    interrupted run leaves no half-written results.
+
+    Parameters
+    ----------
+    results : Results or Assessment
+        What to write; an :class:`Assessment` alone is written with every output on.
+    folder : path
+        The results folder.
+    force : bool
+        Replace ``folder`` if it exists.
+    report : bool or None
+        Write report.html and report.md. None: as the case's ``[outputs]`` say, else True.
+    animation : bool or None
+        Write animation.gif (and animation.mp4, see ``mp4``). None: as the case says, else
+        True.
+    vtk : bool or None
+        Write the field files under fields/ (VTK series, legend, XDMF). None: as the case
+        says, else True.
+    mp4 : bool or None
+        Write animation.mp4: None when imageio-ffmpeg is installed, True always (an error if
+        it is not), False never.
+    xdmf : bool or None
+        Write fields/temperature.xdmf and .h5: None when h5py is installed, True always, False
+        never.
+
+    Raises
+    ------
+    ResultsFolderExistsError
+        If ``folder`` exists and ``force`` is false; nothing is written.
+    AdvisorError
+        If ``mp4`` or ``xdmf`` is True and its extra is missing; nothing is written.
+
+    Examples
+    --------
+    >>> import tempfile
+    >>> from geometries import Rectangle
+    >>> from fem import Convection, Material, ThermalModel, solve
+    >>> from advisor import assess
+    >>> air = Convection(heat_transfer_coefficient=20.0, ambient=25.0)
+    >>> model = ThermalModel(Rectangle(0.02, 0.01).mesh(size=0.004),
+    ...     Material(200.0, 2700.0, 900.0),
+    ...     boundaries={side: air for side in ("left", "right", "top", "bottom")},
+    ...     initial_temperature=180.0)
+    >>> assessment = assess(solve(model, end_time=1800.0, time_step=60.0))
+    >>> folder = Path(tempfile.mkdtemp()) / "plate"
+    >>> files = write_results(assessment, folder, animation=False, report=False, vtk=False)
+    >>> [f.as_posix() for f in files][:3]
+    ['summary.json', 'histories.csv', 'plots/histories.png']
+    """
+    from .results_folder import write_folder  # matplotlib and Pillow only when writing
+
+    if isinstance(results, Results):
+        assessment, chosen = results.assessment, results.outputs
+    else:
+        assessment, chosen = results, {}
+
+    def wanted(name: str, given: bool | None) -> bool:
+        return bool(chosen.get(name, True)) if given is None else given
+
+    return write_folder(
+        assessment,
+        Path(folder),
+        force=force,
+        report=wanted("report", report),
+        animation=wanted("animation", animation),
+        vtk=wanted("vtk", vtk),
+        mp4=mp4,
+        xdmf=xdmf,
+    )

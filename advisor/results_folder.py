@@ -1,0 +1,168 @@
+"""The results folder's layout: every file of a run, written whole or not at all.
+
+Layout::
+
+    summary.json                 inputs, Biot numbers, lumped errors, verdict, checks
+    report.html                  the report as one self-contained page (images embedded)
+    report.md                    the same report in Markdown, images by relative path
+    histories.csv                every per-step history with the lumped models, units in the header
+    plots/histories.png|svg      temperature histories with the lumped estimates, internal ΔT
+    plots/internal_difference.png|svg    internal ΔT over time, peak marked
+    plots/lumped_error.png|svg   lumped error against the tolerance band
+    plots/field_snapshots.png|svg        the field at a few output times
+    plots/energy.png|svg         stored energy against heat taken in
+    animation.gif                the field over time on one colour scale
+    animation.mp4                the same as an MP4 film (with imageio-ffmpeg, the ``mp4`` extra)
+    fields/legend.json           region and edge group names by id
+    fields/temperature.pvd       VTK collection with the physical times
+    fields/temperature_NNNN.vtu  one unstructured grid per output time, t = 0 first
+    fields/temperature.xdmf      XDMF time series (with h5py, the ``xdmf`` extra) ...
+    fields/temperature.h5        ... and its HDF5 data
+
+The folder is first written under a temporary name beside the target and renamed when
+complete, so an interrupted run leaves no half-written results and an existing folder is
+replaced only after the new one is whole. The public entry is
+:func:`advisor.pipeline.write_results`.
+"""
+
+from __future__ import annotations
+
+import importlib.util
+import shutil
+import tempfile
+from pathlib import Path
+
+from .analysis.assessment import Assessment
+from .errors import AdvisorError, ResultsFolderExistsError
+from .writers.animation import mp4_available, write_animation
+from .writers.histories_csv import write_histories_csv
+from .writers.plots import PLOTS, write_plots
+from .writers.report_content import Picture, build_report
+from .writers.report_html import write_html_report
+from .writers.report_markdown import write_markdown_report
+from .writers.summary_json import write_summary_json
+from .writers.vtk_series import write_vtk_series, write_xdmf_series
+
+PLOT_FOLDER = "plots"
+FIELD_FOLDER = "fields"
+
+
+def check_results_folder(folder: Path, *, force: bool) -> None:
+    """Raise :class:`ResultsFolderExistsError` if ``folder`` exists and ``force`` is false."""
+    if Path(folder).exists() and not force:
+        raise ResultsFolderExistsError(
+            f"results folder {str(folder)!r} already exists; choose another or replace it "
+            "with force=True (--force on the command line)"
+        )
+
+
+def xdmf_available() -> bool:
+    """True when h5py (the ``xdmf`` extra) is installed, so an XDMF series can be written."""
+    return importlib.util.find_spec("h5py") is not None
+
+
+def _optional(wanted: bool | None, available: bool, what: str, extra: str) -> bool:
+    if wanted is None:
+        return available
+    if wanted and not available:
+        raise AdvisorError(
+            f'{what} needs the {extra!r} extra (pip install "soakwise[{extra}]"); '
+            f"pass {what}=None to write it only when available, or False to skip it"
+        )
+    return bool(wanted)
+
+
+def write_folder(
+    assessment: Assessment,
+    folder: Path,
+    *,
+    force: bool,
+    report: bool,
+    animation: bool,
+    vtk: bool,
+    mp4: bool | None,
+    xdmf: bool | None,
+) -> list[Path]:
+    """Write the results folder; return the paths of its files (relative to ``folder``).
+
+    The options are those of :func:`advisor.pipeline.write_results`, all given.
+    """
+    folder = Path(folder)
+    check_results_folder(folder, force=force)
+    mp4 = animation and _optional(mp4, mp4_available(), "mp4", "mp4")
+    xdmf = vtk and _optional(xdmf, xdmf_available(), "xdmf", "xdmf")
+    folder.parent.mkdir(parents=True, exist_ok=True)
+    staging = Path(tempfile.mkdtemp(dir=folder.parent, prefix=f".{folder.name}.", suffix=".part"))
+    try:
+        files = _write_files(assessment, staging, report, animation, vtk, mp4, xdmf)
+        _put_in_place(staging, folder)
+    finally:
+        shutil.rmtree(staging, ignore_errors=True)
+    return files
+
+
+def _write_files(
+    assessment: Assessment,
+    staging: Path,
+    report: bool,
+    animation: bool,
+    vtk: bool,
+    mp4: bool,
+    xdmf: bool,
+) -> list[Path]:
+    """Write every file into ``staging``; return their paths relative to it, summary first."""
+    written: list[Path] = []
+    write_histories_csv(assessment, staging / "histories.csv")
+    written.append(staging / "histories.csv")
+    written += write_plots(assessment, staging / PLOT_FOLDER)
+    if animation:
+        written += write_animation(
+            assessment.solution,
+            staging / "animation.gif",
+            staging / "animation.mp4" if mp4 else None,
+        )
+    if vtk:
+        written += write_vtk_series(assessment.solution, staging / FIELD_FOLDER)
+        if xdmf:
+            written += write_xdmf_series(assessment.solution, staging / FIELD_FOLDER)
+
+    files = [Path("summary.json")]
+    if report:
+        files += [Path("report.html"), Path("report.md")]
+    files += [p.relative_to(staging) for p in written]
+    names = [f.as_posix() for f in files]
+    if report:
+        content = build_report(assessment, _pictures(animation), names)
+        write_html_report(content, staging / "report.html")
+        write_markdown_report(content, staging / "report.md")
+    write_summary_json(assessment, staging / "summary.json", names)
+    return files
+
+
+def _pictures(animation: bool) -> list[Picture]:
+    """The report's pictures: every plot, and the animation when it is written."""
+    pictures = [
+        Picture(f"{PLOT_FOLDER}/{stem}.png", title, caption)
+        for stem, (title, caption) in PLOTS.items()
+    ]
+    if animation:
+        pictures.append(
+            Picture(
+                "animation.gif",
+                "The field over the run",
+                "Every output time on one colour scale, hottest and coldest points marked.",
+            )
+        )
+    return pictures
+
+
+def _put_in_place(staging: Path, folder: Path) -> None:
+    """Rename the complete ``staging`` folder to ``folder``, retiring an existing one first."""
+    if folder.exists():
+        retired = folder.with_name(f".{folder.name}.old")
+        shutil.rmtree(retired, ignore_errors=True)
+        folder.rename(retired)
+        staging.rename(folder)
+        shutil.rmtree(retired, ignore_errors=True)
+    else:
+        staging.rename(folder)

@@ -1,0 +1,126 @@
+"""Start-up: how long the small commands take to answer, and what importing the packages loads.
+
+Each command runs as ``python -m advisor.cli ...`` from the repository root (so this checkout
+is measured, not an installed copy) once to warm the file cache, then ``runs`` times; the
+figure is the median wall time of those runs, interpreter start included. The import
+footprint is read from a fresh interpreter's ``sys.modules`` after ``import PACKAGE``.
+"""
+
+from __future__ import annotations
+
+import json
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parent.parent
+LIMIT_SECONDS = 0.5
+COMMANDS = {  # name → arguments after ``soakwise``; {out} is a scratch folder
+    "soakwise --help": ["--help"],
+    "soakwise new": ["new", "quench-bar", "--out", "{out}/case.toml", "--force"],
+    "soakwise materials": ["materials"],
+}
+PACKAGES = ("fem", "advisor", "advisor.cli")
+# Third-party packages that take a noticeable time to import (or drag in a GUI toolkit).
+HEAVY = ("gmsh", "pygmsh", "matplotlib", "PIL", "scipy", "skfem", "meshio", "pint", "tqdm")
+FORBIDDEN = {"fem": ("gmsh", "matplotlib"), "advisor": ("matplotlib", "PIL", "gmsh")}
+
+_FOOTPRINT = (
+    "import sys, time, json; started = time.perf_counter(); import {package}; "
+    "seconds = time.perf_counter() - started; "
+    "print(json.dumps([seconds, sorted({{m.split('.')[0] for m in sys.modules}})]))"
+)
+
+
+def command_seconds(arguments: list[str], runs: int) -> dict:
+    """Median, fastest and slowest wall time in s of ``runs`` runs of the command."""
+    with tempfile.TemporaryDirectory(prefix="soakwise-startup-") as scratch:
+        command = [sys.executable, "-m", "advisor.cli"]
+        command += [a.format(out=scratch) for a in arguments]
+        times = []
+        for run in range(runs + 1):  # the first run warms the file cache and is not counted
+            started = time.perf_counter()
+            done = subprocess.run(command, cwd=ROOT, capture_output=True, text=True, timeout=120)
+            seconds = time.perf_counter() - started
+            if done.returncode != 0:
+                raise RuntimeError(f"{' '.join(command)} failed: {done.stderr.strip()}")
+            if run:
+                times.append(seconds)
+    return {"median": statistics.median(times), "fastest": min(times), "slowest": max(times)}
+
+
+def import_footprint(package: str) -> dict:
+    """Import wall time in s and the heavy packages a fresh ``import package`` loads."""
+    done = subprocess.run(
+        [sys.executable, "-c", _FOOTPRINT.format(package=package)],
+        cwd=ROOT,
+        capture_output=True,
+        text=True,
+        timeout=120,
+        check=True,
+    )
+    seconds, loaded = json.loads(done.stdout.strip().splitlines()[-1])
+    return {"seconds": seconds, "heavy": [name for name in HEAVY if name in loaded]}
+
+
+def task_startup(params: dict, reporter) -> dict:
+    runs = params.get("runs", 5)
+    commands = {}
+    for name, arguments in COMMANDS.items():
+        commands[name] = command_seconds(arguments, runs)
+        reporter.update(commands=commands)
+    imports = {package: import_footprint(package) for package in PACKAGES}
+    return {"runs": runs, "commands": commands, "imports": imports}
+
+
+def startup_targets(outcomes, target) -> list[dict]:
+    """The start-up targets from the ``startup`` task; ``target`` builds one row."""
+    found = [o for o in outcomes if o.meta.get("case") == "startup"]
+    if not found:
+        return []
+    outcome = found[-1]
+    data = outcome.data
+    rows = []
+    for name in COMMANDS:
+        measured = (data.get("commands") or {}).get(name)
+        rows.append(
+            target(
+                f"{name} starts in < {LIMIT_SECONDS} s (median of {data.get('runs', '?')})",
+                f"< {LIMIT_SECONDS} s",
+                "-" if measured is None else f"{measured['median']:.3g} s",
+                None if measured is None else measured["median"] < LIMIT_SECONDS,
+                ""
+                if measured is None
+                else f"fastest {measured['fastest']:.3g} s, slowest {measured['slowest']:.3g} s",
+            )
+        )
+    for package, forbidden in FORBIDDEN.items():
+        footprint = (data.get("imports") or {}).get(package)
+        loaded = None if footprint is None else [m for m in forbidden if m in footprint["heavy"]]
+        rows.append(
+            target(
+                f"import {package} loads none of {', '.join(forbidden)}",
+                "none",
+                "-" if loaded is None else (", ".join(loaded) or "none"),
+                None if loaded is None else not loaded,
+                ""
+                if footprint is None
+                else f"{footprint['seconds']:.3g} s; heavy: {', '.join(footprint['heavy'])}",
+            )
+        )
+    return rows
+
+
+def describe(data: dict) -> str:
+    """One line for the table of other tasks."""
+    commands = data.get("commands") or {}
+    imports = data.get("imports") or {}
+    parts = [f"{name} {value['median']:.3g} s" for name, value in commands.items()]
+    parts += [
+        f"import {package} {value['seconds']:.3g} s [{' '.join(value['heavy']) or '-'}]"
+        for package, value in imports.items()
+    ]
+    return "; ".join(parts)
