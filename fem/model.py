@@ -12,11 +12,8 @@ from geometries import AXIS_GROUP, GeometryError, SectionMesh
 
 from .conditions import (
     Condition,
-    Convection,
     FixedTemperature,
-    HeatFlux,
     Insulated,
-    Radiation,
     conditions,
 )
 from .errors import ModelError
@@ -179,22 +176,6 @@ class ThermalModel:
             return dict.fromkeys(self.section.regions, self.material)
         return dict(self.material)
 
-    def conditions_of(self, kind) -> dict[str, object]:
-        """The conditions of one kind (e.g. ``Convection``), keyed by edge group."""
-        return {n: c for n, c in self.conditions() if isinstance(c, kind)}
-
-    @property
-    def convection(self) -> dict[str, Convection]:
-        return self.conditions_of(Convection)
-
-    @property
-    def radiation(self) -> dict[str, Radiation]:
-        return self.conditions_of(Radiation)
-
-    @property
-    def fluxes(self) -> dict[str, HeatFlux]:
-        return self.conditions_of(HeatFlux)
-
     @property
     def fixed(self) -> dict[str, FixedTemperature]:
         """The conditions that hold the surface temperature, keyed by edge group."""
@@ -212,11 +193,6 @@ class ThermalModel:
         return all(m.is_constant for m in self.materials.values()) and all(
             c.linear for _, c in self.conditions()
         )
-
-    @property
-    def starts_from_field(self) -> bool:
-        """True when the initial state is the field of an earlier run."""
-        return isinstance(self.initial_temperature, np.ndarray)
 
     def conditions(self) -> list[tuple[str, Condition]]:
         """Every (edge group, condition) pair, in group order."""

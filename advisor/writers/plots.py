@@ -459,10 +459,3 @@ def write_plots(
     for stem, build in BUILDERS.items():
         paths += save_figure(build(assessment), Path(folder) / stem, formats)
     return paths
-
-
-def write_history_plot(assessment: Assessment, path: Path) -> None:
-    """The temperature histories alone, in the format of ``path``'s suffix (PNG or SVG)."""
-    path = Path(path)
-    figure = history_figure(assessment)
-    write_with(path, lambda p: figure.savefig(p, format=path.suffix.lstrip(".") or "png"))
