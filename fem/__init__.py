@@ -37,7 +37,7 @@ _LAZY = {
     "SolverStats": ".solution",
     "ConductionSystem": ".system",
     "assemble": ".system",
-    "StopWhen": ".transient",
+    "StopWhen": ".events",
     "solve": ".transient",
 }
 _SUBMODULES = ("solids",)
@@ -84,6 +84,7 @@ if TYPE_CHECKING:
         Insulated,
         Radiation,
     )
+    from .events import StopWhen
     from .exponential_run import check_exponential_parts
     from .fields import FieldSeries
     from .materials import Material, PropertyRangeWarning, PropertyTable
@@ -91,7 +92,7 @@ if TYPE_CHECKING:
     from .schedules import Constant, Periodic, PiecewiseLinear, Sinusoid, Steps
     from .solution import RunChecks, Solution, SolverStats
     from .system import ConductionSystem, assemble
-    from .transient import StopWhen, solve
+    from .transient import solve
 
 
 def __getattr__(name: str):

@@ -14,9 +14,11 @@ from collections.abc import Iterable
 from dataclasses import dataclass
 
 from .errors import ModelError
+from .events import StopWhen
 from .methods import METHODS, stepper_for
 from .model import ThermalModel
 from .scales import surface_diffusion_time, temperature_span
+from .stepper import RunControls
 
 DEFAULT_METHOD = "crank-nicolson"
 DEFAULT_NEWTON_TOLERANCE = 1e-6  # K
@@ -24,23 +26,6 @@ DEFAULT_NEWTON_ITERATIONS = 30
 DEFAULT_OUTPUTS = 50
 DEFAULT_RELATIVE_TOLERANCE = 1e-4  # local error, as a fraction of the temperature range
 STOP_QUANTITIES = ("mean", "minimum", "maximum")
-
-
-@dataclass(frozen=True)
-class StopWhen:
-    """End the run when a quantity reaches a target.
-
-    Parameters
-    ----------
-    quantity : str
-        ``"mean"``, ``"minimum"``, ``"maximum"`` or the name of a probe.
-    target : float
-        Temperature in °C; the run stops at the first step that reaches or crosses it, and
-        the crossing time is interpolated within that step.
-    """
-
-    quantity: str
-    target: float
 
 
 @dataclass(frozen=True)
@@ -56,24 +41,6 @@ class RunOptions:
     max_step: float
     output_times: tuple[float, ...]
     outputs_explicit: bool
-    startup_steps: int
-    stop: StopWhen | None
-    newton_tolerance: float
-    max_newton_iterations: int
-
-
-@dataclass(frozen=True)
-class RunControls:
-    """Everything a run needs to know about how to step, in s and K."""
-
-    end_time: float
-    method: str
-    adaptive: bool
-    step: float
-    tolerance: float
-    min_step: float
-    max_step: float
-    output_times: tuple[float, ...]
     startup_steps: int
     stop: StopWhen | None
     newton_tolerance: float

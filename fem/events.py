@@ -4,16 +4,30 @@ condition's crossing."""
 from __future__ import annotations
 
 from collections.abc import Callable, Iterable
-from typing import TYPE_CHECKING
+from dataclasses import dataclass
 
 import numpy as np
 
 from .model import ThermalModel
 
-if TYPE_CHECKING:
-    from .arguments import StopWhen
-
 EVENT_TOLERANCE = 1e-9  # a step ends on an event when within this fraction of max(step, 1 s)
+
+
+@dataclass(frozen=True)
+class StopWhen:
+    """End the run when a quantity reaches a target.
+
+    Parameters
+    ----------
+    quantity : str
+        ``"mean"``, ``"minimum"``, ``"maximum"`` or the name of a probe.
+    target : float
+        Temperature in °C; the run stops at the first step that reaches or crosses it, and
+        the crossing time is interpolated within that step.
+    """
+
+    quantity: str
+    target: float
 
 
 def merged_breakpoints(model: ThermalModel, end: float) -> tuple[float, ...]:

@@ -50,6 +50,7 @@ class ThermalModel:
     Examples
     --------
     >>> from geometries import Rectangle
+    >>> from fem import Convection, Material
     >>> section = Rectangle(0.02, 0.01).mesh(size=0.0025)
     >>> air = Convection(heat_transfer_coefficient=25.0, ambient=20.0)
     >>> model = ThermalModel(section, Material(45.0, 7850.0, 475.0),

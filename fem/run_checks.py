@@ -5,12 +5,11 @@ from __future__ import annotations
 
 import numpy as np
 
-from .arguments import RunControls
 from .events import reached
 from .model import ThermalModel
 from .scales import temperature_span
 from .solution import RunChecks
-from .stepper import Stepper
+from .stepper import RunControls, Stepper
 
 ENERGY_BALANCE_TOLERANCE = 1e-8
 EXCURSION_TOLERANCE = 1e-3  # as a fraction of the temperature range

@@ -18,7 +18,7 @@ from .errors import SolverError
 from .integrators import StepFormula, local_error
 
 if TYPE_CHECKING:
-    from .arguments import RunControls
+    from .stepper import RunControls
 
 LADDER = 2.0  # adaptive steps take values initial_step · 2^k, so few factorisations are made
 

@@ -17,13 +17,31 @@ from typing import TYPE_CHECKING, ClassVar
 
 import numpy as np
 
+from .events import StopWhen
 from .linalg import Cost, LinearAlgebra
 from .recorder import HistoryRecorder
 from .system import ConductionSystem, inner
 
 if TYPE_CHECKING:
-    from .arguments import RunControls
     from .model import ThermalModel
+
+
+@dataclass(frozen=True)
+class RunControls:
+    """Everything a run needs to know about how to step, in s and K."""
+
+    end_time: float
+    method: str
+    adaptive: bool
+    step: float
+    tolerance: float
+    min_step: float
+    max_step: float
+    output_times: tuple[float, ...]
+    startup_steps: int
+    stop: StopWhen | None
+    newton_tolerance: float
+    max_newton_iterations: int
 
 
 @dataclass
