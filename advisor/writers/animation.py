@@ -19,17 +19,8 @@ from PIL import Image
 from fem import Solution
 
 from .atomic import write_with
-from .plots import (
-    COOL,
-    FIELD_MAP,
-    INK,
-    WARM,
-    axis_names,
-    clock,
-    draw_outline,
-    new_figure,
-    section_triangulation,
-)
+from .field_plots import axis_names, draw_outline, section_triangulation
+from .plot_style import COOL, FIELD_MAP, INK, WARM, clock, new_figure
 
 MAX_FRAMES = 60
 CLIP_SECONDS = 6.0  # how long the whole clip plays

@@ -13,7 +13,7 @@ from importlib.metadata import PackageNotFoundError, version
 from pathlib import Path
 
 from .atomic import write_text
-from .report_content import (
+from .report_document import (
     Block,
     Bullets,
     Callout,
