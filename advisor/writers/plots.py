@@ -11,7 +11,7 @@ from collections.abc import Sequence
 from pathlib import Path
 
 from ..analysis.assessment import Assessment
-from .field_plots import snapshot_figure, snapshot_indices
+from .field_plots import snapshot_figure
 from .history_plots import (
     energy_figure,
     history_figure,
@@ -19,16 +19,6 @@ from .history_plots import (
     lumped_error_figure,
 )
 from .plot_style import FORMATS, save_figure
-
-# the figure builders the tests and callers reach through this module
-__all__ = [
-    "BUILDERS",
-    "PLOTS",
-    "lumped_error_figure",
-    "snapshot_figure",
-    "snapshot_indices",
-    "write_plots",
-]
 
 # The plots :func:`write_plots` writes: file stem -> (title, what it shows). The report uses
 # them as headings and captions.
