@@ -32,12 +32,9 @@ import advisor.results_folder
 from advisor import AdvisorError, assess, write_results
 from advisor.cli.progress import RunProgress
 from advisor.writers import animation as animation_writer
-from advisor.writers.plots import (
-    PLOTS,
-    lumped_error_figure,
-    snapshot_figure,
-    snapshot_indices,
-)
+from advisor.writers.field_plots import snapshot_figure, snapshot_indices
+from advisor.writers.history_plots import lumped_error_figure
+from advisor.writers.plots import PLOTS
 from advisor.writers.report_content import HEADINGS
 from fem import Convection, Insulated, Material, Radiation, ThermalModel, solve
 from fem.heat_flux import vertex_heat_flux

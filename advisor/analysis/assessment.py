@@ -137,6 +137,20 @@ class Assessment:
         return self.lumped.stored_energy(self.lumped_temperature)
 
     @property
+    def error_histories(self) -> dict[tuple[str, str], np.ndarray]:
+        """(field − lumped) / (T0 − T∞) at ``solution.times`` for the classical and corrected
+        models (first key) against the field mean and the slowest point (second key);
+        positive where the lumped estimate is nearer its equilibrium than the field (it runs
+        ahead). T∞ is the lumped equilibrium: the ambient, raised by any sources and fluxes."""
+        drive = self.lumped.initial_temperature - self.lumped.equilibrium
+        quantities = {"field mean": self.solution.mean, "slowest point": self.slowest}
+        return {
+            (model, quantity): (history - self.model_temperatures[model]) / drive
+            for model in ("classical", "corrected")
+            for quantity, history in quantities.items()
+        }
+
+    @property
     def effective_coefficient(self) -> float:
         """h_eff of the corrected lumped model at the start, W/(m²·K)."""
         return self.corrected.surface_coefficient

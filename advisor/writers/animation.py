@@ -14,22 +14,15 @@ from collections.abc import Iterator
 from pathlib import Path
 
 import numpy as np
+from matplotlib.figure import Figure
+from matplotlib.tri import Triangulation
 from PIL import Image
 
 from fem import Solution
 
 from .atomic import write_with
-from .plots import (
-    COOL,
-    FIELD_MAP,
-    INK,
-    WARM,
-    axis_names,
-    clock,
-    draw_outline,
-    new_figure,
-    section_triangulation,
-)
+from .field_plots import axis_names, draw_outline, section_triangulation
+from .plot_style import COOL, FIELD_MAP, INK, WARM, clock, new_figure
 
 MAX_FRAMES = 60
 CLIP_SECONDS = 6.0  # how long the whole clip plays
@@ -79,8 +72,50 @@ def render_frames(solution: Solution, max_frames: int = MAX_FRAMES) -> Iterator[
     triangulation = section_triangulation(solution)
     xs, ys = triangulation.x, triangulation.y
     first = np.asarray(fields[indices[0]], dtype=float)
+    image, outline, hot, cold, stamp = _frame_artists(
+        figure, axes, solution, triangulation, first, (low, high)
+    )
+    end = clock(float(solution.output_times[-1]))
+    changing = (image, outline, hot, cold, stamp)
+    for artist in changing:
+        artist.set_animated(True)
+    canvas = figure.canvas
+    canvas.draw()
+    figure.set_layout_engine("none")  # the first layout holds for every frame
+    background = canvas.copy_from_bbox(figure.bbox)
+    for index in indices:
+        field = np.asarray(fields[index], dtype=float)
+        image.set_array(field)
+        i_hot, i_cold = int(np.argmax(field)), int(np.argmin(field))
+        hot.set_data([xs[i_hot]], [ys[i_hot]])
+        cold.set_data([xs[i_cold]], [ys[i_cold]])
+        stamp.set_text(f"t = {clock(float(solution.output_times[index]))} of {end}")
+        canvas.restore_region(background)
+        for artist in changing:
+            axes.draw_artist(artist)
+        rgba = np.asarray(canvas.buffer_rgba())
+        yield np.ascontiguousarray(rgba[:height, :width, :3])
+
+
+def _frame_artists(
+    figure: Figure,
+    axes,
+    solution: Solution,
+    triangulation: Triangulation,
+    first: np.ndarray,
+    scale: tuple[float, float],
+) -> tuple:
+    """Draw the frame's fixed parts (labels, colour bar, legend) and return the artists each
+    frame changes: the field image on the run's colour ``scale`` (low, high) in °C, the
+    outline, the hottest and coldest markers and the time stamp."""
+    low, high = scale
     image = axes.tripcolor(
-        triangulation, first, shading="gouraud", cmap=FIELD_MAP, vmin=low, vmax=high
+        triangulation,
+        first,
+        shading="gouraud",
+        cmap=FIELD_MAP,
+        vmin=low,
+        vmax=high,
     )
     outline = draw_outline(axes, solution)
     (hot,) = axes.plot([], [], "^", color=WARM, mec="white", mew=0.8, ms=9, label="hottest")
@@ -103,26 +138,7 @@ def render_frames(solution: Solution, max_frames: int = MAX_FRAMES) -> Iterator[
     )
     figure.colorbar(image, ax=axes, label="temperature (°C)", shrink=0.9)
     figure.legend(loc="outside lower center", ncols=2, fontsize=8, frameon=False)
-    end = clock(float(solution.output_times[-1]))
-    changing = (image, outline, hot, cold, stamp)
-    for artist in changing:
-        artist.set_animated(True)
-    canvas = figure.canvas
-    canvas.draw()
-    figure.set_layout_engine("none")  # the first layout holds for every frame
-    background = canvas.copy_from_bbox(figure.bbox)
-    for index in indices:
-        field = np.asarray(fields[index], dtype=float)
-        image.set_array(field)
-        i_hot, i_cold = int(np.argmax(field)), int(np.argmin(field))
-        hot.set_data([xs[i_hot]], [ys[i_hot]])
-        cold.set_data([xs[i_cold]], [ys[i_cold]])
-        stamp.set_text(f"t = {clock(float(solution.output_times[index]))} of {end}")
-        canvas.restore_region(background)
-        for artist in changing:
-            axes.draw_artist(artist)
-        rgba = np.asarray(canvas.buffer_rgba())
-        yield np.ascontiguousarray(rgba[:height, :width, :3])
+    return image, outline, hot, cold, stamp
 
 
 def write_gif(frames: list[np.ndarray], path: Path) -> None:

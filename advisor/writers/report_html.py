@@ -9,11 +9,10 @@ from __future__ import annotations
 
 import base64
 import html
-from importlib.metadata import PackageNotFoundError, version
 from pathlib import Path
 
 from .atomic import write_text
-from .report_content import (
+from .report_document import (
     Block,
     Bullets,
     Callout,
@@ -23,6 +22,7 @@ from .report_content import (
     Report,
     Table,
 )
+from .version import soakwise_version
 
 TONES = ("adequate", "marginal", "inadequate", "caution")
 MEDIA_TYPES = {".png": "image/png", ".svg": "image/svg+xml", ".gif": "image/gif"}
@@ -145,8 +145,8 @@ def render_html(report: Report, picture_root: Path) -> str:
         f'<p class="lede">{_e(report.lede)}</p></header>\n'
         f'<nav aria-label="Contents"><ol>{contents}</ol></nav>\n'
         f"<main>\n{sections}\n</main>\n"
-        f"<footer>Written by soakwise {_e(_version())}. Engineering estimates from a "
-        "simplified model: see the caution above.</footer>\n"
+        f"<footer>Written by soakwise {_e(soakwise_version('(version unknown)'))}. "
+        "Engineering estimates from a simplified model: see the caution above.</footer>\n"
         "</body>\n</html>\n"
     )
 
@@ -156,10 +156,3 @@ def write_html_report(report: Report, path: Path, picture_root: Path | None = No
     ``picture_root`` (default: the folder of ``path``)."""
     path = Path(path)
     write_text(path, render_html(report, path.parent if picture_root is None else picture_root))
-
-
-def _version() -> str:
-    try:
-        return version("soakwise")
-    except PackageNotFoundError:
-        return "(version unknown)"

@@ -13,7 +13,7 @@ from pathlib import Path
 from urllib.parse import quote
 
 from .atomic import write_text
-from .report_content import (
+from .report_document import (
     Block,
     Bullets,
     Callout,

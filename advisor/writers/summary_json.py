@@ -6,125 +6,163 @@ Every number carries its unit in its key (``_s``, ``_degC``, ``_K``, ``_m``, ...
 from __future__ import annotations
 
 import json
-from importlib.metadata import PackageNotFoundError, version
 from pathlib import Path
 
 import numpy as np
 
+from fem import RunChecks, SolverStats, ThermalModel
 from fem.schedules import schedule_data as _schedule
 
 from ..analysis.assessment import Assessment
 from ..caution import CAUTION
 from .atomic import write_text
+from .version import soakwise_version
 
 
 def summary(assessment: Assessment, files: list[str]) -> dict:
     """The summary as plain JSON-ready data; ``files`` are the results folder's files."""
     solution = assessment.solution
-    model = solution.model
-    facts = model.section.facts
-    stats, checks = solution.stats, solution.checks
     return {
-        "soakwise_version": _version(),
+        "soakwise_version": soakwise_version(),
         "caution": CAUTION,
-        "inputs": {
-            "section": {
-                "kind": "axisymmetric, whole solid of revolution"
-                if facts.axisymmetric
-                else "planar, per metre of depth",
-                "area_m2": facts.area,
-                "centroid_m": list(facts.centroid),
-                "edge_lengths_m": facts.edge_lengths,
-                "region_areas_m2": facts.region_areas,
-                "volume_m3": facts.volume,
-                "surface_areas_m2": facts.surface_areas,
-                "symmetry_multiplier": facts.symmetry_multiplier,
-                "mesh_nodes": int(model.section.mesh.p.shape[1]),
-                "mesh_triangles": int(model.section.mesh.t.shape[1]),
-                "element_order": model.element_order,
-            },
-            "materials": {region: _material(m) for region, m in model.materials.items()},
-            "boundaries": {name: _boundary(c) for name, c in model.boundaries.items()},
-            "initial_temperature_degC": _initial(model.initial_temperature),
-            "heat_sources_W_per_m3": {r: _schedule(q) for r, q in model.heat_sources.items()},
-            "probes_m": {name: list(point) for name, point in model.probes.items()},
-            "end_time_s": float(solution.times[-1]),
-            "target_degC": assessment.target,
-            "tolerance_fraction": assessment.verdict.tolerance,
-        },
-        "biot_numbers": [
-            {
-                "name": b.name,
-                "value": b.value,
-                "range_over_run": [b.low, b.high],
-                "length_m": b.length,
-                "heat_transfer_coefficient_W_per_m2_K": b.heat_transfer_coefficient,
-                "explanation": b.explanation,
-            }
-            for b in assessment.biot
-        ],
+        "inputs": _inputs(assessment),
+        "biot_numbers": _biot_numbers(assessment),
         "lumped_models": _models(assessment),
-        "slowest_mode": {
-            "rate_per_s": assessment.mode.rate,
-            "lumped_rate_per_s": assessment.mode.lumped_rate,
-            "ratio": assessment.mode.ratio,
-            "equivalent_coefficient_W_per_m2_K": assessment.mode.equivalent_coefficient,
-            "core_to_mean": assessment.mode.core_to_mean,
-        },
-        "lumped_errors": {
-            key: {
-                "largest_K": e.largest,
-                "fraction_of_initial_difference": e.fraction,
-                "time_s": e.time,
-                "lumped_ahead": e.lumped_ahead,
-            }
-            for key, e in assessment.errors.items()
-        },
+        "slowest_mode": _slowest_mode(assessment),
+        "lumped_errors": _lumped_errors(assessment),
         "energy_error_fraction": assessment.energy_error,
         "peak_internal_difference_K": assessment.peak_internal_difference,
         "peak_internal_difference_time_s": assessment.peak_internal_difference_time,
         "time_to_target_s": assessment.time_to_target,
-        "verdict": {
-            "rating": assessment.verdict.rating,
-            "lumped_adequate": assessment.verdict.adequate,
-            "quantity": assessment.verdict.quantity,
-            "error_fraction": assessment.verdict.error,
-            "direction": assessment.verdict.direction,
-            "advice": assessment.verdict.advice,
-            "reasons": list(assessment.verdict.reasons),
-        },
+        "verdict": _verdict(assessment),
         "final": {
             "mean_degC": float(solution.mean[-1]),
             "minimum_degC": float(solution.minimum[-1]),
             "maximum_degC": float(solution.maximum[-1]),
         },
         "output_times_s": solution.output_times.tolist(),
-        "checks": {
-            "energy_balance_error": checks.energy_balance_error,
-            "temperature_excursion_K": checks.temperature_excursion,
-            "step_to_surface_diffusion": checks.step_to_surface_diffusion,
-            "warnings": list(checks.warnings),
-        },
-        "solver": {
-            "method": stats.method,
-            "steps": stats.steps,
-            "startup_steps": stats.startup_steps,
-            "adaptive": stats.adaptive,
-            "rejected_steps": stats.rejected_steps,
-            "time_step_s": stats.time_step,
-            "smallest_step_s": stats.smallest_step,
-            "largest_step_s": stats.largest_step,
-            "newton_iterations": stats.newton_iterations,
-            "factorisations": stats.factorisations,
-            "triangular_solves": stats.solves,
-            "krylov_dimension": stats.krylov_dimension,
-            "error_estimate_K": stats.error_estimate,
-            "unknowns": stats.unknowns,
-            "assembly_s": stats.assembly_seconds,
-            "factorisation_s": stats.factorisation_seconds,
-            "stepping_s": stats.stepping_seconds,
-        },
+        "checks": _checks(solution.checks),
+        "solver": _solver(solution.stats),
         "files": files,
+    }
+
+
+def _inputs(assessment: Assessment) -> dict:
+    """The section, materials, conditions, sources, probes and the run's settings."""
+    model = assessment.solution.model
+    return {
+        "section": _section(model),
+        "materials": {region: _material(m) for region, m in model.materials.items()},
+        "boundaries": {name: _boundary(c) for name, c in model.boundaries.items()},
+        "initial_temperature_degC": _initial(model.initial_temperature),
+        "heat_sources_W_per_m3": {r: _schedule(q) for r, q in model.heat_sources.items()},
+        "probes_m": {name: list(point) for name, point in model.probes.items()},
+        "end_time_s": float(assessment.solution.times[-1]),
+        "target_degC": assessment.target,
+        "tolerance_fraction": assessment.verdict.tolerance,
+    }
+
+
+def _section(model: ThermalModel) -> dict:
+    """The section's kind, sizes and mesh."""
+    facts = model.section.facts
+    return {
+        "kind": "axisymmetric, whole solid of revolution"
+        if facts.axisymmetric
+        else "planar, per metre of depth",
+        "area_m2": facts.area,
+        "centroid_m": list(facts.centroid),
+        "edge_lengths_m": facts.edge_lengths,
+        "region_areas_m2": facts.region_areas,
+        "volume_m3": facts.volume,
+        "surface_areas_m2": facts.surface_areas,
+        "symmetry_multiplier": facts.symmetry_multiplier,
+        "mesh_nodes": int(model.section.mesh.p.shape[1]),
+        "mesh_triangles": int(model.section.mesh.t.shape[1]),
+        "element_order": model.element_order,
+    }
+
+
+def _biot_numbers(assessment: Assessment) -> list[dict]:
+    return [
+        {
+            "name": b.name,
+            "value": b.value,
+            "range_over_run": [b.low, b.high],
+            "length_m": b.length,
+            "heat_transfer_coefficient_W_per_m2_K": b.heat_transfer_coefficient,
+            "explanation": b.explanation,
+        }
+        for b in assessment.biot
+    ]
+
+
+def _slowest_mode(assessment: Assessment) -> dict:
+    mode = assessment.mode
+    return {
+        "rate_per_s": mode.rate,
+        "lumped_rate_per_s": mode.lumped_rate,
+        "ratio": mode.ratio,
+        "equivalent_coefficient_W_per_m2_K": mode.equivalent_coefficient,
+        "core_to_mean": mode.core_to_mean,
+    }
+
+
+def _lumped_errors(assessment: Assessment) -> dict:
+    return {
+        key: {
+            "largest_K": e.largest,
+            "fraction_of_initial_difference": e.fraction,
+            "time_s": e.time,
+            "lumped_ahead": e.lumped_ahead,
+        }
+        for key, e in assessment.errors.items()
+    }
+
+
+def _verdict(assessment: Assessment) -> dict:
+    verdict = assessment.verdict
+    return {
+        "rating": verdict.rating,
+        "lumped_adequate": verdict.adequate,
+        "quantity": verdict.quantity,
+        "error_fraction": verdict.error,
+        "direction": verdict.direction,
+        "advice": verdict.advice,
+        "reasons": list(verdict.reasons),
+    }
+
+
+def _checks(checks: RunChecks) -> dict:
+    """The run's own checks."""
+    return {
+        "energy_balance_error": checks.energy_balance_error,
+        "temperature_excursion_K": checks.temperature_excursion,
+        "step_to_surface_diffusion": checks.step_to_surface_diffusion,
+        "warnings": list(checks.warnings),
+    }
+
+
+def _solver(stats: SolverStats) -> dict:
+    """How the solver stepped and how long it took."""
+    return {
+        "method": stats.method,
+        "steps": stats.steps,
+        "startup_steps": stats.startup_steps,
+        "adaptive": stats.adaptive,
+        "rejected_steps": stats.rejected_steps,
+        "time_step_s": stats.time_step,
+        "smallest_step_s": stats.smallest_step,
+        "largest_step_s": stats.largest_step,
+        "newton_iterations": stats.newton_iterations,
+        "factorisations": stats.factorisations,
+        "triangular_solves": stats.solves,
+        "krylov_dimension": stats.krylov_dimension,
+        "error_estimate_K": stats.error_estimate,
+        "unknowns": stats.unknowns,
+        "assembly_s": stats.assembly_seconds,
+        "factorisation_s": stats.factorisation_seconds,
+        "stepping_s": stats.stepping_seconds,
     }
 
 
@@ -185,10 +223,3 @@ def _initial(value):
     return {
         "field of an earlier run": {"minimum": float(value.min()), "maximum": float(value.max())}
     }
-
-
-def _version() -> str:
-    try:
-        return version("soakwise")
-    except PackageNotFoundError:
-        return "unknown"

@@ -1,0 +1,234 @@
+"""Figures of the run over time: temperature histories, the internal temperature difference,
+the lumped error against the tolerance band, and the energy ledger."""
+
+from __future__ import annotations
+
+import numpy as np
+from matplotlib.figure import Figure
+
+from ..analysis.assessment import Assessment
+from .plot_style import (
+    BAND,
+    COOL,
+    CORRECTED,
+    INK,
+    LUMPED,
+    PROBE_COLOURS,
+    TARGET,
+    WARM,
+    clock,
+    energy_axis,
+    new_figure,
+    scaled_times,
+    tidy,
+)
+
+
+def history_figure(assessment: Assessment) -> Figure:
+    """Temperature histories (mean, extremes, probes, lumped) above the internal ΔT."""
+    t, scale, unit = scaled_times(assessment.solution)
+    figure = new_figure(8.0, 6.4)
+    top, bottom = figure.subplots(2, 1, sharex=True, height_ratios=(2.2, 1.0))
+    _temperature_axes(top, assessment, t)
+    _difference_axes(bottom, assessment, t, scale, unit)
+    tidy(top, t)
+    return figure
+
+
+def _temperature_axes(axes, assessment: Assessment, t: np.ndarray) -> None:
+    """The field's range, extremes, mean and probes with the classical and corrected lumped
+    estimates, the target and the verdict in the title."""
+    solution = assessment.solution
+    axes.fill_between(
+        t, solution.minimum, solution.maximum, color=BAND, lw=0, label="range in the section"
+    )
+    axes.plot(t, solution.maximum, color=WARM, lw=1.2, label="hottest point")
+    axes.plot(t, solution.minimum, color=COOL, lw=1.2, label="coldest point")
+    axes.plot(t, solution.mean, color=INK, lw=2.0, label="field mean")
+    for colour, (name, history) in zip(PROBE_COLOURS * 4, solution.probes.items(), strict=False):
+        axes.plot(t, history, color=colour, lw=1.0, ls=(0, (1, 1.5)), label=f"probe {name}")
+    axes.plot(
+        t,
+        assessment.lumped_temperature,
+        color=LUMPED,
+        lw=1.8,
+        ls=(0, (6, 3)),
+        label=f"classical lumped, τ = {assessment.lumped.time_constant:.4g} s",
+    )
+    axes.plot(
+        t,
+        assessment.model_temperatures["corrected"],
+        color=CORRECTED,
+        lw=1.2,
+        ls=(0, (1.5, 1.5)),
+        label=f"corrected lumped, τ = {assessment.corrected.time_constant:.4g} s",
+    )
+    if assessment.target is not None:
+        axes.axhline(assessment.target, color=TARGET, lw=0.8, ls="-.")
+        axes.annotate(
+            f"target {assessment.target:g} °C",
+            (t[-1], assessment.target),
+            ha="right",
+            va="bottom",
+            fontsize=8,
+            color=TARGET,
+        )
+    axes.set_ylabel("temperature (°C)")
+    axes.legend(fontsize=8, frameon=False, ncols=2)
+    verdict = assessment.verdict
+    axes.set_title(
+        f"Bi (V/A_s) = {assessment.biot[0].value:.3g} — classical lumped estimate "
+        f"{verdict.rating} for {verdict.subject}",
+        fontsize=10,
+        loc="left",
+    )
+
+
+def _difference_axes(axes, assessment: Assessment, t, scale: float, unit: str) -> None:
+    """Hottest minus coldest point over time, its peak marked."""
+    spread = assessment.solution.internal_difference
+    axes.plot(t, spread, color=INK, lw=1.6)
+    peak_t = assessment.peak_internal_difference_time / scale
+    axes.plot([peak_t], [assessment.peak_internal_difference], "o", color=WARM, ms=5)
+    axes.annotate(
+        f"peak {assessment.peak_internal_difference:.3g} K at "
+        f"{clock(assessment.peak_internal_difference_time)}",
+        (peak_t, assessment.peak_internal_difference),
+        xytext=(8, -4),
+        textcoords="offset points",
+        fontsize=8,
+        va="top",
+    )
+    axes.set_ylabel("internal ΔT (K)")
+    axes.set_xlabel(f"time ({unit})")
+    axes.set_ylim(0, 1.15 * max(float(np.max(spread)), 1e-12))
+    tidy(axes, t)
+
+
+def internal_difference_figure(assessment: Assessment) -> Figure:
+    """Hottest minus coldest point over time, the peak marked; with a target, the slowest
+    point's time to target as a vertical line."""
+    t, scale, unit = scaled_times(assessment.solution)
+    figure = new_figure(8.0, 3.6)
+    axes = figure.subplots()
+    axes.fill_between(t, 0, assessment.solution.internal_difference, color=BAND, lw=0)
+    _difference_axes(axes, assessment, t, scale, unit)
+    through = assessment.time_to_target.get("slowest")
+    if through is not None:
+        axes.axvline(through / scale, color=TARGET, lw=0.8, ls="-.")
+        axes.annotate(
+            f"slowest point at {assessment.target:g} °C",
+            (through / scale, 0),
+            xytext=(4, 4),
+            textcoords="offset points",
+            fontsize=8,
+            color=TARGET,
+            rotation=90,
+            va="bottom",
+        )
+    axes.set_title("Internal temperature difference in the section", fontsize=10, loc="left")
+    return figure
+
+
+def lumped_error_figure(assessment: Assessment) -> Figure:
+    """The lumped errors of :attr:`Assessment.error_histories` in percent against the
+    tolerance band."""
+    t, _, unit = scaled_times(assessment.solution)
+    tolerance = 100 * assessment.verdict.tolerance
+    figure = new_figure(8.0, 4.2)
+    axes = figure.subplots()
+    axes.axhspan(-tolerance, tolerance, color=BAND, lw=0, label=f"tolerance ±{tolerance:.3g} %")
+    axes.axhline(0.0, color=TARGET, lw=0.6)
+    colours = {"classical": LUMPED, "corrected": CORRECTED}
+    styles = {"field mean": "-", "slowest point": (0, (5, 2.5))}
+    largest = tolerance
+    for (model, quantity), error in assessment.error_histories.items():
+        percent = 100 * error
+        largest = max(largest, float(np.max(np.abs(percent))))
+        axes.plot(
+            t,
+            percent,
+            color=colours[model],
+            ls=styles[quantity],
+            lw=1.6 if model == "classical" else 1.2,
+            label=f"{model} lumped vs {quantity}",
+        )
+    axes.set_ylim(-1.15 * largest, 1.15 * largest)
+    axes.set_ylabel("field − lumped (% of T0 − T∞)")
+    axes.set_xlabel(f"time ({unit})")
+    axes.annotate(
+        "above 0: the lumped estimate runs ahead of the field",
+        (0.01, 0.98),
+        xycoords="axes fraction",
+        va="top",
+        fontsize=8,
+        color=TARGET,
+    )
+    axes.legend(fontsize=8, frameon=False, loc="lower right", ncols=2)
+    axes.set_title(
+        "Lumped error against the field, as a share of the initial driving difference",
+        fontsize=10,
+        loc="left",
+    )
+    tidy(axes, t)
+    return figure
+
+
+def energy_figure(assessment: Assessment) -> Figure:
+    """Stored energy against absorbed heat (the run's ledger) and the classical lumped
+    model's stored energy, with the ledger's imbalance below."""
+    solution = assessment.solution
+    t, _, unit = scaled_times(solution)
+    largest = float(
+        max(np.max(np.abs(solution.stored_energy)), np.max(np.abs(solution.absorbed_heat)), 1.0)
+    )
+    figure = new_figure(8.0, 5.2)
+    top, bottom = figure.subplots(2, 1, sharex=True, height_ratios=(2.2, 1.0))
+    _ledger_axes(top, assessment, t, largest)
+    imbalance = (solution.stored_energy - solution.absorbed_heat) / largest
+    bottom.plot(t, imbalance, color=INK, lw=1.2)
+    bottom.set_ylabel("imbalance\n(share of largest)")
+    bottom.set_xlabel(f"time ({unit})")
+    bottom.annotate(
+        f"the run's own balance check: {solution.checks.energy_balance_error:.2g}",
+        (0.99, 0.06),
+        xycoords="axes fraction",
+        ha="right",
+        fontsize=8,
+        color=TARGET,
+    )
+    for axes in (top, bottom):
+        tidy(axes, t)
+    return figure
+
+
+def _ledger_axes(axes, assessment: Assessment, t: np.ndarray, largest: float) -> None:
+    """Stored energy, heat taken in and the classical lumped model's stored energy, in the
+    unit :func:`energy_axis` picks for ``largest`` J."""
+    solution = assessment.solution
+    per_depth = not solution.model.section.axisymmetric
+    energy_scale, energy_unit = energy_axis(largest, per_depth)
+    axes.plot(
+        t, solution.stored_energy / energy_scale, color=INK, lw=2.0, label="stored in the part"
+    )
+    axes.plot(
+        t,
+        solution.absorbed_heat / energy_scale,
+        color=WARM,
+        lw=1.2,
+        ls=(0, (4, 2)),
+        label="taken in through the edges and generated",
+    )
+    axes.plot(
+        t,
+        assessment.lumped_energy / energy_scale,
+        color=LUMPED,
+        lw=1.2,
+        ls=(0, (1.5, 1.5)),
+        label="stored, classical lumped estimate",
+    )
+    axes.axhline(0.0, color=TARGET, lw=0.6)
+    axes.set_ylabel(f"energy since the start ({energy_unit})")
+    axes.legend(fontsize=8, frameon=False)
+    sign = "positive: heat taken up" if assessment.heating else "negative: heat given off"
+    axes.set_title(f"Energy ledger ({sign})", fontsize=10, loc="left")

@@ -1,0 +1,96 @@
+"""The plots' shared style and saving: colours, time and energy axes, figures with their own
+canvas, the tidy look of every time axis, and atomic PNG/SVG files.
+
+The style is the project's own: a warm/cool pair for the extremes around an ink-blue mean, the
+lumped family in rust (classical dashed) and olive (corrected), a pale band for the range or
+the tolerance, light horizontal grid only, and the perceptually uniform *cividis* map for
+fields. Every axis names its quantity and unit.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from pathlib import Path
+
+import numpy as np
+from matplotlib.backends.backend_agg import FigureCanvasAgg
+from matplotlib.figure import Figure
+
+from .atomic import write_with
+
+INK = "#1d3557"
+WARM = "#c8553d"
+COOL = "#3a86a8"
+LUMPED = "#b5651d"
+CORRECTED = "#6b8f23"
+BAND = "#dfe7ef"
+TARGET = "#5c5c5c"
+GRID = "#e6e6e6"
+PROBE_COLOURS = ("#2a9d8f", "#8e6c8a", "#6b8f23", "#d19c1d", "#4f6d7a")
+FIELD_MAP = "cividis"
+FORMATS = ("png", "svg")
+DPI = 120
+
+
+def time_axis(end_time: float) -> tuple[float, str]:
+    """A divisor and unit label that keep time ticks readable."""
+    if end_time >= 3 * 3600:
+        return 3600.0, "h"
+    if end_time >= 3 * 60:
+        return 60.0, "min"
+    return 1.0, "s"
+
+
+def clock(seconds: float) -> str:
+    """A time a person reads at a glance: ``"45 s"``, ``"3 min 40 s"``, ``"2 h 05 min"``."""
+    if seconds < 120:
+        return f"{seconds:.3g} s"
+    if seconds < 2 * 3600:
+        minutes, rest = divmod(round(seconds), 60)
+        return f"{minutes} min {rest:02d} s"
+    hours, rest = divmod(round(seconds / 60), 60)
+    return f"{hours} h {rest:02d} min"
+
+
+def energy_axis(largest: float, per_depth: bool) -> tuple[float, str]:
+    """A divisor and unit label for energies whose largest magnitude is ``largest`` J."""
+    suffix = "/m" if per_depth else ""
+    for scale, unit in ((1e9, "GJ"), (1e6, "MJ"), (1e3, "kJ")):
+        if largest >= scale:
+            return scale, unit + suffix
+    return 1.0, "J" + suffix
+
+
+def new_figure(width: float, height: float) -> Figure:
+    """A figure with its own Agg canvas, laid out by matplotlib's constrained layout."""
+    figure = Figure(figsize=(width, height), dpi=DPI, layout="constrained")
+    FigureCanvasAgg(figure)
+    return figure
+
+
+def tidy(axes, t) -> None:
+    axes.grid(axis="y", color=GRID, lw=0.6)
+    axes.spines[["top", "right"]].set_visible(False)
+    axes.set_xlim(t[0], t[-1])
+
+
+def save_figure(figure: Figure, stem: Path, formats: Sequence[str] = FORMATS) -> list[Path]:
+    """Save ``figure`` as ``stem.png``, ``stem.svg`` (or ``formats``) atomically."""
+    stem = Path(stem)
+    stem.parent.mkdir(parents=True, exist_ok=True)
+    paths = []
+    for kind in formats:
+        path = stem.with_name(f"{stem.name}.{kind}")
+        # tight: a left-aligned title wider than its axes (tall sections) stays in the picture
+        write_with(
+            path,
+            lambda p, k=kind: figure.savefig(p, format=k, bbox_inches="tight", pad_inches=0.08),
+        )
+        paths.append(path)
+    return paths
+
+
+def scaled_times(solution) -> tuple[np.ndarray, float, str]:
+    """The run's times in the unit of :func:`time_axis`, with its divisor and label."""
+    scale, unit = time_axis(float(solution.times[-1]))
+    return solution.times / scale, scale, unit

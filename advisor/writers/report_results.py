@@ -1,0 +1,236 @@
+"""The report's parts on what the run found: the verdict, the times to target, the Biot
+numbers, the lumped models' errors and parameters, and the run's own checks."""
+
+from __future__ import annotations
+
+from ..analysis.assessment import Assessment
+from .report_document import Block, Bullets, Callout, Facts, Paragraph, Part, Table, part
+from .report_words import duration, millimetres, number, parameter_words, quantity_words
+
+
+def verdict_part(a: Assessment) -> Part:
+    """The rating of the classical lumped estimate and the figures behind it."""
+    v = a.verdict
+    headline = (
+        f"The classical lumped estimate is {v.rating.upper()} for {v.subject}: an error of "
+        f"{100 * v.error:.3g} % against a tolerance of {100 * v.tolerance:.3g} %."
+    )
+    return part(
+        "verdict",
+        (
+            Callout(v.rating, headline, v.rating),
+            Facts((("Which way it is wrong", v.direction), ("What to use", v.advice))),
+            Bullets(v.reasons, lead="The figures behind the rating:"),
+            Paragraph(
+                f"Peak internal temperature difference: {a.peak_internal_difference:.4g} K at "
+                f"{duration(a.peak_internal_difference_time)}. Largest stored-energy error of "
+                f"the classical lumped estimate: {100 * a.energy_error:.3g} % of the energy a "
+                "full approach to the ambient exchanges."
+            ),
+        ),
+    )
+
+
+def target_part(a: Assessment) -> Part:
+    """When each estimate and field quantity reaches the target, against the slowest point."""
+    if a.target is None:
+        return part(
+            "target", (Paragraph("No target temperature was given, so no times to target."),)
+        )
+    reference = a.time_to_target.get("slowest")
+    rows = tuple(
+        (quantity_words(key), duration(time), _against(time, reference, key))
+        for key, time in a.time_to_target.items()
+    )
+    return part(
+        "target",
+        (
+            Paragraph(f"Time for each estimate and field quantity to reach {a.target:g} °C."),
+            Table(("estimate or quantity", "time to target", "against the slowest point"), rows),
+        ),
+    )
+
+
+def _against(time: float | None, reference: float | None, key: str) -> str:
+    """A time to target against the slowest point's, as a share earlier or later."""
+    if time is None or reference is None or reference <= 0 or key == "slowest":
+        return "—"
+    change = 100 * (time - reference) / reference
+    if abs(change) < 0.05:
+        return "at the same time"
+    return f"{abs(change):.3g} % {'earlier' if change < 0 else 'later'}"
+
+
+def biot_part(a: Assessment) -> Part:
+    """Every Biot number with its length scale and what it measures."""
+    rows = tuple(
+        (
+            b.name.replace("_", " "),
+            f"{b.value:.3g}",
+            f"{b.low:.3g} to {b.high:.3g}",
+            millimetres(b.length),
+            f"{b.heat_transfer_coefficient:.4g} W/(m²·K)",
+            b.explanation,
+        )
+        for b in a.biot
+    )
+    return part(
+        "biot",
+        (
+            Paragraph(
+                "Bi = h·L/k compares the resistance to conduction inside the part with the "
+                "resistance to heat exchange at its surface; each length L answers a different "
+                "question."
+            ),
+            Table(("length scale", "Bi", "over the run", "L", "mean h", "what it measures"), rows),
+        ),
+    )
+
+
+def errors_part(a: Assessment) -> Part:
+    """Each lumped model's largest gap to the field quantities it stands for."""
+    rows = tuple(
+        (
+            e.model,
+            quantity_words(e.quantity),
+            f"{e.largest:.4g} K",
+            f"{100 * e.fraction:.3g} %",
+            duration(e.time),
+            "runs ahead" if e.lumped_ahead else "lags behind",
+        )
+        for e in a.errors.values()
+    )
+    return part(
+        "errors",
+        (
+            Paragraph(
+                "The largest gap over the run between each lumped model and a field quantity, "
+                "as a temperature and as a share of the initial driving difference |T0 − T∞|. "
+                "A model that runs ahead heats or cools the part faster than the field does."
+            ),
+            Table(
+                ("model", "against", "largest gap", "share", "at", "the model"),
+                rows,
+            ),
+        ),
+    )
+
+
+def models_part(a: Assessment) -> Part:
+    """The lumped family's parameters and the slowest mode, and which models were not fitted."""
+    blocks: list[Block] = [
+        Paragraph(
+            "Parameters of the lumped family for use in system models or hand checks. The "
+            "corrected model scales h by 1/(1 + Bi/β); the fitted models are fitted to this "
+            "run's field and hold for conditions like it."
+        ),
+        Table(("model", "parameter", "value", "unit"), tuple(_model_rows(a) + _mode_rows(a))),
+        Paragraph(f"How β was chosen: {a.correction_note}."),
+    ]
+    missing = []
+    if a.fitted is None:
+        missing.append("a single exponential (conditions change during the run)")
+    if a.two_node is None:
+        missing.append("a two-node model (the run does not allow a fit)")
+    if missing:
+        blocks.append(Paragraph("Not fitted: " + "; ".join(missing) + "."))
+    return part("models", blocks)
+
+
+def _model_rows(a: Assessment) -> list[tuple[str, str, str, str]]:
+    """(model, parameter, value, unit) of every lumped model there is."""
+    rows: list[tuple[str, str, str, str]] = []
+
+    def add(model: str, parameters: dict) -> None:
+        for key, value in parameters.items():
+            words, unit = parameter_words(key)
+            rows.append((model, words, number(value, 5), unit))
+
+    add("classical lumped", a.lumped.parameters())
+    add("corrected lumped", a.corrected.parameters())
+    rows.append(
+        (
+            "corrected lumped",
+            "effective heat-transfer coefficient",
+            number(a.effective_coefficient, 5),
+            "W/(m²·K)",
+        )
+    )
+    rows.append(("corrected lumped", "shape factor β", number(a.correction_shape, 4), ""))
+    if a.fitted is not None:
+        add("fitted single exponential", a.fitted.parameters())
+    if a.two_node is not None:
+        add("two-node (core and skin)", a.two_node.parameters())
+    return rows
+
+
+def _mode_rows(a: Assessment) -> list[tuple[str, str, str, str]]:
+    """(model, parameter, value, unit) of the slowest mode."""
+    mode = a.mode
+    return [
+        ("slowest mode", "decay rate", number(mode.rate, 5), "1/s"),
+        ("slowest mode", "lumped decay rate", number(mode.lumped_rate, 5), "1/s"),
+        ("slowest mode", "ratio to the lumped rate", number(mode.ratio, 4), ""),
+        (
+            "slowest mode",
+            "coefficient a lumped model would need",
+            number(mode.equivalent_coefficient, 5),
+            "W/(m²·K)",
+        ),
+        ("slowest mode", "peak to mean of the mode shape", number(mode.core_to_mean, 4), ""),
+    ]
+
+
+def checks_part(a: Assessment) -> Part:
+    """The run's energy balance, excursions, step sizes and solver statistics."""
+    solution = a.solution
+    checks, stats = solution.checks, solution.stats
+    facts = Facts(
+        (
+            (
+                "Energy balance",
+                f"largest mismatch {checks.energy_balance_error:.3g} of the energy scale "
+                "(stored against taken in)",
+            ),
+            (
+                "Temperatures outside the initial and boundary range",
+                f"{checks.temperature_excursion:.3g} K at most",
+            ),
+            (
+                "Smallest step against the surface elements' diffusion time",
+                f"{checks.step_to_surface_diffusion:.3g}",
+            ),
+            ("Time stepping", _stepping(stats)),
+            (
+                "Linear algebra",
+                f"{stats.unknowns} unknowns, {stats.factorisations} factorisations, "
+                f"{stats.solves} triangular solves, {stats.newton_iterations} Newton iterations",
+            ),
+            (
+                "Wall-clock time",
+                f"assembly {stats.assembly_seconds:.3g} s, factorisation "
+                f"{stats.factorisation_seconds:.3g} s, stepping {stats.stepping_seconds:.3g} s",
+            ),
+        )
+    )
+    warnings = (
+        Bullets(checks.warnings, lead="Failed checks:")
+        if checks.warnings
+        else Paragraph("Every check passed.")
+    )
+    return part("checks", (facts, warnings))
+
+
+def _stepping(stats) -> str:
+    """How the run stepped through time, in words."""
+    if stats.method == "exponential":
+        return (
+            f"exponential, {stats.steps} step(s) from breakpoint to breakpoint, exact in time "
+            f"to an estimated {stats.error_estimate:.3g} K (Krylov basis of up to "
+            f"{stats.krylov_dimension} vectors)"
+        )
+    return (
+        f"{stats.method}, {'adaptive' if stats.adaptive else 'fixed'} step "
+        f"{stats.smallest_step:.4g} to {stats.largest_step:.4g} s, {stats.steps} steps "
+        f"({stats.rejected_steps} rejected, {stats.startup_steps} start-up)"
+    )
