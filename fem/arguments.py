@@ -13,7 +13,7 @@ import numbers
 from collections.abc import Iterable
 from dataclasses import dataclass
 
-from .errors import ModelError
+from .errors import ModelError, shown
 from .events import StopWhen
 from .methods import METHODS, stepper_for
 from .model import ThermalModel
@@ -88,17 +88,19 @@ def check_run_options(
     """
     if not _positive(end_time):
         raise ModelError(
-            f"end_time must be a finite time > 0 s, got {end_time!r}", argument="end_time"
+            f"end_time must be a finite time > 0 s, got {shown(end_time, 's')}",
+            argument="end_time",
         )
     end = float(end_time)
     if method not in METHODS:
         raise ModelError(
-            f"method must be one of {tuple(METHODS)}, got {method!r}", argument="method"
+            f"method must be one of {list(METHODS)}, got {method!r}", argument="method"
         )
     stepper = stepper_for(method)
     if time_step is not None and (not _positive(time_step) or time_step > end):
         raise ModelError(
-            f"time_step must be a time in (0, end_time = {end_time}] s, got {time_step!r}",
+            f"time_step must be a time in (0, end_time = {end_time:g}] s, "
+            f"got {shown(time_step, 's')}",
             argument="time_step",
         )
     adaptive = time_step is None if adaptive is None else bool(adaptive)
@@ -106,7 +108,7 @@ def check_run_options(
     times = _outputs(end, output_interval, output_times)
     if tolerance is not None and not _positive(tolerance):
         raise ModelError(
-            f"tolerance must be a temperature difference > 0 K, got {tolerance!r}",
+            f"tolerance must be a temperature difference > 0 K, got {shown(tolerance, 'K')}",
             argument="tolerance",
         )
     smallest, largest = _step_bounds(end, min_step, max_step)
@@ -200,7 +202,8 @@ def _outputs(end: float, interval, explicit) -> tuple[float, ...]:
         interval = end / DEFAULT_OUTPUTS
     if not _positive(interval) or interval > end:
         raise ModelError(
-            f"output_interval must be a time in (0, end_time = {end}] s, got {interval!r}",
+            f"output_interval must be a time in (0, end_time = {end:g}] s, "
+            f"got {shown(interval, 's')}",
             argument="output_interval",
         )
     count = math.ceil(end / float(interval) - 1e-9)
@@ -213,7 +216,7 @@ def _step_bounds(end: float, min_step, max_step) -> tuple[float, float]:
     for name, value in (("min_step", min_step), ("max_step", max_step)):
         if not _positive(value) or value > end:
             raise ModelError(
-                f"{name} must be a time in (0, end_time] s, got {value!r}", argument=name
+                f"{name} must be a time in (0, end_time] s, got {shown(value, 's')}", argument=name
             )
     if min_step > max_step:
         raise ModelError(
@@ -238,7 +241,8 @@ def _check_stop(stop, probes: Iterable[str]) -> None:
 def _check_newton(tolerance, iterations) -> None:
     if not _positive(tolerance):
         raise ModelError(
-            f"newton_tolerance must be > 0 K, got {tolerance!r}", argument="newton_tolerance"
+            f"newton_tolerance must be > 0 K, got {shown(tolerance, 'K')}",
+            argument="newton_tolerance",
         )
     if not isinstance(iterations, int) or iterations < 1:
         raise ModelError(

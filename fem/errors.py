@@ -23,6 +23,18 @@ def _rebuild_model_error(kind: type, message: str, argument: str | None) -> Mode
     return kind(message, argument=argument)
 
 
+def shown(value, unit: str = "") -> str:
+    """``value`` as messages show it: a real number with its unit, anything else as its
+    repr."""
+    import numbers
+
+    if isinstance(value, numbers.Integral) and not isinstance(value, bool):
+        return f"{int(value)} {unit}".rstrip()
+    if isinstance(value, numbers.Real):
+        return f"{float(value)!r} {unit}".rstrip()
+    return repr(value)
+
+
 class SolverError(RuntimeError):
     """The solver could not complete a step (Newton's method did not converge, the step fell
     below its minimum); the message gives the time, the step and the residual."""

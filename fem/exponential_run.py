@@ -33,7 +33,7 @@ DEFAULT_RECORDS = 200  # history records over the run (plus the start-up ones)
 
 def check_exponential_parts(materials, boundaries, heat_sources) -> None:
     """Raise ModelError (``argument="method"``) unless a model of these parts can be solved
-    by exponential steps: constant properties, no radiation, schedules that only jump.
+    by exponential steps: constant properties, linear conditions, schedules that only jump.
 
     Parameters
     ----------
@@ -54,8 +54,8 @@ def check_exponential_parts(materials, boundaries, heat_sources) -> None:
             else f"temperature-dependent properties in region {varying[0]!r}"
         )
         raise ModelError(
-            "method 'exponential' needs a linear model (constant properties, no radiation), "
-            f"not {reason}: use 'crank-nicolson'",
+            "method 'exponential' needs a linear model (constant properties, no radiation or "
+            f"other nonlinear condition), not {reason}: use 'crank-nicolson'",
             argument="method",
         )
     named = [(region, "heat source", as_schedule(q, "heat source")) for region, q in sources]

@@ -19,7 +19,7 @@ from .system import inner
 
 
 class LinearStep:
-    """Solves linear steps of a run (constant properties, no radiation)."""
+    """Solves linear steps of a run (constant properties, linear conditions)."""
 
     def __init__(self, run: RunContext):
         self.run = run

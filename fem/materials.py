@@ -8,7 +8,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .errors import ModelError
+from .errors import ModelError, shown
 from .temperatures import ABSOLUTE_ZERO
 
 
@@ -111,7 +111,9 @@ def _check_property(value, name: str, unit: str) -> Property:
         return value
     if isinstance(value, int | float | np.number) and not isinstance(value, bool):
         if not math.isfinite(value) or value <= 0:
-            raise ModelError(f"Material {name} must be a finite value > 0 {unit}, got {value!r}")
+            raise ModelError(
+                f"Material {name} must be a finite value > 0 {unit}, got {shown(value, unit)}"
+            )
         return float(value)
     raise ModelError(
         f"Material {name} must be a number in {unit} or a PropertyTable, got {value!r}"

@@ -19,7 +19,7 @@ from .conditions import (
 from .errors import ModelError
 from .materials import Material
 from .schedules import Schedule, as_schedule
-from .temperatures import ABSOLUTE_ZERO, above_absolute_zero
+from .temperatures import check_temperature
 
 
 @dataclass(frozen=True)
@@ -74,8 +74,7 @@ class ThermalModel:
         regions = set(self.section.regions)
         self._set("material", self._materials(regions))
         self._set("boundaries", self._boundaries())
-        if self.element_order not in (1, 2):
-            raise ModelError(f"element_order must be 1 or 2, got {self.element_order!r}")
+        check_element_order(self.element_order)
         self._set("initial_temperature", self._initial(regions))
         unknown = sorted(set(self.heat_sources) - regions)
         if unknown:
@@ -124,7 +123,7 @@ class ThermalModel:
         boundaries = dict(self.boundaries)
         if self.section.axisymmetric and AXIS_GROUP in groups:
             axis = boundaries.setdefault(AXIS_GROUP, Insulated("axis"))
-            if not isinstance(axis, Insulated):
+            if axis.flows or axis.holds_temperature:
                 raise ModelError(
                     f"the axis of an axisymmetric section carries no heat flow; remove the "
                     f"{type(axis).__name__} condition on {AXIS_GROUP!r}"
@@ -156,6 +155,8 @@ class ThermalModel:
                     "element order"
                 )
             return np.array(value.final_state, dtype=float)  # the field, not the whole run
+        if isinstance(value, np.ndarray):  # a field, taken from a Solution before
+            return value
         if isinstance(value, Mapping):
             missing, unknown = sorted(regions - set(value)), sorted(set(value) - regions)
             if missing or unknown:
@@ -164,9 +165,9 @@ class ThermalModel:
                     f"{sorted(regions)}; missing {missing}, unknown {unknown}"
                 )
             for region, t in value.items():
-                _check_temperature(t, f"initial temperature of region {region!r}")
+                check_temperature(t, f"initial temperature of region {region!r}")
             return {r: float(t) for r, t in value.items()}
-        _check_temperature(value, "initial_temperature")
+        check_temperature(value, "initial_temperature")
         return float(value)
 
     # ------------------------------------------------------------------------------------
@@ -227,6 +228,8 @@ class ThermalModel:
         return (float(np.min(value)), float(np.max(value)))
 
 
-def _check_temperature(value, what: str) -> None:
-    if not (isinstance(value, int | float | np.number) and above_absolute_zero(value)):
-        raise ModelError(f"{what} must be above {ABSOLUTE_ZERO:g} degC, got {value!r}")
+def check_element_order(value) -> int:
+    """``value`` as an element order: 1 (linear, P1) or 2 (quadratic, P2)."""
+    if isinstance(value, bool) or value not in (1, 2):
+        raise ModelError(f"element_order must be 1 or 2, got {value!r}", argument="element_order")
+    return int(value)

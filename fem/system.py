@@ -11,6 +11,7 @@ when asked for, at the quadrature points of the current field.
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass, field
 from functools import cached_property
 
@@ -20,6 +21,7 @@ from skfem import Basis, ElementTriP1, ElementTriP2, FacetBasis, asm
 
 from . import forms
 from .conditions import Condition
+from .errors import ModelError
 from .materials import Material
 from .model import ThermalModel
 
@@ -44,6 +46,13 @@ class EdgeTerms:
     area: float  # Σ weights: the group's surface area
     axisymmetric: bool
     conditions: tuple[Condition, ...]  # those of its conditions through which heat flows
+
+    def with_conditions(self, conditions: tuple[Condition, ...]) -> EdgeTerms:
+        """The same edge terms for other conditions (the exchange matrix kept if built)."""
+        terms = dataclasses.replace(self, conditions=conditions)
+        if "exchange_matrix" in self.__dict__:
+            terms.__dict__["exchange_matrix"] = self.exchange_matrix
+        return terms
 
     @cached_property
     def exchange_matrix(self) -> sp.csr_matrix:
@@ -117,6 +126,32 @@ class ConductionSystem:
     @property
     def axisymmetric(self) -> bool:
         return self.model.section.axisymmetric
+
+    def with_boundaries(self, boundaries) -> ConductionSystem:
+        """The same assembled system under other boundary conditions of the same pattern (the
+        same edge groups exchanging, holding or blocking heat): the matrices are shared, so a
+        loop over coefficients, ambients or schedules assembles once.
+
+        Raises
+        ------
+        ModelError
+            If ``boundaries`` are invalid for the model or change the pattern (a group that
+            starts or stops carrying heat, or holding its temperature).
+        """
+        model = dataclasses.replace(self.model, boundaries=boundaries)
+        flowing = {
+            name: tuple(c for c in group if c.flows) for name, group in model.boundaries.items()
+        }
+        flowing = {name: group for name, group in flowing.items() if group}
+        if set(flowing) != set(self.edges) or set(model.fixed) != set(self.fixed_dofs):
+            raise ModelError(
+                "with_boundaries needs the same edge groups carrying heat "
+                f"{sorted(self.edges)} and holding their temperature {sorted(self.fixed_dofs)}; "
+                f"got {sorted(flowing)} and {sorted(model.fixed)}: assemble the new model",
+                argument="boundaries",
+            )
+        edges = {name: edge.with_conditions(flowing[name]) for name, edge in self.edges.items()}
+        return dataclasses.replace(self, model=model, edges=edges)
 
     def flowing(self):
         """Every (edge terms, condition) pair through which heat flows, in group order."""

@@ -64,7 +64,8 @@ def solve(
     ----------
     model : ThermalModel or ConductionSystem
         The problem, or its assembled system (``fem.assemble(model)``): a loop that changes
-        only coefficients (schedules of h, ambient, fluxes) then does not assemble again.
+        only coefficients (h, ambients, fluxes, their schedules) gives each run
+        ``system.with_boundaries(...)`` and does not assemble again.
     end_time : float
         Duration in s; > 0. With ``stop`` it is the longest the run may take.
     method : str

@@ -22,7 +22,8 @@ def check_length(value: object, what: str) -> float:
     if not isinstance(value, int | float | np.floating | np.integer) or not (
         math.isfinite(value) and value > 0
     ):
-        raise GeometryError(f"{what} must be a finite length > 0 m, got {value!r}")
+        shown = f"{value!r} m" if isinstance(value, int | float) else repr(value)
+        raise GeometryError(f"{what} must be a finite length > 0 m, got {shown}")
     return float(value)
 
 

@@ -29,16 +29,22 @@ def check_mesh_options(
     ``refine`` groups exist and the estimated triangle count are checked when meshing.
     """
     if not isinstance(size, int | float | np.floating) or not (math.isfinite(size) and size > 0):
-        raise GeometryError(f"mesh size must be a finite length > 0 m, got {size!r}")
+        raise GeometryError(
+            f"mesh size must be a finite length > 0 m, got {size!r}", argument="size"
+        )
     if size > shape.size:
         raise GeometryError(
             f"mesh size {size} m is larger than the section ({shape.size:.6g} m); "
-            "choose a size below the section's smallest feature"
+            "choose a size below the section's smallest feature",
+            argument="size",
         )
     if order not in (1, 2):
-        raise GeometryError(f"element order must be 1 or 2, got {order!r}")
+        raise GeometryError(f"element order must be 1 or 2, got {order!r}", argument="order")
     if not isinstance(max_elements, int) or max_elements < 1:
-        raise GeometryError(f"max_elements must be a whole number >= 1, got {max_elements!r}")
+        raise GeometryError(
+            f"max_elements must be a whole number >= 1, got {max_elements!r}",
+            argument="max_elements",
+        )
     if not isinstance(curvature_elements, int) or curvature_elements < 0:
         raise GeometryError(
             f"curvature_elements must be a whole number >= 0, got {curvature_elements!r}"

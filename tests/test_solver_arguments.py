@@ -150,3 +150,36 @@ def test_model_errors_keep_their_argument_across_processes():
     copy = pickle.loads(pickle.dumps(refusal.value))
     assert copy.argument == "end_time"
     assert str(copy) == str(refusal.value)
+
+
+def test_a_sweep_over_coefficients_assembles_once(monkeypatch):
+    """Runs on one assembled system under other coefficients equal runs of freshly built
+    models: the conditions, not the matrices, carry h and the ambient."""
+    base = quench_model(500.0)
+    system = assemble(base)
+    fresh = {h: solve(quench_model(h), 300.0, time_step=2.0) for h in (200.0, 1500.0)}
+
+    def refuse(_model):
+        raise AssertionError("the sweep assembled again")
+
+    monkeypatch.setattr(fem.transient, "assemble", refuse)
+    for h, reference in fresh.items():
+        oil = Convection(heat_transfer_coefficient=h, ambient=60.0)
+        boundaries = {"symmetry": Insulated("symmetry"), "right": oil, "top": oil}
+        swept = solve(system.with_boundaries(boundaries), 300.0, time_step=2.0)
+        np.testing.assert_allclose(swept.mean, reference.mean, rtol=1e-12, atol=1e-9)
+        np.testing.assert_allclose(
+            swept.probes["core"], reference.probes["core"], rtol=1e-12, atol=1e-9
+        )
+    # h differs by 7.5x, so a swept run that kept the first coefficients would fail above: the
+    # two references themselves are tens of kelvin apart at the end
+    assert abs(fresh[200.0].mean[-1] - fresh[1500.0].mean[-1]) > 10.0
+
+
+def test_a_system_refuses_conditions_of_another_pattern():
+    system = assemble(quench_model())
+    oil = Convection(heat_transfer_coefficient=500.0, ambient=60.0)
+    held = fem.FixedTemperature(60.0)
+    with pytest.raises(ModelError, match="assemble the new model") as error:
+        system.with_boundaries({"symmetry": Insulated("symmetry"), "right": oil, "top": held})
+    assert error.value.argument == "boundaries"

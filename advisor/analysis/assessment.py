@@ -341,11 +341,27 @@ def check_request(
     )
 
 
-def _check_arguments(lumped, drive, target, tolerance, quantity) -> None:
+def check_options(
+    *, target: float | None = None, tolerance: float = 0.05, quantity: str = "slowest"
+) -> None:
+    """Refuse what :func:`assess` refuses of its options without a model (a case file checks
+    them before meshing); :func:`check_request` adds what needs the model."""
     if quantity not in QUANTITIES:
-        raise AdvisorError(f"quantity must be one of {QUANTITIES}, got {quantity!r}")
+        raise AdvisorError(
+            f"quantity must be one of {QUANTITIES}, got {quantity!r}", argument="quantity"
+        )
     if not (isinstance(tolerance, int | float) and 0 < tolerance < 1):
-        raise AdvisorError(f"tolerance must be a fraction in (0, 1), got {tolerance!r}")
+        raise AdvisorError(
+            f"tolerance must be a fraction in (0, 1), got {tolerance!r}", argument="tolerance"
+        )
+    if target is None and quantity == "time_to_target":
+        raise AdvisorError(
+            "quantity 'time_to_target' needs a target temperature", argument="target"
+        )
+
+
+def _check_arguments(lumped, drive, target, tolerance, quantity) -> None:
+    check_options(target=target, tolerance=tolerance, quantity=quantity)
     if abs(drive) <= 1e-9 * max(abs(lumped.initial_temperature), 1.0):
         raise AdvisorError(
             f"the initial temperature equals the lumped equilibrium ({lumped.equilibrium:.6g} "
@@ -358,8 +374,6 @@ def _check_arguments(lumped, drive, target, tolerance, quantity) -> None:
                 f"target must be a temperature strictly between the initial temperature and "
                 f"where the part is heading, ({low:.6g}, {high:.6g}) degC, got {target!r}"
             )
-    elif quantity == "time_to_target":
-        raise AdvisorError("quantity 'time_to_target' needs a target temperature")
 
 
 def _largest_error(quantity, model, field_history, lumped, times, drive) -> LumpedError:

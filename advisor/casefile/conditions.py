@@ -7,8 +7,9 @@ from __future__ import annotations
 
 import math
 
-from fem import FixedTemperature, ModelError, Periodic, Sinusoid
+from fem import ModelError, Periodic, Sinusoid
 from fem.conditions import conditions as checked_combination
+from fem.temperatures import check_temperature
 from geometries import AXIS_GROUP
 
 from .reader import MISSING, Table, suggest
@@ -123,11 +124,10 @@ def _time_table(spec: Table, kind: str):
 
 
 def temperature(table: Table, name: str, default=MISSING):
-    """A temperature in °C, checked by the library's rule for a temperature (that of a fixed
-    surface temperature: above absolute zero)."""
+    """A temperature in °C, checked by the library's rule for a temperature."""
     value = table.get(name, "temperature", default)
     if value is not None and value is not default:
-        build(table, FixedTemperature, value, keys={"temperature": name}, default=name)
+        build(table, check_temperature, value, name, default=name)
     return value
 
 

@@ -9,12 +9,13 @@ from __future__ import annotations
 
 import fem
 from fem import StopWhen
+from fem.model import check_element_order
 
-from ..analysis.assessment import QUANTITIES
+from ..analysis.assessment import check_options
 from .conditions import temperature
 from .reader import Table
 from .schema import OUTPUTS, RUN_KEYS, RUN_QUANTITIES
-from .validation import LIBRARY_ERRORS, raise_at
+from .validation import LIBRARY_ERRORS, build, raise_at
 
 
 def read_run(root: Table, parts: dict) -> tuple[float, dict, int]:
@@ -42,8 +43,7 @@ def read_run(root: Table, parts: dict) -> tuple[float, dict, int]:
         except LIBRARY_ERRORS as error:
             run.fail("method", str(error))
     element_order = run.get("element_order", "number", 1)
-    if element_order not in (1, 2):  # the model checks it only once there is a mesh
-        run.fail("element_order", f"must be 1 or 2, got {element_order}")
+    build(run, check_element_order, element_order, default="element_order")
     run.done()
     return end_time, options, int(element_order)
 
@@ -57,11 +57,9 @@ def read_advisor(root: Table) -> dict:
     target = temperature(advisor, "target", None)
     if target is not None:
         options["target"] = target
-    tolerance = advisor.get("tolerance", "number", 0.05)
-    if not 0 < tolerance < 1:  # the assessment checks it only once there is a model
-        advisor.fail("tolerance", f"must be a fraction in (0, 1), got {tolerance:g}")
-    options["tolerance"] = tolerance
-    options["quantity"] = advisor.text("quantity", "slowest", QUANTITIES)
+    options["tolerance"] = advisor.get("tolerance", "number", 0.05)
+    options["quantity"] = advisor.text("quantity", "slowest")
+    build(advisor, check_options, **options, default="tolerance")
     advisor.done()
     return options
 

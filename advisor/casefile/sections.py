@@ -80,7 +80,7 @@ def read_section(table: Table) -> SectionPlan:
     try:  # the mesher's own rules, before the geometry is built
         check_mesh_options(shape, **mesh_options)
     except GeometryError as error:
-        table.fail(_MESH_KEYS.get(str(error).split(" ")[0], "mesh_size"), str(error))
+        raise_at(table, error, _MESH_KEYS, "mesh_size")
     try:
         groups = frozenset(section.boundary_groups())  # builds the geometry, does not mesh it
     except GeometryError as error:
@@ -91,8 +91,8 @@ def read_section(table: Table) -> SectionPlan:
     return SectionPlan(section, None, mesh_options, groups, frozenset(_regions(shape)))
 
 
-# The first word of the mesher's messages → the key it concerns.
-_MESH_KEYS = {"mesh": "mesh_size", "element": "order", "max_elements": "max_elements"}
+# The mesher's arguments → the keys of [section].
+_MESH_KEYS = {"size": "mesh_size", "order": "order", "max_elements": "max_elements"}
 
 
 def _mesh_options(table: Table) -> dict:

@@ -16,7 +16,8 @@ from typing import NoReturn
 from fem import ModelError
 from geometries import GeometryError
 
-from .reader import Table, suggest
+from ..errors import AdvisorError
+from .reader import CaseError, Table, suggest
 
 LIBRARY_ERRORS = (ModelError, GeometryError)
 
@@ -59,7 +60,9 @@ def build(
     """
     try:
         return constructor(*args, **kwargs)
-    except LIBRARY_ERRORS as error:
+    except CaseError:  # already at its key (a CaseError is an AdvisorError too)
+        raise
+    except (*LIBRARY_ERRORS, AdvisorError) as error:  # the analysis checks its options too
         raise_at(table, error, keys or {}, default, getattr(constructor, "__name__", ""))
 
 
@@ -95,7 +98,8 @@ def _trimmed(message: str, owner: str, argument: str | None, key: str | None) ->
     """``message`` without the subject the key path already names (the class, and the argument
     when it is this key's), in a case file's words, with a suggestion for a choice."""
     last = key.split(".")[-1] if key else None
-    for name in (owner, argument, argument and last):
+    spoken = [k.replace(".", " ").replace("_", " ") for k in (key, last) if k]  # "mesh size"
+    for name in (owner, argument, argument and last, *spoken):
         if name and message.startswith(name + " "):
             message = message[len(name) + 1 :]
     for pattern, replacement in _WORDING:

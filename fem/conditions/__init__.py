@@ -2,8 +2,12 @@
 
 Heat flows are positive *into* the part. Every coefficient, ambient, flux and temperature may be
 a number or a schedule of time (see :mod:`fem.schedules`). ``KINDS`` maps the name case files
-use to the class.
+use to the class. Every module of this package is imported here, so a new kind registers by
+being a module with a ``@register`` class: no list to extend.
 """
+
+from importlib import import_module
+from pkgutil import iter_modules
 
 from .base import KINDS, Condition, Linearised, SurfaceEdge, conditions, register
 
@@ -16,6 +20,9 @@ from .fixed import FixedTemperature
 from .insulated import Insulated
 
 # isort: on
+
+for _module in iter_modules(__path__):
+    import_module(f".{_module.name}", __name__)
 
 BoundaryCondition = Condition | tuple[Condition, ...]
 

@@ -26,13 +26,13 @@ import scipy.sparse as sp
 
 from ..errors import ModelError
 from ..schedules import Schedule, as_schedule, schedule_data
-from ..temperatures import ABSOLUTE_ZERO
+from ..temperatures import ABSOLUTE_ZERO, check_temperature
 
 KINDS: dict[str, type[Condition]] = {}  # name in case files → class
 
 
 def register(kind: type[Condition]) -> type[Condition]:
-    """Class decorator: list ``kind`` under its ``kind.name`` (messages list the kinds from here)."""
+    """Class decorator: list ``kind`` under its ``kind.name`` (messages list kinds from here)."""
     KINDS[kind.name] = kind
     return kind
 
@@ -151,8 +151,17 @@ class Condition:
     # -- one temperature for the whole part -------------------------------------------------
     def linearised(self, temperature: float, time: float) -> Linearised:
         """The secant coefficient at surface ``temperature`` °C and ``time`` s: exact heat flow
-        there (see :class:`Linearised`)."""
-        return Linearised(0.0)
+        there (see :class:`Linearised`). A linear condition's follows from its linear part;
+        a nonlinear kind must state its own."""
+        if not self.linear:
+            raise NotImplementedError(
+                f"{type(self).__name__} is nonlinear: it must define linearised() so the lumped "
+                "model, the Biot numbers and the slowest mode see its heat flow"
+            )
+        coefficient, supplied = self.exchange_coefficient(time), self.supplied(time)
+        if coefficient:
+            return Linearised(coefficient, supplied / coefficient)
+        return Linearised(0.0, supplied=supplied)
 
     def lumped_heat(self, temperature: float, time: float, coefficient_scale: float = 1.0):
         """Heat into a part at one ``temperature`` °C, W/m², with the exchange coefficient
@@ -212,9 +221,12 @@ def schedule_field(value, what: str, argument: str) -> Schedule:
 def temperature_field(value, what: str, argument: str) -> Schedule:
     """``value`` as a schedule of temperature, °C, above absolute zero at all times."""
     schedule = schedule_field(value, what, argument)
-    if schedule.bounds()[0] <= ABSOLUTE_ZERO:
+    if schedule.is_constant:
+        check_temperature(schedule(0.0), what, argument)
+    elif schedule.bounds()[0] <= ABSOLUTE_ZERO:
         raise ModelError(
-            f"{what} must be a temperature above {ABSOLUTE_ZERO:g} degC, got {value!r}",
+            f"{what} must be a temperature above {ABSOLUTE_ZERO:g} degC at all times, "
+            f"got {value!r}",
             argument=argument,
         )
     return schedule

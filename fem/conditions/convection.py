@@ -6,7 +6,7 @@ from dataclasses import dataclass
 
 from ..errors import ModelError
 from ..schedules import Schedule, schedule_text
-from .base import Condition, Linearised, register, schedule_field, temperature_field
+from .base import Condition, register, schedule_field, temperature_field
 
 
 @register
@@ -55,9 +55,6 @@ class Convection(Condition):
 
     def supplied(self, time: float) -> float:
         return self.heat_transfer_coefficient(time) * self.ambient(time)
-
-    def linearised(self, temperature: float, time: float) -> Linearised:
-        return Linearised(self.heat_transfer_coefficient(time), self.ambient(time))
 
     def describe(self, end_time: float) -> str:
         h = schedule_text(self.heat_transfer_coefficient, "W/(m²·K)", end_time)

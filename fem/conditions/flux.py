@@ -5,7 +5,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from ..schedules import Schedule, schedule_text
-from .base import Condition, Linearised, register, schedule_field
+from .base import Condition, register, schedule_field
 
 
 @register
@@ -25,9 +25,6 @@ class HeatFlux(Condition):
 
     def supplied(self, time: float) -> float:
         return self.flux(time)
-
-    def linearised(self, temperature: float, time: float) -> Linearised:
-        return Linearised(0.0, supplied=self.flux(time))
 
     def lumped_closed_form(self) -> bool:
         return False  # it moves the lumped equilibrium away from the ambient
