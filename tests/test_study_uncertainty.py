@@ -104,24 +104,43 @@ def test_the_coefficient_matters_most_by_rank_correlation():
     assert 0.1 < density.value < 0.6 and density.p_value < 1e-6
 
 
-def test_first_order_sobol_indices_match_the_variance_shares():
-    pytest.importorskip("SALib", reason="Sobol indices need the optional 'uncertainty' extra")
-    # t = c·ρ·(1/h), ρ and h independent: S_h = E[ρ]²·Var(1/h)/Var(t) and
-    # S_ρ = Var(ρ)·E[1/h]²/Var(t), Var(t) = E[ρ²]·E[1/h²] − E[ρ]²·E[1/h]² (c cancels).
+def variance_shares() -> dict[str, float]:
+    """First-order Sobol indices of t = c·ρ·(1/h), ρ and h independent and uniform:
+    S_h = E[ρ]²·Var(1/h)/Var(t), S_ρ = Var(ρ)·E[1/h]²/Var(t),
+    Var(t) = E[ρ²]·E[1/h²] − E[ρ]²·E[1/h]² (c cancels)."""
     inverse_mean = math.log(HIGH / LOW) / (HIGH - LOW)
     inverse_square = 1.0 / (LOW * HIGH)
     rho_low, rho_high = 0.9 * DENSITY, 1.1 * DENSITY
     rho_mean = DENSITY
     rho_square = (rho_high**3 - rho_low**3) / (3 * (rho_high - rho_low))
     total = rho_square * inverse_square - rho_mean**2 * inverse_mean**2
-    exact = {
+    return {
         "boundaries.quenched.convection.coefficient": rho_mean**2
         * (inverse_square - inverse_mean**2)
         / total,
         "material.density": (rho_square - rho_mean**2) * inverse_mean**2 / total,
     }
+
+
+def test_first_order_sobol_indices_match_the_variance_shares():
+    pytest.importorskip("SALib", reason="Sobol indices need the optional 'uncertainty' extra")
+    exact = variance_shares()
     found = {i.input: i.value for i in sobol_influence(two_input_study())}
-    # RBD-FAST with 4000 samples and 10 harmonics: bias and noise a few hundredths (SALib docs;
-    # Tarantola, Gatelli & Mara 2006, from memory).
+    # RBD-FAST with 4000 samples and 10 harmonics: bias and noise about 1e-2 (Tarantola,
+    # Gatelli & Mara 2006, from memory). Measured: 1e-4 (h) and 3e-3 (ρ).
     for name, value in exact.items():
-        assert found[name] == pytest.approx(value, abs=0.04), (name, found[name], value)
+        assert found[name] == pytest.approx(value, abs=0.02), (name, found[name], value)
+
+
+def test_a_polynomial_chaos_surrogate_gives_the_same_variance_shares():
+    pytest.importorskip("chaospy", reason="the surrogate needs the optional 'uncertainty' extra")
+    from advisor.studies.uncertainty import chaos_influence
+
+    exact = variance_shares()
+    found = {i.input: i.value for i in chaos_influence(two_input_study(samples=500), order=4)}
+    # A degree-4 fit of 1/h on ±25 % leaves a relative residual of about (0.25/1)^5 ≈ 1e-3
+    # (Taylor remainder); the fitted shares are then accurate to about 1e-3, the sampled
+    # range (narrower than the true one by about a 500th of its width) adding about 1e-3.
+    # Measured: 2.3e-4 and 2.1e-4.
+    for name, value in exact.items():
+        assert found[name] == pytest.approx(value, abs=3e-3), (name, found[name], value)
