@@ -119,3 +119,25 @@ def test_a_convergence_report_renders(tmp_path):
     assert STUDY_HEADINGS["convergence"] in dom.headings
     assert "Use a mesh size of 2 mm." in " ".join(dom.text)
     assert len(dom.images) == 1
+
+
+@pytest.mark.parametrize("sensitivity", ["sobol", "chaos"])
+def test_variance_shares_on_request(sampled, sensitivity):
+    pytest.importorskip(
+        {"sobol": "SALib", "chaos": "chaospy"}[sensitivity],
+        reason="Sobol indices need the optional 'uncertainty' extra",
+    )
+    _, table, _, _ = sampled
+    findings = analyse_study(table, sensitivity=sensitivity)
+    found = findings.influences["time_to_target_slowest_s"]
+    # t depends on h alone here (the density column is noise): its share is nearly all.
+    assert found[0].input == "boundaries.quenched.convection.coefficient"
+    assert found[0].value > 0.9 and "sobol" in found[0].method
+    assert abs(found[1].value) < 0.1
+
+
+def test_an_unknown_sensitivity_is_refused(sampled):
+    from advisor.errors import AdvisorError
+
+    with pytest.raises(AdvisorError, match="sensitivity must be one of"):
+        analyse_study(sampled[1], sensitivity="variance")

@@ -60,7 +60,8 @@ STUDY_PLOTS = {
     "influence": (
         "Which input matters most",
         "Spearman's rank correlation of each varied input with each answer (negative: the "
-        "answer falls as the input rises).",
+        "answer falls as the input rises), or on request its first-order Sobol index (the "
+        "share of the answer's variance it explains alone).",
     ),
     "convergence": (
         "Grid convergence",

@@ -81,6 +81,7 @@ def analyse_study(
     errors: Mapping[str, str] = DEFAULT_ERRORS,
     answers: Sequence[str] = DEFAULT_ANSWERS,
     sampled: bool | None = None,
+    sensitivity: str = "rank",
     status: str | None = "status",
 ) -> StudyFindings:
     """The findings of a study's table: a validity map over ``variable`` (when it and the
@@ -101,11 +102,24 @@ def analyse_study(
         Answer columns for the spreads and influences.
     sampled : bool, optional
         Whether the inputs were sampled; guessed from the table when None.
+    sensitivity : str
+        How inputs are ranked: ``"rank"`` (Spearman's rank correlation, scipy), ``"sobol"``
+        (first-order Sobol indices by RBD-FAST, SALib) or ``"chaos"`` (first-order Sobol
+        indices of a polynomial-chaos surrogate, chaospy); the last two need the
+        ``uncertainty`` extra.
     status : str or None
         The status column.
     """
-    from .uncertainty import rank_influence, spread
+    from . import uncertainty
     from .validity import design_rule, validity_map
+
+    rankers = {
+        "rank": uncertainty.rank_influence,
+        "sobol": uncertainty.sobol_influence,
+        "chaos": uncertainty.chaos_influence,
+    }
+    if sensitivity not in rankers:
+        raise AdvisorError(f"sensitivity must be one of {sorted(rankers)}; got {sensitivity!r}")
 
     inputs = varied_inputs(table, (*answers, *errors.values()))
     failed = 0
@@ -123,10 +137,13 @@ def analyse_study(
             if answer not in table.columns:
                 continue
             try:
-                spreads.append(spread(table, answer, status=status))
-                influences[answer] = tuple(rank_influence(table, answer, inputs, status=status))
+                found = uncertainty.spread(table, answer, status=status)
             except AdvisorError:
                 continue  # too few finished cases with this answer: left out of the report
+            spreads.append(found)
+            if inputs:
+                ranker = rankers[sensitivity]
+                influences[answer] = tuple(ranker(table, answer, inputs, status=status))
     return StudyFindings(title, len(table), failed, vmap, rules, tuple(spreads), influences)
 
 
@@ -140,7 +157,10 @@ def _summary(findings: StudyFindings) -> list:
         lines.append(f"{s.column}: {values} (mean {s.mean:.4g}, {s.count} cases)")
     for answer, found in findings.influences.items():
         if found:
-            lines.append(f"{answer} depends most on {found[0].input} (ρ = {found[0].value:.2f})")
+            lines.append(
+                f"{answer} depends most on {found[0].input} ({found[0].method} "
+                f"{found[0].value:.2f})"
+            )
     if findings.recommendation:
         lines.append(findings.recommendation)
     return [Facts(tuple(facts)), Bullets(tuple(lines) or ("No conclusions could be drawn.",))]
@@ -211,13 +231,19 @@ def _influence_blocks(findings: StudyFindings) -> list:
     from ..writers.report_content import Picture, Table
 
     rows = tuple(
-        (answer, i.input, f"{i.value:.3f}", "" if i.p_value is None else f"{i.p_value:.2g}")
+        (
+            answer,
+            i.input,
+            i.method,
+            f"{i.value:.3f}",
+            "" if i.p_value is None else f"{i.p_value:.2g}",
+        )
         for answer, found in findings.influences.items()
         for i in found
     )
     return [
         Picture("plots/influence.png", *_plot_words("influence")),
-        Table(("answer", "input", "rank correlation", "p-value"), rows),
+        Table(("answer", "input", "measure", "value", "p-value"), rows),
     ]
 
 
