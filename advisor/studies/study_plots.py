@@ -14,6 +14,8 @@ from pathlib import Path
 
 import numpy as np
 from matplotlib.figure import Figure
+from matplotlib.patches import Patch
+from matplotlib.ticker import FuncFormatter, NullFormatter
 
 from ..writers.plots import (
     BAND,
@@ -88,6 +90,14 @@ def _tidy(axes) -> None:
     axes.spines[["top", "right"]].set_visible(False)
 
 
+def _plain_log_ticks(axis, low: float, high: float) -> None:
+    """Log-axis labels as plain numbers (0.1, 20, 300); minor ticks labelled too when the
+    range is under a decade, so that a narrow axis still carries numbers."""
+    plain = FuncFormatter(lambda value, _: f"{value:g}")
+    axis.set_major_formatter(plain)
+    axis.set_minor_formatter(plain if high < 10 * low else NullFormatter())
+
+
 def validity_figure(vmap: ValidityMap, rules: Sequence[DesignRule] = ()) -> Figure:
     """Lumped error against the map's input (log–log), tolerance lines, rating bands of the
     classical model and the design limits found."""
@@ -125,9 +135,12 @@ def validity_figure(vmap: ValidityMap, rules: Sequence[DesignRule] = ()) -> Figu
     axes.set_xlim(x[0], x[-1])
     axes.set_xlabel(axis_label(vmap.variable))
     axes.set_ylabel(f"largest lumped error, {vmap.subject} (%)")
+    _plain_log_ticks(axes.xaxis, x[0], x[-1])
+    errors = np.concatenate([100 * e for e in vmap.errors.values()] + [[tolerance]])
+    _plain_log_ticks(axes.yaxis, float(np.min(errors)), float(np.max(errors)))
     handles, labels = axes.get_legend_handles_labels()
     for rated, tint in REGION_TINTS.items():
-        handles.append(axes.fill_between([], [], color=tint, lw=0))
+        handles.append(Patch(facecolor=tint, edgecolor="#a8a8a8", lw=0.5))
         labels.append(f"{shaded} {rated}")
     axes.legend(handles, labels, fontsize=8, frameon=False, ncols=2, loc="upper left")
     axes.set_title(f"Where the lumped estimate holds ({vmap.subject})", fontsize=10, loc="left")

@@ -125,14 +125,15 @@ def analyse_study(
     failed = 0
     if status is not None and status in table.columns:
         failed = int(table[status].astype(str).str.lower().isin(FAILED_STATUSES).sum())
-    if variable is None and len(inputs) == 1:
-        variable = inputs[0]
+    is_sampled = sampled if sampled is not None else _looks_sampled(table, inputs)
+    if variable is None and len(inputs) == 1 and not is_sampled:
+        variable = inputs[0]  # a one-input sweep: its map is the study's point
     vmap, rules = None, ()
     if variable is not None and all(c in table.columns for c in errors.values()):
         vmap = validity_map(table, variable, errors=errors, tolerance=tolerance, status=status)
         rules = tuple(design_rule(vmap, model) for model in vmap.errors)
     spreads, influences = [], {}
-    if sampled if sampled is not None else _looks_sampled(table, inputs):
+    if is_sampled:
         for answer in answers:
             if answer not in table.columns:
                 continue
@@ -177,7 +178,7 @@ def _validity_blocks(findings: StudyFindings) -> list:
     rows = tuple(
         (quantity_text(vmap.variable, float(x)),)
         + tuple(f"{100 * vmap.errors[m][k]:.3g} % ({vmap.ratings[m][k]})" for m in vmap.errors)
-        for k, x in enumerate(vmap.values)
+        for k, x in enumerate(vmap.values[:MAX_TABLE_ROWS])
     )
     blocks.append(
         Table(("input", *(f"{m} error" for m in vmap.errors)), rows, "Largest error per case")
