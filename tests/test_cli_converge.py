@@ -85,6 +85,34 @@ def test_the_files_say_what_the_grids_give(converged):
     assert "Is the mesh fine enough?" in page and "data:image/png;base64," in page
 
 
+def test_steps_coarsen_with_the_mesh(converged):
+    _, out, case = converged
+    assert (
+        main(
+            [
+                "-q",
+                "converge",
+                str(case),
+                "--finest",
+                "2 mm",
+                "--ratio",
+                "2",
+                "--steps",
+                "--out",
+                str(out.parent / "steps"),
+            ]
+        )
+        == 0
+    )
+    with (out.parent / "steps" / "converge.csv").open(encoding="utf-8") as handle:
+        steps = [float(r["time_step_s"]) for r in csv.DictReader(handle)]
+    # The starter's fixed step of 1 s on the finest mesh, asked doubled with each coarsening;
+    # the solver takes the largest step not above the one asked that divides the output
+    # interval (so 4 s may become 3 s).
+    assert steps[:2] == pytest.approx([1.0, 2.0], rel=1e-12)
+    assert 2.0 < steps[2] <= 4.0
+
+
 def test_an_existing_folder_is_kept_and_bad_options_refused(converged, capsys):
     _, out, case = converged
     assert main(["converge", str(case), "--out", str(out)]) == 2

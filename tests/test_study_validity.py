@@ -126,6 +126,7 @@ def test_bisection_with_one_more_case_at_a_time_converges_on_the_root(shape_tabl
     assert len(cases) == len(runs) <= 40
     assert refined.bracket[0] <= exact <= refined.bracket[1]
     assert abs(refined.limit / exact - 1) < 1e-6  # the final bracket's width
+    assert f"up to Bi = {refined.limit:.3g} for this section." in refined.text
 
 
 def test_ratings_and_regions_follow_the_tolerance(shape_table):

@@ -113,10 +113,10 @@ def _write(out: Path, title: str, runs, series, text: str) -> list[Path]:
     from ..writers.atomic import write_text
 
     out.mkdir(parents=True, exist_ok=True)
-    columns = ["mesh_size_m", "representative_size_m", "triangles", "unknowns"]
+    columns = ["mesh_size_m", "representative_size_m", "triangles", "unknowns", "time_step_s"]
     answers = list(runs[0].answers)
     rows = [
-        [r.mesh_size, r.representative_size, r.triangles, r.unknowns]
+        [r.mesh_size, r.representative_size, r.triangles, r.unknowns, r.time_step]
         + [r.answers[a] for a in answers]
         + [r.wall_seconds]
         for r in runs

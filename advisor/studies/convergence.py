@@ -255,6 +255,8 @@ class GridRun:
     representative_size : float
         h = sqrt(section area / triangles), m (Celik et al. 2008, eq. 1).
     triangles, unknowns : int
+    time_step : float
+        The run's last full time step, s.
     answers : dict of str to float
         ``time_to_target_slowest_s`` (NaN when there is no target or it is not reached) and
         ``peak_difference_K``.
@@ -265,6 +267,7 @@ class GridRun:
     representative_size: float
     triangles: int
     unknowns: int
+    time_step: float
     answers: dict[str, float]
     wall_seconds: float
 
@@ -345,6 +348,7 @@ def _grid_run(size: float, results) -> GridRun:
         math.sqrt(section.facts.area / triangles),
         triangles,
         int(solution.stats.unknowns),
+        float(solution.stats.time_step),
         answers,
         float(results.wall_seconds),
     )

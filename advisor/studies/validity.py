@@ -188,6 +188,8 @@ class DesignRule:
         ``"nowhere"`` (above it already at the smallest value).
     text : str
         The rule in words.
+    subject, where : str
+        What the error judges and where the rule holds, in words (they make ``text``).
     """
 
     variable: str
@@ -197,6 +199,8 @@ class DesignRule:
     bracket: tuple[float, float]
     status: str
     text: str
+    subject: str = SUBJECTS["slowest"]
+    where: str = "for this section"
 
 
 def _log_interpolant(values: np.ndarray, errors: np.ndarray, interpolation: str):
@@ -272,6 +276,15 @@ def design_rule(
         bracket,
         status,
         _rule_text(vmap, model, level, limit, status, where),
+        vmap.subject,
+        where,
+    )
+
+
+def _limit_text(model, level, subject, variable, limit, where) -> str:
+    return (
+        f"The {model} lumped estimate is within {100 * level:.3g} % for {subject} up to "
+        f"{quantity_text(variable, limit)} {where}."
     )
 
 
@@ -279,7 +292,7 @@ def _rule_text(vmap, model, level, limit, status, where) -> str:
     lead = f"The {model} lumped estimate is within {100 * level:.3g} % for {vmap.subject}"
     low, high = float(vmap.values[0]), float(vmap.values[-1])
     if status == "limit":
-        return f"{lead} up to {quantity_text(vmap.variable, limit)} {where}."
+        return _limit_text(model, level, vmap.subject, vmap.variable, limit, where)
     if status == "everywhere":
         span = f"{quantity_text(vmap.variable, low)} to {quantity_text(vmap.variable, high)}"
         return f"{lead} over the whole range studied ({span}) {where}."
@@ -333,10 +346,7 @@ def refine_rule(
         else:
             upper, error_upper = middle, error
     limit = _within(lower, upper, error_lower, error_upper, rule.tolerance)
-    text = rule.text
-    if rule.limit is not None:
-        old = quantity_text(rule.variable, rule.limit)
-        text = text.replace(old, quantity_text(rule.variable, limit))
+    text = _limit_text(rule.model, rule.tolerance, rule.subject, rule.variable, limit, rule.where)
     return replace(rule, limit=limit, bracket=(lower, upper), text=text), cases
 
 
