@@ -92,3 +92,45 @@ def test_bad_grids_are_refused():
         grid_convergence([1.0, 1.0, 2.0], [1.0, 2.0, 3.0])
     with pytest.raises(AdvisorError, match="change between grids is zero"):
         grid_convergence([1.0, 2.0, 4.0], [1.0, 1.1, 1.1])
+
+
+def _runs(sizes, time, peak):
+    from advisor.studies.mesh_convergence import GridRun
+
+    return [
+        GridRun(
+            2 * h, h, 1000, 600, 1.0, {"time_to_target_slowest_s": t, "peak_difference_K": p}, 0.1
+        )
+        for h, t, p in zip(sizes, time, peak, strict=True)
+    ]
+
+
+def test_the_mesh_every_answer_accepts_is_recommended():
+    from advisor.studies.mesh_convergence import mesh_recommendation
+
+    # Manufactured: time = 300 + 2e5·h² s, peak = 80 − 1e5·h² K on h = 1, 2, 4, 8 mm.
+    sizes = [1e-3, 2e-3, 4e-3, 8e-3]
+    runs = _runs(sizes, [300 + 2e5 * h**2 for h in sizes], [80 - 1e5 * h**2 for h in sizes])
+    series, chosen, text = mesh_recommendation(runs, threshold=0.01)
+    # GCI of the triple starting at h: 1.25·|φ(h) − φ(2h)|/|φ(h)|/3, computed here; the
+    # peak's is the larger: 1.25·0.3/79.9/3 = 0.16 % at 1 mm, 1.25·1.2/79.6/3 = 0.63 % at 2 mm.
+    assert series["peak_difference_K"][1].gci_fine == pytest.approx(1.25 * 1.2 / 79.6 / 3)
+    assert chosen is runs[1] and text.startswith("Use a mesh size of 4 mm")
+    _, chosen, text = mesh_recommendation(runs, threshold=0.004)  # only the finest triple
+    assert chosen is runs[0]
+    _, chosen, text = mesh_recommendation(runs, threshold=0.001)
+    assert chosen is None and "above 0.1 %" in text
+
+
+def test_meshes_too_alike_and_missing_answers_are_said():
+    from advisor.studies.mesh_convergence import mesh_recommendation
+
+    sizes = [1e-3, 1.2e-3, 1.44e-3]  # ratio 1.2, below Celik's 1.3
+    runs = _runs(sizes, [300 + 2e5 * h**2 for h in sizes], [80 - 1e5 * h**2 for h in sizes])
+    _, chosen, text = mesh_recommendation(runs)
+    assert chosen is None and "size ratio of only 1.2" in text
+    sizes = [1e-3, 2e-3, 4e-3]
+    runs = _runs(sizes, [math.nan] * 3, [80 - 1e5 * h**2 for h in sizes])
+    series, chosen, text = mesh_recommendation(runs, threshold=0.05)
+    assert list(series) == ["peak_difference_K"] and chosen is runs[0]
+    assert "time_to_target_slowest_s is missing" in text

@@ -60,7 +60,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 def execute(args: argparse.Namespace) -> int:
     from ..casefile.case import load_case
-    from ..studies.convergence import mesh_recommendation, mesh_sizes, run_grids
+    from ..studies.mesh_convergence import mesh_recommendation, mesh_sizes, run_grids
 
     if not 0 < args.threshold < 100:
         raise AdvisorError(f"--threshold is a percentage in (0, 100); got {args.threshold!r}")
