@@ -1,0 +1,1 @@
+"""Studies: many runs of one case, and what they conclude."""
