@@ -17,7 +17,7 @@ from matplotlib.figure import Figure
 from matplotlib.patches import Patch
 from matplotlib.ticker import FuncFormatter, NullFormatter
 
-from ..writers.plots import (
+from ..writers.plot_style import (
     BAND,
     CORRECTED,
     FORMATS,

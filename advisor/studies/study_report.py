@@ -149,7 +149,7 @@ def analyse_study(
 
 
 def _summary(findings: StudyFindings) -> list:
-    from ..writers.report_content import Bullets, Facts
+    from ..writers.report_document import Bullets, Facts
 
     facts = [("cases", str(findings.cases)), ("failed cases", str(findings.failed))]
     lines = [rule.text for rule in findings.rules]
@@ -168,7 +168,7 @@ def _summary(findings: StudyFindings) -> list:
 
 
 def _validity_blocks(findings: StudyFindings) -> list:
-    from ..writers.report_content import Callout, Picture, Table
+    from ..writers.report_document import Callout, Picture, Table
 
     vmap = findings.validity
     blocks = [
@@ -197,7 +197,7 @@ def _plot_words(stem: str) -> tuple[str, str]:
 
 
 def _spread_blocks(findings: StudyFindings) -> list:
-    from ..writers.report_content import Picture, Table
+    from ..writers.report_document import Picture, Table
 
     rows = tuple(
         (
@@ -229,7 +229,7 @@ def _spread_blocks(findings: StudyFindings) -> list:
 
 
 def _influence_blocks(findings: StudyFindings) -> list:
-    from ..writers.report_content import Picture, Table
+    from ..writers.report_document import Picture, Table
 
     rows = tuple(
         (
@@ -249,7 +249,7 @@ def _influence_blocks(findings: StudyFindings) -> list:
 
 
 def _convergence_blocks(findings: StudyFindings) -> list:
-    from ..writers.report_content import Paragraph, Picture, Table
+    from ..writers.report_document import Paragraph, Picture, Table
 
     rows = tuple(
         (
@@ -280,7 +280,7 @@ def _convergence_blocks(findings: StudyFindings) -> list:
 
 
 def _cases_table(table, status: str | None) -> list:
-    from ..writers.report_content import Paragraph, Table
+    from ..writers.report_document import Paragraph, Table
 
     shown = table.head(MAX_TABLE_ROWS)
     columns = tuple(str(c) for c in shown.columns)
@@ -325,7 +325,7 @@ def write_study_plots(findings: StudyFindings, folder: Path) -> list[Path]:
 
 def build_study_report(findings: StudyFindings, table=None, status: str | None = "status"):
     """The report's content (:class:`advisor.writers.report_content.Report`)."""
-    from ..writers.report_content import Callout, Part, Report
+    from ..writers.report_document import Callout, Part, Report
 
     parts = [Part(STUDY_HEADINGS["summary"], "summary", tuple(_summary(findings)))]
     if findings.validity is not None:
