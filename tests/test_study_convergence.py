@@ -132,5 +132,9 @@ def test_meshes_too_alike_and_missing_answers_are_said():
     sizes = [1e-3, 2e-3, 4e-3]
     runs = _runs(sizes, [math.nan] * 3, [80 - 1e5 * h**2 for h in sizes])
     series, chosen, text = mesh_recommendation(runs, threshold=0.05)
-    assert list(series) == ["peak_difference_K"] and chosen is runs[0]
+    # Exact order 2 and limit 80: the estimated errors 1.25·|φ_i − 80|/80 are 0.16, 0.63 and
+    # 2.5 %, so the coarsest mesh is good for 5 % and the middle one for 1 %.
+    assert list(series) == ["peak_difference_K"] and chosen is runs[2]
     assert "time_to_target_slowest_s is missing" in text
+    assert mesh_recommendation(runs, threshold=0.01)[1] is runs[1]
+    assert mesh_recommendation(runs, threshold=0.001)[1] is None
