@@ -213,3 +213,37 @@ def test_a_study_on_a_dask_cluster_gives_the_table_of_the_process_pool(tmp_path)
         on_address = sweep(case, GRID, map=cluster.scheduler_address, store=tmp_path / "dask")
     same_table(on_client, pooled)
     same_table(on_address, pooled)
+
+
+def test_draws_follow_the_documented_transforms():
+    """Latin-hypercube draws put one point in each of n equal slices of every input (McKay,
+    Beckman & Conover, Technometrics 21 (1979); from memory); each distribution maps the
+    same unit-cube points through its quantile function (scipy.stats, computed here)."""
+    from scipy import stats
+    from scipy.stats import qmc
+
+    from advisor.studies.spec import StudySpec
+
+    variations = (
+        parse_vary(f"{H_KEY}=uniform(300 W/(m^2*K), 500 W/(m^2*K))"),
+        parse_vary("material.conductivity=normal(40 W/(m*K), 0.2 W/(dm*K))"),  # 2 W/(m*K)
+        parse_vary("initial.temperature=triangular(800 degC, 850 degC, 860 degC)"),
+        parse_vary("material.density=lognormal(7850 kg/m^3, 0.02)"),
+        parse_vary("boundaries.quenched.convection.ambient=normal(60 degC, 5 K)"),
+    )
+    n, seed = 16, 5
+    spec = StudySpec(variations, sampling="latin-hypercube", samples=n, seed=seed)
+    cases = spec.overrides()
+    value = {k: np.array([float(c[k].split()[0]) for c in cases]) for k in cases[0]}
+    u_h = (value[H_KEY] - 300.0) / 200.0
+    assert sorted(np.floor(u_h * n).astype(int)) == list(range(n))
+    cube = qmc.LatinHypercube(d=5, rng=np.random.default_rng(seed)).random(n)
+    np.testing.assert_allclose(value[H_KEY], 300 + 200 * cube[:, 0], rtol=1e-15)
+    normal = stats.norm.ppf(cube[:, 1], loc=40.0, scale=2.0)
+    np.testing.assert_allclose(value["material.conductivity"], normal, rtol=1e-14)
+    triangle = stats.triang.ppf(cube[:, 2], 50.0 / 60.0, loc=800.0, scale=60.0)
+    np.testing.assert_allclose(value["initial.temperature"], triangle, rtol=1e-14)
+    lognormal = stats.lognorm.ppf(cube[:, 3], 0.02, scale=7850.0)
+    np.testing.assert_allclose(value["material.density"], lognormal, rtol=1e-12)
+    ambient = stats.norm.ppf(cube[:, 4], loc=60.0, scale=5.0)  # 5 K of spread is 5 degC
+    np.testing.assert_allclose(value["boundaries.quenched.convection.ambient"], ambient, rtol=1e-14)
