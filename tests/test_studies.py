@@ -246,4 +246,5 @@ def test_draws_follow_the_documented_transforms():
     lognormal = stats.lognorm.ppf(cube[:, 3], 0.02, scale=7850.0)
     np.testing.assert_allclose(value["material.density"], lognormal, rtol=1e-12)
     ambient = stats.norm.ppf(cube[:, 4], loc=60.0, scale=5.0)  # 5 K of spread is 5 degC
-    np.testing.assert_allclose(value["boundaries.quenched.convection.ambient"], ambient, rtol=1e-14)
+    given = value["boundaries.quenched.convection.ambient"]
+    np.testing.assert_allclose(given, ambient, rtol=1e-14)
