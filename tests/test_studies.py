@@ -95,15 +95,19 @@ def test_a_grid_on_two_processes_gives_the_table_of_a_serial_run(tmp_path):
 
 
 def test_a_failing_case_is_recorded_and_the_others_complete(tmp_path):
-    case = small_bar(tmp_path)
+    case = small_bar(tmp_path, "\n[outputs]\nanimation = false\nreport = false\nvtk = false\n")
     targets = ["200 degC", "20 degC", "300 degC"]  # 20 degC is below the oil: found at run time
     table = sweep(
         case,
         {"advisor.target": targets, "section.mesh_size": ["5 mm"]},
         map="serial",
         store=tmp_path / "study",
+        case_folders=True,
     )
     assert list(table["status"]) == ["done", "failed", "done"]
+    folders = sorted(p.name for p in (tmp_path / "study" / "cases").iterdir())
+    assert folders == ["case-00000", "case-00002"]  # results folders of the done cases
+    assert (tmp_path / "study" / "cases" / "case-00000" / "summary.json").is_file()
     assert "target" in table["error"][1] and "20" in table["error"][1]
     assert table["error"][0] == table["error"][2] == ""
     done = table[table["status"] == "done"]
@@ -137,7 +141,7 @@ def test_a_study_table_in_the_case_file_is_read_with_its_lines(tmp_path):
     # a case file with a [study] table still runs alone
     from advisor.casefile import load_case
 
-    assert load_case(small_bar(tmp_path, '\n[study]\nseed = 3\n')).title
+    assert load_case(small_bar(tmp_path, "\n[study]\nseed = 3\n")).title
 
 
 def _stored(path: Path) -> list[tuple]:
@@ -248,3 +252,25 @@ def test_draws_follow_the_documented_transforms():
     ambient = stats.norm.ppf(cube[:, 4], loc=60.0, scale=5.0)  # 5 K of spread is 5 degC
     given = value["boundaries.quenched.convection.ambient"]
     np.testing.assert_allclose(given, ambient, rtol=1e-14)
+
+
+@pytest.mark.parametrize("name", ["advisor.studies.study", "advisor.studies.tables"])
+def test_docstring_examples(name):
+    import doctest
+    import importlib
+
+    result = doctest.testmod(importlib.import_module(name), optionflags=doctest.ELLIPSIS)
+    assert result.attempted > 0, f"{name} has no examples"
+    assert result.failed == 0
+
+
+def test_the_command_line_and_the_studies_package_load_no_heavy_library():
+    code = (
+        "import sys, advisor, advisor.cli, advisor.studies; "
+        "print(sorted({m.split('.')[0] for m in sys.modules} & "
+        "{'pandas', 'pyarrow', 'dask', 'distributed', 'gmsh', 'matplotlib'}))"
+    )
+    done = subprocess.run(
+        [sys.executable, "-c", code], cwd=ROOT, capture_output=True, text=True, check=True
+    )
+    assert done.stdout.strip() == "[]"
