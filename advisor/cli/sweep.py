@@ -59,12 +59,11 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def execute(args: argparse.Namespace) -> int:
-    from ..studies.engines import choose
-    from ..studies.study import CASES_FOLDER, export, open_store, plan_study, run_planned
+    from ..studies.study import read_spec, run_study
 
     if args.workers is not None and args.workers < 1:
         raise _usage(f"--workers must be 1 or more, got {args.workers}")
-    planned = plan_study(
+    case_file, spec = read_spec(
         args.case,
         args.vary,
         sampling=args.sampling,
@@ -73,27 +72,25 @@ def execute(args: argparse.Namespace) -> int:
         workers=args.workers,
         cluster=args.cluster,
     )
-    spec = planned.spec
-    out = args.out or args.case.with_suffix("").with_name(args.case.stem + "-study")
+    out = args.out or args.case.with_name(args.case.stem + "-study")
     where = f"the cluster at {spec.cluster}" if spec.cluster else f"{spec.workers or 'all'} cores"
-    log.info(
-        f"Study of {planned.case_file.path.name}: {len(planned.cases)} cases checked; "
-        f"running on {where}"
+    log.info(f"Study of {case_file.path.name} on {where}: checking its cases ...")
+    run = run_study(
+        case_file,
+        spec,
+        out,
+        resume=args.resume,
+        force=args.force,
+        progress=_progress_line(),
+        case_folders=args.case_folders,
     )
-    engine = choose(workers=spec.workers, cluster=spec.cluster)
-    with open_store(out, resume=args.resume, force=args.force) as store:
-        folders = out / CASES_FOLDER if args.case_folders else None
-        done, failed = run_planned(
-            planned, store, engine, progress=_progress_line(), case_folders=folders
-        )
-        files = export(store, out)
     log.info(
-        f"{done} cases done, {failed} failed; wrote {out}/study.sqlite and "
-        + ", ".join(f.name for f in files)
+        f"{run.done} of {len(run.planned.cases)} cases done, {run.failed} failed; wrote "
+        f"{out}/study.sqlite, " + ", ".join(f.name for f in run.files)
     )
-    if failed:
-        log.warning(f"{failed} cases failed: their errors are in the table's error column")
-    return EXIT_OK if done else EXIT_FAILED
+    if run.failed:
+        log.warning(f"{run.failed} cases failed: their errors are in the table's error column")
+    return EXIT_OK if run.done else EXIT_FAILED
 
 
 def _usage(message: str):

@@ -20,6 +20,8 @@ __all__ = [
     "StudyProgress",
     "StudyStore",
     "plan_study",
+    "read_spec",
+    "run_study",
     "read_study",
     "sweep",
 ]
@@ -30,6 +32,8 @@ _WHERE = {
     "StudyStore": "store",
     "StudyProgress": "study",
     "plan_study": "study",
+    "read_spec": "study",
+    "run_study": "study",
     "sweep": "study",
     "read_study": "tables",
 }

@@ -13,7 +13,7 @@ import os
 from collections.abc import Callable, Iterable, Iterator
 from contextlib import contextmanager
 
-from .worker import CaseTask, run_study_case
+from .worker import CaseTask, run_study_case, warm_up
 
 THREAD_VARIABLES = (
     "OMP_NUM_THREADS",
@@ -24,6 +24,7 @@ THREAD_VARIABLES = (
     "NUMEXPR_NUM_THREADS",
 )
 
+WORKER_FAILED = "the worker failed"  # not the case's fault: run again on --resume
 Engine = Callable[[list[CaseTask]], Iterator[dict]]
 
 
@@ -48,24 +49,59 @@ def serial(tasks: list[CaseTask]) -> Iterator[dict]:
         yield run_study_case(task)
 
 
-def local_processes(workers: int) -> Engine:
-    """An engine of ``workers`` spawned processes, one BLAS thread each."""
+class LocalProcesses:
+    """An engine of ``workers`` spawned processes, one BLAS thread each.
 
-    def engine(tasks: list[CaseTask]) -> Iterator[dict]:
+    ``start()`` spawns them and has each import the solver while the parent checks the
+    study's cases; ``close()`` ends them. Called without ``start()``, the engine starts and
+    closes itself.
+    """
+
+    def __init__(self, workers: int):
+        self.workers = workers
+        self.pool = None
+        self._threads = None
+
+    def start(self) -> None:
         import multiprocessing
-        from concurrent.futures import ProcessPoolExecutor, as_completed
+        from concurrent.futures import ProcessPoolExecutor
 
+        if self.pool is not None:
+            return
+        self._threads = one_blas_thread()
+        self._threads.__enter__()  # the workers read it when they start, for the pool's life
         context = multiprocessing.get_context("spawn")
-        with one_blas_thread(), ProcessPoolExecutor(workers, mp_context=context) as pool:
-            futures = {pool.submit(run_study_case, task): task for task in tasks}
-            try:
-                for future in as_completed(futures):
-                    yield _outcome(future, futures[future])
-            finally:
-                for future in futures:
-                    future.cancel()
+        self.pool = ProcessPoolExecutor(self.workers, mp_context=context)
+        for _ in range(self.workers):
+            self.pool.submit(warm_up)
 
-    return engine
+    def close(self) -> None:
+        if self.pool is not None:
+            self.pool.shutdown(wait=True, cancel_futures=True)
+            self.pool = None
+        if self._threads is not None:
+            self._threads.__exit__(None, None, None)
+            self._threads = None
+
+    def __call__(self, tasks: list[CaseTask]) -> Iterator[dict]:
+        from concurrent.futures import as_completed
+
+        own = self.pool is None
+        self.start()
+        futures = {self.pool.submit(run_study_case, task): task for task in tasks}
+        try:
+            for future in as_completed(futures):
+                yield _outcome(future, futures[future])
+        finally:
+            for future in futures:
+                future.cancel()
+            if own:
+                self.close()
+
+
+def local_processes(workers: int) -> LocalProcesses:
+    """An engine of ``workers`` spawned processes, one BLAS thread each."""
+    return LocalProcesses(workers)
 
 
 def executor(pool) -> Engine:
@@ -125,7 +161,7 @@ def _outcome(future, task: CaseTask) -> dict:
         return {
             "case_id": task.case_id,
             "answers": None,
-            "error": f"the worker failed: {type(failure).__name__}: {failure}",
+            "error": f"{WORKER_FAILED}: {type(failure).__name__}: {failure}",
             "wall_seconds": None,
         }
 

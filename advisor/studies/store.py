@@ -90,8 +90,14 @@ class StudyStore:
                     "same study, or start again with --force"
                 )
 
-    def finished(self) -> dict[int, tuple[str, str]]:
-        """case id → (overrides hash, status) of every stored case."""
+    def finished(self, *, retry: str | None = None) -> dict[int, tuple[str, str]]:
+        """case id → (overrides hash, status) of every stored case; with ``retry``, cases
+        whose error starts with it are removed first (to be run again)."""
+        if retry is not None:
+            with self.connection:
+                self.connection.execute(
+                    "DELETE FROM cases WHERE status = 'failed' AND error LIKE ? || '%'", (retry,)
+                )
         rows = self.connection.execute("SELECT id, overrides_hash, status FROM cases")
         return {case_id: (digest, status) for case_id, digest, status in rows}
 

@@ -17,7 +17,7 @@ from .cases import (
     overrides_digest,
     read_case_file,
 )
-from .engines import choose
+from .engines import WORKER_FAILED, choose
 from .spec import StudySpec, read_study_table
 from .store import FILE_NAME, StudyError, StudyStore
 from .tables import CSV_NAME, PARQUET_NAME, to_dataframe, write_csv, write_parquet
@@ -59,15 +59,13 @@ class PlannedStudy:
         }
 
 
-def plan_study(
+def read_spec(
     case: str | Path, vary: list[str] = (), variations: dict | None = None, **settings
-) -> PlannedStudy:
-    """Read the study of a case file (its ``[study]`` table, ``vary`` strings ``KEY=SPEC`` and
-    ``variations`` ``{key: spec}``), and load every case it makes.
-
-    ``settings`` replace the table's ``sampling``, ``samples``, ``seed``, ``workers``,
-    ``cluster`` where they are not None.
-    """
+) -> tuple[CaseFile, StudySpec]:
+    """The case file and its study: its ``[study]`` table, with ``vary`` strings
+    ``KEY=SPEC`` and ``variations`` ``{key: spec}`` replacing or adding entries, and
+    ``settings`` (``sampling``, ``samples``, ``seed``, ``workers``, ``cluster``) replacing the
+    table's where they are not None. No case is loaded."""
     from .spec import parse_vary
 
     case_file = read_case_file(case)
@@ -82,6 +80,11 @@ def plan_study(
             f"{case_file.path.name}: the study varies nothing; give [[study.vary]] entries in "
             "the case file or --vary KEY=SPEC"
         )
+    return case_file, spec
+
+
+def plan_study(case_file: CaseFile, spec: StudySpec) -> PlannedStudy:
+    """Every case of the study, loaded (and so checked) before any runs."""
     overrides = spec.overrides()
     return PlannedStudy(case_file, spec, overrides, load_all(case_file, overrides))
 
@@ -136,9 +139,12 @@ def run_planned(
     case_folders: Path | None = None,
 ) -> tuple[int, int]:
     """Run the cases the store does not hold yet, storing each as it finishes; return the
-    numbers of cases done and failed in this run."""
+    numbers of cases done and failed, those stored before included.
+
+    A case that failed is not run again, unless its worker failed (a process that died):
+    those are run again when the study resumes."""
     store.describe(planned.description())
-    stored = store.finished()
+    stored = store.finished(retry=WORKER_FAILED)
     tasks = []
     for case_id, (overrides, case) in enumerate(
         zip(planned.overrides, planned.cases, strict=True)
@@ -250,14 +256,68 @@ def sweep(
     >>> list(table["status"]), bool(table["biot_volume_to_surface"].is_monotonic_increasing)
     (['done', 'done'], True)
     """
-    planned = plan_study(
+    case_file, spec = read_spec(
         case, (), variations, sampling=sampling, samples=samples, seed=seed, workers=workers
     )
     folder = None if store is None else Path(store)
-    engine = choose(map, workers=planned.spec.workers, cluster=planned.spec.cluster)
-    with open_store(folder, resume=resume, force=force) as opened:
-        cases = None if not case_folders or folder is None else folder / CASES_FOLDER
-        run_planned(planned, opened, engine, progress=progress, case_folders=cases)
-        if folder is not None:
-            export(opened, folder)
-        return to_dataframe(opened)
+    return run_study(
+        case_file,
+        spec,
+        folder,
+        map=map,
+        resume=resume,
+        force=force,
+        progress=progress,
+        case_folders=case_folders,
+    ).table()
+
+
+@dataclass(frozen=True)
+class StudyRun:
+    """What :func:`run_study` did: cases done and failed (stored before included), the files
+    written, and the store (closed) to read the table from."""
+
+    planned: PlannedStudy
+    done: int
+    failed: int
+    files: list[Path]
+    table: Callable
+
+
+def run_study(
+    case_file: CaseFile,
+    spec: StudySpec,
+    folder: Path | None,
+    *,
+    map=None,  # noqa: A002
+    resume: bool = False,
+    force: bool = False,
+    progress: Progress | None = None,
+    case_folders: bool = False,
+) -> StudyRun:
+    """Start the engine (local workers warm up meanwhile), check every case, run those the
+    store lacks, and export the table; the store is in ``folder`` or in memory for None."""
+    engine = choose(map, workers=spec.workers, cluster=spec.cluster)
+    start, close = getattr(engine, "start", None), getattr(engine, "close", None)
+    store = None
+    try:
+        if start is not None:
+            start()
+        planned = plan_study(case_file, spec)
+        store = open_store(folder, resume=resume, force=force)
+        cases = folder / CASES_FOLDER if case_folders and folder is not None else None
+        done, failed = run_planned(planned, store, engine, progress=progress, case_folders=cases)
+        files = export(store, folder) if folder is not None else []
+        frame = to_dataframe(store) if folder is None else None
+    finally:
+        if close is not None:
+            close()
+        if store is not None:
+            store.close()
+
+    def table():
+        from .tables import read_study
+
+        return frame if frame is not None else read_study(folder)
+
+    return StudyRun(planned, done, failed, files, table)

@@ -74,6 +74,16 @@ def run_study_case(task: CaseTask) -> dict:
     }
 
 
+def warm_up() -> None:
+    """Import what a case needs (the solver, the mesher), so the first case does not wait."""
+    import skfem  # noqa: F401
+
+    import geometries.meshing  # noqa: F401 - gmsh and pygmsh
+
+    from .. import pipeline  # noqa: F401
+    from ..analysis import assessment  # noqa: F401
+
+
 def with_shared_mesh(case):
     """``case`` with its section's mesh taken from this process's meshes, or made and kept."""
     if case.imported is not None or case.section is None:
