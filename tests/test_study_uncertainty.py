@@ -93,8 +93,11 @@ def test_uniform_coefficient_spread_of_the_lumped_time_to_target(tmp_path: Path)
     u = np.random.default_rng(SEED).random((SAMPLES, 1))[:, 0]
     h = LOW + u * (HIGH - LOW)
     np.testing.assert_allclose(table["boundaries.face.convection.coefficient"], h, rtol=1e-15)
-    constant = DENSITY * SPECIFIC_HEAT * HALF_THICKNESS * math.log(
-        (INITIAL - AMBIENT) / (TARGET - AMBIENT)
+    constant = (
+        DENSITY
+        * SPECIFIC_HEAT
+        * HALF_THICKNESS
+        * math.log((INITIAL - AMBIENT) / (TARGET - AMBIENT))
     )
     closed_form = constant / h
     # V/A_s = L exactly on straight triangles: rounding only
