@@ -16,6 +16,7 @@ on a pool of 1 and of 2 spawned worker processes. Figures:
 
 from __future__ import annotations
 
+import os
 import time
 from pathlib import Path
 
@@ -28,6 +29,7 @@ def _study(case: Path, out: Path, cases: int, map_, workers: int) -> dict:
     from advisor.studies import sweep
 
     variations = {H_KEY: f"log(100 W/(m^2*K), 3000 W/(m^2*K), {cases})"}
+    load_start = os.getloadavg()[0]
     started = time.perf_counter()
     table = sweep(case, variations, map=map_, workers=workers, store=out, force=True)
     wall = time.perf_counter() - started
@@ -41,6 +43,7 @@ def _study(case: Path, out: Path, cases: int, map_, workers: int) -> dict:
         "solve_seconds_total": solves,
         "overhead_per_case_s": (wall * workers - runs) / len(table),
         "overhead_beyond_solve_per_case_s": (wall * workers - solves) / len(table),
+        "load_average": [load_start, os.getloadavg()[0]],
     }
 
 
@@ -75,7 +78,11 @@ def study_targets(outcomes, target) -> list[dict]:
     data = found[-1].data
     runs = data["runs"]
     efficiency = data.get("parallel_efficiency")
-    detail = ", ".join(f"{k} worker(s) {v['wall_seconds']:.3g} s" for k, v in runs.items())
+    detail = ", ".join(
+        f"{k}: {v['wall_seconds']:.3g} s, {v['run_seconds_total'] / v['cases']:.3g} s a run"
+        + (f", load {v['load_average'][0]:.1f}" if "load_average" in v else "")
+        for k, v in runs.items()
+    )
     rows = [
         target(
             f"{data['cases']}-case sweep: parallel efficiency on 2 workers",
