@@ -72,20 +72,20 @@ class StudyStore:
         """The ``study`` table as a dict (empty for a new store)."""
         return dict(self.connection.execute("SELECT name, value FROM study"))
 
-    def describe(self, description: dict[str, str]) -> None:
-        """Record what the study is (a new store), or refuse one that is something else."""
+    def describe(self, description: dict[str, str], notes: dict[str, str] | None = None) -> None:
+        """Record what the study is (a new store), or refuse one whose ``description``
+        differs; ``notes`` are recorded but not compared."""
         stored = self.description()
         if not stored:
+            rows = [("layout", LAYOUT), *description.items(), *(notes or {}).items()]
             with self.connection:
-                self.connection.executemany(
-                    "INSERT INTO study VALUES (?, ?)",
-                    [("layout", LAYOUT), *description.items()],
-                )
+                self.connection.executemany("INSERT INTO study VALUES (?, ?)", rows)
             return
         for name, value in description.items():
             if stored.get(name) != value:
                 raise StudyError(
-                    f"the study in {self.path} was made with a different {name.replace('_', ' ')}"
+                    f"the study in {self.path} was made with a different "
+                    f"{_LABELS.get(name, name)}"
                     f" ({_short(stored.get(name))} then, {_short(value)} now); resume only the "
                     "same study, or start again with --force"
                 )
@@ -154,6 +154,14 @@ class StudyStore:
 
     def __exit__(self, *_) -> None:
         self.close()
+
+
+_LABELS = {
+    "case_file_sha256": "case file (its text has changed)",
+    "spec": "spec (varied keys, values or draws)",
+    "cases": "number of cases",
+    "layout": "store layout",
+}
 
 
 def _short(value) -> str:

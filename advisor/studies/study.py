@@ -52,7 +52,6 @@ class PlannedStudy:
 
     def description(self) -> dict[str, str]:
         return {
-            "case_file": str(self.case_file.path),
             "case_file_sha256": self.case_file.digest,
             "spec": self.spec.identity(),
             "cases": str(len(self.overrides)),
@@ -143,7 +142,7 @@ def run_planned(
 
     A case that failed is not run again, unless its worker failed (a process that died):
     those are run again when the study resumes."""
-    store.describe(planned.description())
+    store.describe(planned.description(), {"case_file": str(planned.case_file.path.resolve())})
     stored = store.finished(retry=WORKER_FAILED)
     tasks = []
     for case_id, (overrides, case) in enumerate(
