@@ -215,8 +215,12 @@ def test_a_study_on_a_dask_cluster_gives_the_table_of_the_process_pool(tmp_path)
         with distributed.Client(cluster) as client:
             on_client = sweep(case, GRID, map=client)
         on_address = sweep(case, GRID, map=cluster.scheduler_address, store=tmp_path / "dask")
+        command = ["-q", "sweep", str(case), "--out", str(tmp_path / "cli")]
+        command += [f"--vary={key}={','.join(values)}" for key, values in GRID.items()]
+        assert main([*command, "--cluster", cluster.scheduler_address]) == 0
     same_table(on_client, pooled)
     same_table(on_address, pooled)
+    same_table(read_study(tmp_path / "cli"), pooled)
 
 
 def test_draws_follow_the_documented_transforms():
@@ -274,3 +278,21 @@ def test_the_command_line_and_the_studies_package_load_no_heavy_library():
         [sys.executable, "-c", code], cwd=ROOT, capture_output=True, text=True, check=True
     )
     assert done.stdout.strip() == "[]"
+
+
+def test_cases_of_one_geometry_share_one_mesh(tmp_path, monkeypatch):
+    import geometries.meshing
+    from advisor.studies import worker
+
+    made = []
+    original = geometries.meshing.mesh_section
+
+    def counting(section, size, **options):
+        made.append(size)
+        return original(section, size, **options)
+
+    monkeypatch.setattr(geometries.meshing, "mesh_section", counting)
+    monkeypatch.setattr(worker, "_meshes", type(worker._meshes)())
+    table = sweep(small_bar(tmp_path), GRID, map="serial")
+    assert list(table["status"]) == ["done"] * 4
+    assert sorted(made) == [0.004, 0.005]  # two geometries, four cases
