@@ -19,6 +19,7 @@ from . import models
 from .exact import SquareBarExact, largest_error
 from .machine import FactorSpy, factor_size, peak_rss, read_bandwidth, time_solves
 from .startup import task_startup
+from .study import task_study
 
 PLUNGE_REMAINING = 0.01  # the run ends when the centre is 99 % of the way to the fluid
 TEMPERATURE_DROP = models.INITIAL - models.AMBIENT
@@ -399,4 +400,5 @@ TASKS = {
     "calibrate": task_calibrate,
     "profile": task_profile,
     "startup": task_startup,
+    "study": task_study,
 }

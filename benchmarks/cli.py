@@ -36,6 +36,7 @@ GROUPS = (
     "radiation",
     "angle",
     "profile",
+    "study",
 )
 SHIPPED, WHAT_IF = "soakwise", "soakwise+sym"
 SCRIPT, IVP = "(a) spsolve script", "(b) solve_ivp BDF"
@@ -438,6 +439,9 @@ class Suite:
             self.angle()
         if "profile" in self.groups:
             self.profile()
+        if "study" in self.groups:
+            quick = {"cases": 8, "mesh_size": "4 mm"} if a.quick else {"cases": 64}
+            self.r.run("study-sweep", "study", quick, case="study")
         if "square" in self.groups:
             for nodes in square_sizes:
                 if nodes > 200_000:

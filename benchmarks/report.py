@@ -323,8 +323,9 @@ def evaluate_targets(suite, rows, outcomes, bandwidth) -> list[dict]:
             )
     # 8. start-up of the small commands, and what importing the packages loads
     from .startup import startup_targets
+    from .study import study_targets
 
-    return targets + startup_targets(outcomes, _target)
+    return targets + startup_targets(outcomes, _target) + study_targets(outcomes, _target)
 
 
 def _verdict(value, passes, row) -> bool | None:
@@ -525,7 +526,7 @@ def print_report(report: dict) -> None:
     others = [
         (k, t)
         for k, t in report["tasks"].items()
-        if t["meta"].get("task") in ("startup", "mesh", "demo", "bandwidth")
+        if t["meta"].get("task") in ("startup", "mesh", "demo", "bandwidth", "study")
     ]
     if others:
         print()
@@ -547,6 +548,10 @@ def print_report(report: dict) -> None:
                 from .startup import describe
 
                 extra = describe(d)
+            elif t["meta"].get("task") == "study":
+                from .study import describe as describe_study
+
+                extra = describe_study(d)
             elif t["meta"].get("task") == "bandwidth" and "read_bytes_per_s" in d:
                 extra = (
                     f"read {d['read_bytes_per_s'] / 1e9:.2f} GB/s, copy "

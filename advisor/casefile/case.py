@@ -168,6 +168,7 @@ def _read_case(root: Table, path: Path) -> Case:
     end_time, run_options, element_order = read_run(root, {**parts, "probes": probes})
     advisor_options = read_advisor(root)
     outputs = read_outputs(root)
+    root.raw("study", None)  # a study's table, read by advisor.studies
     root.done()
     return Case(
         path=path,

@@ -15,7 +15,7 @@ import logging
 import sys
 
 from ..errors import AdvisorError
-from . import check, converge, demo, materials, new, run, show
+from . import check, converge, demo, materials, new, run, show, sweep
 from .common import EPILOG, EXIT_FAILED, EXIT_OK, EXIT_USAGE, configure_logging
 
 __all__ = ["EXIT_FAILED", "EXIT_OK", "EXIT_USAGE", "build_parser", "main"]
@@ -27,6 +27,7 @@ COMMANDS = {
     "new": new,
     "materials": materials,
     "show": show,
+    "sweep": sweep,
     "converge": converge,
 }
 # Errors in what the user gave (exit 2) and failures of the run (exit 1), by package and name:
