@@ -194,6 +194,14 @@ def test_a_killed_study_resumes_without_running_finished_cases_again(tmp_path):
         assert after[row[0]] == row
     assert main(["-q", "sweep", str(case), "--out", str(tmp_path / "whole")]) == 0
     same_table(read_study(out), read_study(tmp_path / "whole"))
+    # the finished study is analysed: a validity map over the one input that varies (h),
+    # whose design rule is the h where the stored classical error crosses the tolerance
+    page = (tmp_path / "whole" / "study.html").read_text(encoding="utf-8")
+    assert (tmp_path / "whole" / "plots" / "validity_map.png").is_file()
+    table = read_study(out).sort_values("boundaries.quenched.convection.coefficient")
+    errors = table["error_classical_slowest"].to_numpy()
+    assert errors[0] < 0.05 < errors[-1], "the sweep must straddle the 5 % tolerance"
+    assert "within 5 % for the slowest point up to h =" in page
 
     # resuming a changed study is refused, naming what changed
     changed = ["-q", "sweep", str(case), "--out", str(out), "--resume"]

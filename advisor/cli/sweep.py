@@ -7,6 +7,7 @@ import argparse
 import sys
 from pathlib import Path
 
+from ..caution import CAUTION
 from .common import EXIT_FAILED, EXIT_OK, log
 
 SUMMARY = "run a study: vary case keys over a grid or samples, one row of answers per case"
@@ -84,13 +85,29 @@ def execute(args: argparse.Namespace) -> int:
         progress=_progress_line(),
         case_folders=args.case_folders,
     )
+    files = [*run.files, *_report(out, run)]
     log.info(
         f"{run.done} of {len(run.planned.cases)} cases done, {run.failed} failed; wrote "
-        f"{out}/study.sqlite, " + ", ".join(f.name for f in run.files)
+        f"{out}/study.sqlite, " + ", ".join(str(f.relative_to(out)) for f in files)
     )
     if run.failed:
         log.warning(f"{run.failed} cases failed: their errors are in the table's error column")
+    log.info(f"Caution: {CAUTION}")
     return EXIT_OK if run.done else EXIT_FAILED
+
+
+def _report(out: Path, run) -> list[Path]:
+    """The study report (validity map, design rule, spreads), when pandas is there and a case
+    finished."""
+    import importlib.util
+
+    if not run.done or importlib.util.find_spec("pandas") is None:
+        if run.done:
+            log.info("No study report: it needs pandas (pip install 'soakwise[studies]')")
+        return []
+    from ..studies.study_report import write_sweep_report
+
+    return write_sweep_report(out, run.planned)
 
 
 def _usage(message: str):

@@ -373,3 +373,33 @@ def write_study_report(findings: StudyFindings, folder: Path, table=None) -> lis
     page = folder / "study.html"
     write_html_report(build_study_report(findings, table), page, folder)
     return [*paths, page]
+
+
+def write_sweep_report(folder: Path, planned, *, sensitivity: str = "rank") -> list[Path]:
+    """Analyse a finished study in ``folder`` (its store, through
+    :func:`advisor.studies.read_study`) and write its plots and ``study.html``.
+
+    The validity map runs against the one varied input, or against the Biot number on V/A_s
+    when several are varied; errors are those of the quantity the case's advisor judges
+    (the slowest point or the mean), against the case's tolerance.
+    """
+    from .tables import read_study
+
+    table = read_study(folder)
+    first = planned.cases[0]
+    options = first.advisor_options
+    judged = "mean" if options.get("quantity") == "mean" else "slowest"
+    errors = {model: f"error_{model}_{judged}" for model in ("classical", "corrected")}
+    sampled = any(v.distribution is not None for v in planned.spec.variations)
+    varied = varied_inputs(table, (*DEFAULT_ANSWERS, *errors.values()))
+    variable = None if sampled else varied[0] if len(varied) == 1 else "biot_volume_to_surface"
+    findings = analyse_study(
+        table,
+        title=f"Study of {first.title}",
+        variable=variable,
+        tolerance=options.get("tolerance", 0.05),
+        errors=errors,
+        sampled=sampled,
+        sensitivity=sensitivity,
+    )
+    return write_study_report(findings, folder, table)
