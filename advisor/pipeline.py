@@ -15,7 +15,7 @@ from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-from fem import Solution, ThermalModel, solve
+from fem import ConductionSystem, Solution, ThermalModel, solve
 
 from .analysis.assessment import Assessment, assess, check_request
 
@@ -54,7 +54,12 @@ class Results:
         return self.assessment.solution
 
 
-def run_case(case: Case, *, progress: Progress | None = None) -> Results:
+def run_case(
+    case: Case,
+    *,
+    progress: Progress | None = None,
+    system_for: Callable[[ThermalModel], ConductionSystem] | None = None,
+) -> Results:
     """Mesh, solve and assess a case file's problem; write nothing.
 
     Parameters
@@ -63,6 +68,9 @@ def run_case(case: Case, *, progress: Progress | None = None) -> Results:
         A loaded case (:func:`advisor.casefile.load_case`).
     progress : callable, optional
         Passed to :func:`fem.solve`: called as ``progress(time, end_time, steps)``.
+    system_for : callable, optional
+        Gives the case's model an assembled system (a study's cache of systems that differ
+        only in coefficients); by default the run assembles its own.
 
     Returns
     -------
@@ -87,14 +95,16 @@ def run_case(case: Case, *, progress: Progress | None = None) -> Results:
     (True, 60.0)
     """
     started = time.perf_counter()
+    model = case.model()
     results = run_model(
-        case.model(),
+        model,
         case.end_time,
         title=case.title,
         run_options=case.run_options,
         advisor_options=case.advisor_options,
         outputs=case.outputs,
         progress=progress,
+        system=None if system_for is None else system_for(model),
     )
     return replace(results, wall_seconds=time.perf_counter() - started)
 
@@ -108,6 +118,7 @@ def run_model(
     advisor_options: Mapping | None = None,
     outputs: Mapping[str, bool] | None = None,
     progress: Progress | None = None,
+    system: ConductionSystem | None = None,
 ) -> Results:
     """Check the advisor's request, solve and assess a model built in Python; write nothing.
 
@@ -126,6 +137,9 @@ def run_model(
         The optional outputs to write by default (``report``, ``animation``, ``vtk``).
     progress : callable, optional
         Passed to :func:`fem.solve`.
+    system : fem.ConductionSystem, optional
+        An assembled system whose matrices serve ``model`` (see
+        :meth:`fem.ConductionSystem.for_model`); the run then assembles nothing.
 
     Returns
     -------
@@ -135,8 +149,11 @@ def run_model(
     started = time.perf_counter()
     advisor_options = dict(advisor_options or {})
     check_request(model, **advisor_options)  # a bad target fails before the solve
-    solution = solve(model, end_time, progress=progress, **dict(run_options or {}))
-    assessment = assess(solution, **advisor_options)
+    system = None if system is None else system.for_model(model)
+    solution = solve(
+        model if system is None else system, end_time, progress=progress, **dict(run_options or {})
+    )
+    assessment = assess(solution, system=system, **advisor_options)
     return Results(assessment, title, dict(outputs or {}), time.perf_counter() - started)
 
 

@@ -128,24 +128,43 @@ class ConductionSystem:
         return self.model.section.axisymmetric
 
     def with_boundaries(self, boundaries) -> ConductionSystem:
-        """The same assembled system under other boundary conditions of the same pattern (the
-        same edge groups exchanging, holding or blocking heat): the matrices are shared, so a
-        loop over coefficients, ambients or schedules assembles once.
+        """The same assembled system under other boundary conditions of the same pattern (see
+        :meth:`for_model`): a loop over coefficients, ambients or schedules assembles once."""
+        return self.for_model(dataclasses.replace(self.model, boundaries=boundaries))
+
+    def for_model(self, model: ThermalModel) -> ConductionSystem:
+        """This system's matrices for ``model``, when they are the same: the same section
+        object (as a mesh cache hands it out), materials, element order, heat-source regions
+        and probes, and conditions of the same pattern (the same edge groups carrying heat and
+        holding their temperature). Coefficients, ambients, fluxes, sources, schedules and the
+        initial state may differ.
 
         Raises
         ------
         ModelError
-            If ``boundaries`` are invalid for the model or change the pattern (a group that
-            starts or stops carrying heat, or holding its temperature).
+            If the matrices do not apply to ``model``; assemble it instead.
         """
-        model = dataclasses.replace(self.model, boundaries=boundaries)
+        old = self.model
+        same = (
+            model.section is old.section
+            and model.element_order == old.element_order
+            and model.materials == old.materials
+            and set(model.heat_sources) == set(old.heat_sources)
+            and model.probes == old.probes
+        )
+        if not same:
+            raise ModelError(
+                "the assembled system is for another section, material, element order, source "
+                "region or probe set: assemble the new model",
+                argument="model",
+            )
         flowing = {
             name: tuple(c for c in group if c.flows) for name, group in model.boundaries.items()
         }
         flowing = {name: group for name, group in flowing.items() if group}
         if set(flowing) != set(self.edges) or set(model.fixed) != set(self.fixed_dofs):
             raise ModelError(
-                "with_boundaries needs the same edge groups carrying heat "
+                "the assembled system needs the same edge groups carrying heat "
                 f"{sorted(self.edges)} and holding their temperature {sorted(self.fixed_dofs)}; "
                 f"got {sorted(flowing)} and {sorted(model.fixed)}: assemble the new model",
                 argument="boundaries",

@@ -7,7 +7,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from fem import Solution, ThermalModel
+from fem import ConductionSystem, Solution, ThermalModel
 
 from ..errors import AdvisorError
 from .biot import BiotNumber, biot_numbers
@@ -181,6 +181,7 @@ def assess(
     target: float | None = None,
     tolerance: float = 0.05,
     quantity: str = "slowest",
+    system: ConductionSystem | None = None,
 ) -> Assessment:
     """Judge the lumped family against the field of ``solution``.
 
@@ -199,6 +200,8 @@ def assess(
         that decides when a part is through), ``"mean"`` (the stored heat),
         ``"peak_difference"`` (the internal ΔT, distortion and cracking) or
         ``"time_to_target"`` (needs ``target``).
+    system : fem.ConductionSystem, optional
+        The run's assembled system, so the slowest mode does not assemble again.
 
     Returns
     -------
@@ -238,7 +241,7 @@ def assess(
         lumped=lumped,
         correction_shape=beta,
         correction_note=note,
-        mode=slowest_mode(model),
+        mode=slowest_mode(model, system),
         lumped_temperature=curves["classical"],
         errors=_errors(solution, family, drive),
         peak_internal_difference=float(spread[peak]),

@@ -14,7 +14,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from fem import ThermalModel, assemble
+from fem import ConductionSystem, ThermalModel, assemble
 from fem.modes import slowest_eigenpair
 
 from ..errors import AdvisorError
@@ -47,10 +47,10 @@ class SlowestMode:
     core_to_mean: float
 
 
-def slowest_mode(model: ThermalModel) -> SlowestMode:
+def slowest_mode(model: ThermalModel, system: ConductionSystem | None = None) -> SlowestMode:
     """The first generalised eigenvalue of the model's operator at t = 0, every condition
     linearised at the initial mean temperature (radiation by its secant coefficient), against
-    the lumped model's rate.
+    the lumped model's rate. ``system``: the model's assembled system, if there is one.
 
     Examples
     --------
@@ -65,7 +65,7 @@ def slowest_mode(model: ThermalModel) -> SlowestMode:
     """
     if not model.exchange_groups and not model.fixed:
         raise AdvisorError("a part that exchanges no heat has no decaying mode")
-    system = assemble(model)
+    system = assemble(model) if system is None else system.for_model(model)
     t0 = mean_initial(model)
     pair = slowest_eigenpair(system, t0, 0.0)
     shape = np.abs(pair.shape)

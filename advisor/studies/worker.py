@@ -1,19 +1,16 @@
 """What runs on a worker: one study case, from its :class:`Case` to its scalar answers.
 
 A worker process keeps the meshes it has made (a few, keyed by the section and the mesh
-options), so the cases of one geometry are meshed once per process; the study sends cases of
-the same geometry together. Nothing but the case goes in and plain answers come out: no
-factorisation or field crosses between processes.
-
-gmsh asks for the interrupt signal when it starts, which only the main thread may do; a
-dask worker runs tasks on other threads, so there gmsh is started without it.
+options), so the cases of one geometry are meshed once per process, and the last system
+assembled on each, so cases that differ only in coefficients are assembled once too; the
+study sends cases of the same geometry together. Nothing but the case goes in and plain
+answers come out: no factorisation or field crosses between processes.
 """
 
 from __future__ import annotations
 
 import hashlib
 import pickle
-import threading
 import time
 import traceback
 from collections import OrderedDict
@@ -22,6 +19,7 @@ from pathlib import Path
 
 MESHES_KEPT = 8
 _meshes: OrderedDict[str, object] = OrderedDict()
+_systems: OrderedDict[int, object] = OrderedDict()  # by the id of a kept mesh's section
 
 
 @dataclass(frozen=True)
@@ -54,8 +52,7 @@ def run_study_case(task: CaseTask) -> dict:
 
     started = time.perf_counter()
     try:
-        _allow_gmsh_off_main_thread()
-        results = run_case(with_shared_mesh(task.case))
+        results = run_case(with_shared_mesh(task.case), system_for=shared_system)
         found = answers(results)
         if task.folder is not None:
             write_results(results, Path(task.folder), force=True)
@@ -78,7 +75,7 @@ def warm_up() -> None:
     """Import what a case needs (the solver, the mesher), so the first case does not wait."""
     import skfem  # noqa: F401
 
-    import geometries.meshing  # noqa: F401 - gmsh and pygmsh
+    import geometries.meshing  # noqa: F401 - gmsh
 
     from .. import pipeline  # noqa: F401
     from ..analysis import assessment  # noqa: F401
@@ -104,23 +101,22 @@ def with_shared_mesh(case):
     return replace(case, imported=mesh)
 
 
-_patched = threading.Lock()
+def shared_system(model):
+    """An assembled system for ``model``: this process's last one for the same mesh when its
+    matrices apply (cases that differ only in coefficients, ambients, sources or the initial
+    state), else a new one, kept for the next case."""
+    from fem import ModelError, assemble
 
-
-def _allow_gmsh_off_main_thread() -> None:
-    """Start gmsh without its interrupt handler when running off the main thread."""
-    if threading.current_thread() is threading.main_thread():
-        return
-    with _patched:
-        import gmsh
-
-        if getattr(gmsh.initialize, "_off_main_thread", False):
-            return
-        original = gmsh.initialize
-
-        def initialize(argv=(), readConfigFiles=True, run=False, interruptible=True):  # noqa: N803
-            off_main = threading.current_thread() is not threading.main_thread()
-            return original(list(argv), readConfigFiles, run, interruptible and not off_main)
-
-        initialize._off_main_thread = True
-        gmsh.initialize = initialize
+    key = id(model.section)
+    kept = _systems.get(key)
+    if kept is not None:
+        try:
+            return kept.for_model(model)
+        except ModelError:  # another material, order or pattern of conditions
+            pass
+    system = assemble(model)
+    _systems[key] = system
+    _systems.move_to_end(key)
+    while len(_systems) > MESHES_KEPT:
+        _systems.popitem(last=False)
+    return system
