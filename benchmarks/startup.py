@@ -25,7 +25,7 @@ COMMANDS = {  # name → arguments after ``soakwise``; {out} is a scratch folder
 }
 PACKAGES = ("fem", "advisor", "advisor.cli")
 # Third-party packages that take a noticeable time to import (or drag in a GUI toolkit).
-HEAVY = ("gmsh", "pygmsh", "matplotlib", "PIL", "scipy", "skfem", "meshio", "pint", "tqdm")
+HEAVY = ("gmsh", "matplotlib", "PIL", "scipy", "skfem", "meshio", "pint", "tqdm")
 FORBIDDEN = {"fem": ("gmsh", "matplotlib"), "advisor": ("matplotlib", "PIL", "gmsh")}
 
 _FOOTPRINT = (

@@ -1,8 +1,8 @@
 """Meshing a section with gmsh: the one gateway from a :class:`~geometries.Section` to a
 :class:`~geometries.SectionMesh`.
 
-Every gmsh call of the project lives in this package, and only this package imports gmsh and
-pygmsh; the rest of :mod:`geometries` reaches it on call, so importing :mod:`geometries` does
+Every gmsh call of the project lives in this package, and only this package imports gmsh;
+the rest of :mod:`geometries` reaches it on call, so importing :mod:`geometries` does
 not load gmsh. Its rooms:
 
 - :mod:`.session`: the lock and start/finalise guard around gmsh's global state;
