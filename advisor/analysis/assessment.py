@@ -3,6 +3,7 @@ which direction the lumped estimate is wrong — and what to use instead."""
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -11,6 +12,7 @@ from fem import Solution, ThermalModel
 
 from ..errors import AdvisorError
 from .biot import BiotNumber, biot_numbers
+from .freezing import FreezingComparison, FreezingProduct, compare_freezing
 from .lumped import (
     FittedExponential,
     LumpedModel,
@@ -18,8 +20,10 @@ from .lumped import (
     crossing_time,
     fit_exponential,
     fit_two_node,
+    mean_coefficient,
 )
 from .modes import SlowestMode, slowest_mode
+from .quench import QuenchOutputs, quench_outputs
 from .verdict import QUANTITIES, RATINGS, SUBJECTS, Verdict, judge
 
 __all__ = [
@@ -99,6 +103,11 @@ class Assessment:
     time_to_target : dict of str to float or None
         When each model and field quantity reaches the target, s.
     verdict : Verdict
+    quench : QuenchOutputs or None
+        Cooling rates against temperature, the largest rate, times to temperatures and the
+        time through a range at the slowest point and the probes, when asked for.
+    freezing : FreezingComparison or None
+        The field's freezing time beside Plank's and Pham's, when a product was given.
     """
 
     solution: Solution
@@ -119,6 +128,8 @@ class Assessment:
     target: float | None
     time_to_target: dict[str, float | None]
     verdict: Verdict = field(repr=False)
+    quench: QuenchOutputs | None = field(default=None, repr=False)
+    freezing: FreezingComparison | None = field(default=None, repr=False)
 
     @property
     def heating(self) -> bool:
@@ -167,6 +178,11 @@ def assess(
     target: float | None = None,
     tolerance: float = 0.05,
     quantity: str = "slowest",
+    cooling_rates: bool = False,
+    times_to: Sequence[float] = (),
+    cooling_range: Sequence[float] | None = None,
+    freezing: FreezingProduct | None = None,
+    freeze_to: float | None = None,
 ) -> Assessment:
     """Judge the lumped family against the field of ``solution``.
 
@@ -185,6 +201,19 @@ def assess(
         that decides when a part is through), ``"mean"`` (the stored heat),
         ``"peak_difference"`` (the internal ΔT, distortion and cracking) or
         ``"time_to_target"`` (needs ``target``).
+    cooling_rates : bool
+        Also read the quench outputs (:class:`QuenchOutputs` in ``Assessment.quench``):
+        cooling rate against temperature and its largest value at the slowest point and the
+        probes. Implied by ``times_to`` or ``cooling_range``.
+    times_to : sequence of float
+        Temperatures in °C whose first arrival at the slowest point and the probes is wanted.
+    cooling_range : (float, float), optional
+        From and to in °C (for example 800, 500 for a steel): the time to pass through it.
+    freezing : FreezingProduct, optional
+        The product's properties for Plank's equation and Pham's method; the comparison goes
+        in ``Assessment.freezing``. Needs ``freeze_to``.
+    freeze_to : float, optional
+        The temperature in °C the slowest point must pass through to count as frozen.
 
     Returns
     -------
@@ -207,6 +236,7 @@ def assess(
     lumped = LumpedModel.of(model)
     drive = lumped.initial_temperature - lumped.equilibrium  # > 0 cooling, < 0 heating
     _check_arguments(lumped, drive, target, tolerance, quantity)
+    _check_outputs(drive, cooling_range, freezing, freeze_to)
     times = solution.times
     biot = biot_numbers(
         model,
@@ -234,7 +264,37 @@ def assess(
         time_to_target=_times_to_target(solution, lumped, family, target, drive),
         **family,
     )
-    return Assessment(**findings, verdict=judge(findings, quantity, tolerance, drive))
+    verdict = judge(findings, quantity, tolerance, drive)
+    slowest = solution.minimum if drive < 0 else solution.maximum
+    quench = None
+    if cooling_rates or times_to or cooling_range is not None:
+        histories = {"slowest": slowest} | {f"probe:{n}": h for n, h in solution.probes.items()}
+        quench = quench_outputs(
+            times, histories, drive=drive, times_to=times_to, cooling_range=cooling_range
+        )
+    frozen = None
+    if freezing is not None:
+        frozen = _freezing(solution, lumped, biot, freezing, freeze_to, slowest)
+    return Assessment(**findings, verdict=verdict, quench=quench, freezing=frozen)
+
+
+def _freezing(solution, lumped, biot, product, end_temperature, slowest) -> FreezingComparison:
+    """Plank's and Pham's freezing times beside the field's: d is the largest conduction
+    distance, E = d/(V/A_s), h the mean coefficient at the freezing point and T_a the lumped
+    ambient."""
+    by_name = {b.name: b for b in biot}
+    distance = by_name["conduction_distance"].length
+    return compare_freezing(
+        product,
+        solution.times,
+        slowest,
+        end_temperature=end_temperature,
+        initial_temperature=lumped.initial_temperature,
+        half_thickness=distance,
+        shape=distance / by_name["volume_to_surface"].length,
+        heat_transfer_coefficient=mean_coefficient(solution.model, product.freezing_point, 0.0),
+        medium_temperature=lumped.ambient,
+    )
 
 
 def _energy_error(solution: Solution, lumped: LumpedModel, curve, drive: float) -> float:
@@ -319,12 +379,30 @@ def check_request(
     target: float | None = None,
     tolerance: float = 0.05,
     quantity: str = "slowest",
+    cooling_rates: bool = False,
+    times_to: Sequence[float] = (),
+    cooling_range: Sequence[float] | None = None,
+    freezing: FreezingProduct | None = None,
+    freeze_to: float | None = None,
 ) -> None:
     """Refuse, before any solve, an assessment that :func:`assess` would refuse."""
     lumped = LumpedModel.of(model)
-    _check_arguments(
-        lumped, lumped.initial_temperature - lumped.equilibrium, target, tolerance, quantity
-    )
+    drive = lumped.initial_temperature - lumped.equilibrium
+    _check_arguments(lumped, drive, target, tolerance, quantity)
+    _check_outputs(drive, cooling_range, freezing, freeze_to)
+
+
+def _check_outputs(drive, cooling_range, freezing, freeze_to) -> None:
+    """The quench and freezing requests (their values are checked where they are used)."""
+    if cooling_range is not None:
+        quench_outputs([0.0, 1.0, 2.0], {}, drive=drive, cooling_range=cooling_range)
+    if (freezing is None) != (freeze_to is None):
+        raise AdvisorError(
+            "freezing (the product's FreezingProduct) and freeze_to (the temperature that "
+            "counts as frozen, degC) go together; give both or neither"
+        )
+    if freezing is not None and not isinstance(freezing, FreezingProduct):
+        raise AdvisorError(f"freezing must be a FreezingProduct, got {freezing!r}")
 
 
 def _check_arguments(lumped, drive, target, tolerance, quantity) -> None:

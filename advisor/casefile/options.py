@@ -62,6 +62,7 @@ def read_advisor(root: Table) -> dict:
         advisor.fail("tolerance", f"must be a fraction in (0, 1), got {tolerance:g}")
     options["tolerance"] = tolerance
     options["quantity"] = advisor.text("quantity", "slowest", QUANTITIES)
+    options.update(read_quench_keys(advisor))
     advisor.done()
     return options
 
@@ -74,3 +75,21 @@ def read_outputs(root: Table) -> dict[str, bool]:
     outputs = {key: table.flag(key, True) for key in OUTPUTS if table.has(key)}
     table.done()
     return outputs
+
+
+def read_quench_keys(advisor: Table) -> dict:
+    """``[advisor]`` quench outputs: ``cooling_rates = true``, ``times_to = ["500 degC", ...]``
+    and ``cooling_range = ["800 degC", "500 degC"]`` (from, to)."""
+    options: dict = {}
+    if advisor.has("cooling_rates"):
+        options["cooling_rates"] = advisor.flag("cooling_rates", False)
+    for key in ("times_to", "cooling_range"):
+        values = advisor.raw(key, None)
+        if values is None:
+            continue
+        pair = key == "cooling_range"
+        if not isinstance(values, list) or not values or (pair and len(values) != 2):
+            wanted = "[from, to], two temperatures" if pair else "a list of temperatures"
+            advisor.fail(key, f"expected {wanted}, got {values!r}")
+        options[key] = tuple(advisor.quantity(key, v, "temperature") for v in values)
+    return options
