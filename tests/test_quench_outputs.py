@@ -95,9 +95,7 @@ def test_times_to_and_through_a_range_match_the_logarithms():
 def test_heating_rates_are_positive_and_ranges_rise():
     times = np.linspace(0.0, 5 * TAU, 401)
     rising = 20.0 + 480.0 * (1 - np.exp(-times / TAU))
-    found = quench_outputs(
-        times, {"slowest": rising}, drive=-480.0, cooling_range=(100.0, 400.0)
-    )
+    found = quench_outputs(times, {"slowest": rising}, drive=-480.0, cooling_range=(100.0, 400.0))
     curve = found.curves["slowest"]
     assert not found.cooling
     assert np.all(curve.rates > 0)
