@@ -167,7 +167,7 @@ def integrate_balance(
         wanted = np.union1d(times[inside], [stop])  # sorted; the last is the segment's end
         result = solve_ivp(
             balance, (start, stop), [state], method="LSODA", t_eval=wanted,
-            rtol=1e-9, atol=1e-9, max_step=(stop - start) / 50, events=events,
+            rtol=1e-9, atol=1e-9, max_step=end / 400, events=events,
         )  # fmt: skip
         if not result.success:
             raise AdvisorError(f"the lumped balance could not be integrated: {result.message}")
