@@ -98,7 +98,7 @@ class Assessment:
         Largest max − min temperature in the section (K) and when (s).
     energy_error : float
         Largest |lumped stored energy − field stored energy| over the run, as a fraction of the
-        energy a full approach to the ambient exchanges.
+        energy a full approach to the ambient exchanges (sensible and latent heat).
     target : float or None
     time_to_target : dict of str to float or None
         When each model and field quantity reaches the target, s.
@@ -300,7 +300,8 @@ def _freezing(solution, lumped, biot, product, end_temperature, slowest) -> Free
 def _energy_error(solution: Solution, lumped: LumpedModel, curve, drive: float) -> float:
     """Largest |lumped − field stored energy| as a fraction of a full approach's exchange."""
     gap = np.abs(lumped.stored_energy(curve) - solution.stored_energy).max()
-    return float(gap / (lumped.heat_capacity * abs(drive)))
+    full_approach = abs(float(lumped.stored_energy(np.array([lumped.equilibrium]))[0]))
+    return float(gap / full_approach)  # latent heat included; C·|T0 − T_eq| for constant c
 
 
 def _lumped_family(solution: Solution, lumped: LumpedModel, scale: float, drive: float) -> dict:

@@ -75,7 +75,7 @@ class QuenchCurve:
         The history, °C, at the solution's times.
     rates : ndarray
         Cooling rate −dT/dt in K/s at those times (the heating rate dT/dt when the part
-        heats): positive while the part moves towards the ambient.
+        heats): positive while the part moves towards the ambient (NaN at a repeated time).
     largest_rate : float
         The largest of ``rates``, K/s.
     largest_rate_temperature, largest_rate_time : float
@@ -140,8 +140,11 @@ def quench_curve(
 ) -> QuenchCurve:
     """The readings of one ``history`` (°C at ``times`` s); ``drive`` = T0 − T∞ (> 0 when
     cooling) sets which way is forward."""
-    rates = -np.sign(drive) * rate_of_change(times, history)
-    i = int(np.argmax(rates))
+    times, history = np.asarray(times, dtype=float), np.asarray(history, dtype=float)
+    rates = np.full(times.shape, np.nan)
+    kept = np.r_[True, np.diff(times) > 0]  # a state recorded twice at one time counts once
+    rates[kept] = -np.sign(drive) * rate_of_change(times[kept], history[kept])
+    i = int(np.nanargmax(rates))
     reached = {float(t): crossing_time(times, history, t, drive) for t in times_to}
     through = time_through_range(times, history, *cooling_range) if cooling_range else None
     return QuenchCurve(
