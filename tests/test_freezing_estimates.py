@@ -233,3 +233,33 @@ def test_plank_is_short_and_pham_close_for_a_model_food(shape):
         heat_transfer_coefficient=30.0, medium_temperature=-30.0,
     ).wording  # fmt: skip
     assert "Plank's equation" in words and "non-conservative" in words
+
+
+def test_product_of_a_material_with_latent_heat():
+    """The bridge from a material's latent heat, solidus and liquidus (a stand-in class here
+    with those attributes; :class:`fem.Material` carries them when latent heat is given)."""
+    from dataclasses import dataclass
+
+    @dataclass(frozen=True)
+    class Freezing:
+        density: float = 1050.0
+        latent_heat: float = 240e3
+        solidus: float = -3.0
+        liquidus: float = -1.0
+
+        def heat_capacity_at(self, t):
+            return self.density * (3500.0 if t > self.liquidus else 1800.0)
+
+        def conductivity_at(self, t):
+            return 0.5 if t > self.liquidus else 1.5
+
+    product = FreezingProduct.of_material(
+        Freezing(), unfrozen_temperature=5.0, frozen_temperature=-15.0
+    )
+    assert product == FreezingProduct(1050.0, 240e3, -1.0, 1.5, 3500.0, 1800.0)
+    with pytest.raises(AdvisorError, match="below the"):
+        FreezingProduct.of_material(Freezing(), unfrozen_temperature=5.0, frozen_temperature=-2)
+    with pytest.raises(AdvisorError, match="no latent heat"):
+        FreezingProduct.of_material(
+            Freezing(latent_heat=0.0), unfrozen_temperature=5.0, frozen_temperature=-15.0
+        )

@@ -113,5 +113,7 @@ def test_freezing_comparison_uses_the_sections_own_scales():
     assert found.heat_transfer_coefficient == pytest.approx(30.0)
     expected = plank_time(product, 0.020, 30.0, 60.0, 0.020 / 0.012)
     assert found.plank == pytest.approx(expected, rel=1e-9)
-    with pytest.raises(AdvisorError, match="go together"):
+    with pytest.raises(AdvisorError, match="needs freeze_to"):
         assess(solution, freezing=product)
+    with pytest.raises(AdvisorError, match="material with latent heat"):
+        assess(solution, freeze_to=300.0)

@@ -211,7 +211,8 @@ def assess(
         From and to in °C (for example 800, 500 for a steel): the time to pass through it.
     freezing : FreezingProduct, optional
         The product's properties for Plank's equation and Pham's method; the comparison goes
-        in ``Assessment.freezing``. Needs ``freeze_to``.
+        in ``Assessment.freezing``. Needs ``freeze_to``. Without it, ``freeze_to`` takes them
+        from the model's material with latent heat (:meth:`FreezingProduct.of_material`).
     freeze_to : float, optional
         The temperature in °C the slowest point must pass through to count as frozen.
 
@@ -273,8 +274,9 @@ def assess(
             times, histories, drive=drive, times_to=times_to, cooling_range=cooling_range
         )
     frozen = None
-    if freezing is not None:
-        frozen = _freezing(solution, lumped, biot, freezing, freeze_to, slowest)
+    product = _freezing_product(model, lumped, freezing, freeze_to)
+    if product is not None:
+        frozen = _freezing(solution, lumped, biot, product, freeze_to, slowest)
     return Assessment(**findings, verdict=verdict, quench=quench, freezing=frozen)
 
 
@@ -391,19 +393,43 @@ def check_request(
     drive = lumped.initial_temperature - lumped.equilibrium
     _check_arguments(lumped, drive, target, tolerance, quantity)
     _check_outputs(drive, cooling_range, freezing, freeze_to)
+    _freezing_product(model, lumped, freezing, freeze_to)
 
 
 def _check_outputs(drive, cooling_range, freezing, freeze_to) -> None:
     """The quench and freezing requests (their values are checked where they are used)."""
     if cooling_range is not None:
         quench_outputs([0.0, 1.0, 2.0], {}, drive=drive, cooling_range=cooling_range)
-    if (freezing is None) != (freeze_to is None):
+    if freezing is not None and freeze_to is None:
         raise AdvisorError(
-            "freezing (the product's FreezingProduct) and freeze_to (the temperature that "
-            "counts as frozen, degC) go together; give both or neither"
+            "freezing (the product's FreezingProduct) needs freeze_to, the temperature in "
+            "degC that counts as frozen"
         )
     if freezing is not None and not isinstance(freezing, FreezingProduct):
         raise AdvisorError(f"freezing must be a FreezingProduct, got {freezing!r}")
+
+
+def _freezing_product(model, lumped, freezing, freeze_to) -> FreezingProduct | None:
+    """The product for the hand calculations: the one given, or the material with latent
+    heat that fills most of the section (None without ``freeze_to``)."""
+    if freeze_to is None:
+        return None
+    if freezing is not None:
+        return freezing
+    volumes = model.section.facts.region_volumes
+    freezing_regions = [
+        (volumes[r], m) for r, m in model.materials.items() if getattr(m, "latent_heat", 0)
+    ]
+    if not freezing_regions:
+        raise AdvisorError(
+            "freeze_to needs a material with latent heat (latent_heat, solidus, liquidus) or "
+            "a FreezingProduct given as freezing"
+        )
+    _, material = max(freezing_regions, key=lambda pair: pair[0])
+    unfrozen = max(lumped.initial_temperature, material.liquidus + 1.0)
+    return FreezingProduct.of_material(
+        material, unfrozen_temperature=unfrozen, frozen_temperature=freeze_to
+    )
 
 
 def _check_arguments(lumped, drive, target, tolerance, quantity) -> None:

@@ -86,6 +86,42 @@ class FreezingProduct:
         if not math.isfinite(self.freezing_point):
             raise AdvisorError(f"freezing_point must be finite, got {self.freezing_point!r}")
 
+    @classmethod
+    def of_material(
+        cls, material, *, unfrozen_temperature: float, frozen_temperature: float
+    ) -> FreezingProduct:
+        """The product of a :class:`fem.Material` with latent heat (``latent_heat`` J/kg
+        released between ``solidus`` and ``liquidus`` °C): the freezing point is the
+        liquidus; c_u, c_f and k_f are the material's at ``unfrozen_temperature`` (above the
+        liquidus) and ``frozen_temperature`` (below the solidus), °C."""
+        latent = getattr(material, "latent_heat", 0.0) or 0.0
+        liquidus, solidus = getattr(material, "liquidus", None), getattr(material, "solidus", None)
+        if latent <= 0 or liquidus is None or solidus is None:
+            raise AdvisorError(
+                f"material {getattr(material, 'name', material)!r} has no latent heat, so it "
+                "has no freezing time; give a FreezingProduct, or a material with latent_heat, "
+                "solidus and liquidus"
+            )
+        if not (frozen_temperature < solidus and unfrozen_temperature > liquidus):
+            raise AdvisorError(
+                f"the frozen temperature ({frozen_temperature:g} degC) must lie below the "
+                f"solidus ({solidus:g} degC) and the unfrozen one ({unfrozen_temperature:g} "
+                f"degC) above the liquidus ({liquidus:g} degC)"
+            )
+        density = float(material.density)
+
+        def specific_heat(t):
+            return float(np.asarray(material.heat_capacity_at(t))) / density
+
+        return cls(
+            density,
+            float(latent),
+            float(liquidus),
+            float(np.asarray(material.conductivity_at(frozen_temperature))),
+            specific_heat(unfrozen_temperature),
+            specific_heat(frozen_temperature),
+        )
+
     @property
     def solid_density(self) -> float:
         """ρ_f in kg/m³."""

@@ -78,9 +78,13 @@ def read_outputs(root: Table) -> dict[str, bool]:
 
 
 def read_quench_keys(advisor: Table) -> dict:
-    """``[advisor]`` quench outputs: ``cooling_rates = true``, ``times_to = ["500 degC", ...]``
-    and ``cooling_range = ["800 degC", "500 degC"]`` (from, to)."""
+    """``[advisor]`` quench and freezing outputs: ``cooling_rates = true``, ``times_to =
+    ["500 degC", ...]``, ``cooling_range = ["800 degC", "500 degC"]`` (from, to) and
+    ``freeze_to = "-10 degC"`` (Plank's and Pham's times from the material's latent heat)."""
     options: dict = {}
+    freeze_to = temperature(advisor, "freeze_to", None)
+    if freeze_to is not None:
+        options["freeze_to"] = freeze_to
     if advisor.has("cooling_rates"):
         options["cooling_rates"] = advisor.flag("cooling_rates", False)
     for key in ("times_to", "cooling_range"):
