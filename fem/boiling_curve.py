@@ -282,6 +282,17 @@ class BoilingCurve:
         """(surface temperature °C, heat flux W/m²) pairs, for a table of heat flux."""
         return list(zip(self.surface_temperatures.tolist(), self.heat_flux.tolist(), strict=True))
 
+    def surface_curve(self):
+        """The curve as a :class:`fem.conditions.SurfaceCurve` of heat flux, for a
+        :class:`fem.conditions.SurfaceTemperatureConvection` with the bath as its ambient."""
+        from .conditions import surface_curve  # the condition's own module, loaded on use
+
+        return surface_curve.SurfaceCurve(
+            tuple(self.surface_temperatures.tolist()),
+            tuple(self.heat_flux.tolist()),
+            "heat_flux",
+        )
+
 
 def boiling_curve(
     liquid: Liquid,
