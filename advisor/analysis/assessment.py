@@ -3,6 +3,7 @@ which direction the lumped estimate is wrong — and what to use instead."""
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -11,6 +12,7 @@ from fem import ConductionSystem, Solution, ThermalModel
 
 from ..errors import AdvisorError
 from .biot import BiotNumber, biot_numbers
+from .freezing import FreezingComparison, FreezingProduct
 from .lumped import (
     FittedExponential,
     LumpedModel,
@@ -20,6 +22,8 @@ from .lumped import (
     fit_two_node,
 )
 from .modes import SlowestMode, slowest_mode
+from .process_readings import check_outputs, freezing_comparison, freezing_product
+from .quench import QuenchOutputs, quench_outputs
 from .verdict import QUANTITIES, RATINGS, SUBJECTS, Verdict, judge
 
 __all__ = [
@@ -94,11 +98,16 @@ class Assessment:
         Largest max − min temperature in the section (K) and when (s).
     energy_error : float
         Largest |lumped stored energy − field stored energy| over the run, as a fraction of the
-        energy a full approach to the ambient exchanges.
+        energy a full approach to the ambient exchanges (sensible and latent heat).
     target : float or None
     time_to_target : dict of str to float or None
         When each model and field quantity reaches the target, s.
     verdict : Verdict
+    quench : QuenchOutputs or None
+        Cooling rates against temperature, the largest rate, times to temperatures and the
+        time through a range at the slowest point and the probes, when asked for.
+    freezing : FreezingComparison or None
+        The field's freezing time beside Plank's and Pham's, when a product was given.
     """
 
     solution: Solution
@@ -119,6 +128,8 @@ class Assessment:
     target: float | None
     time_to_target: dict[str, float | None]
     verdict: Verdict = field(repr=False)
+    quench: QuenchOutputs | None = field(default=None, repr=False)
+    freezing: FreezingComparison | None = field(default=None, repr=False)
 
     @property
     def heating(self) -> bool:
@@ -182,6 +193,11 @@ def assess(
     tolerance: float = 0.05,
     quantity: str = "slowest",
     system: ConductionSystem | None = None,
+    cooling_rates: bool = False,
+    times_to: Sequence[float] = (),
+    cooling_range: Sequence[float] | None = None,
+    freezing: FreezingProduct | None = None,
+    freeze_to: float | None = None,
 ) -> Assessment:
     """Judge the lumped family against the field of ``solution``.
 
@@ -202,6 +218,20 @@ def assess(
         ``"time_to_target"`` (needs ``target``).
     system : fem.ConductionSystem, optional
         The run's assembled system, so the slowest mode does not assemble again.
+    cooling_rates : bool
+        Also read the quench outputs (:class:`QuenchOutputs` in ``Assessment.quench``):
+        cooling rate against temperature and its largest value at the slowest point and the
+        probes. Implied by ``times_to`` or ``cooling_range``.
+    times_to : sequence of float
+        Temperatures in °C whose first arrival at the slowest point and the probes is wanted.
+    cooling_range : (float, float), optional
+        From and to in °C (for example 800, 500 for a steel): the time to pass through it.
+    freezing : FreezingProduct, optional
+        The product's properties for Plank's equation and Pham's method; the comparison goes
+        in ``Assessment.freezing``. Needs ``freeze_to``. Without it, ``freeze_to`` takes them
+        from the model's material with latent heat (:meth:`FreezingProduct.of_material`).
+    freeze_to : float, optional
+        The temperature in °C the slowest point must pass through to count as frozen.
 
     Returns
     -------
@@ -224,6 +254,7 @@ def assess(
     lumped = LumpedModel.of(model)
     drive = lumped.initial_temperature - lumped.equilibrium  # > 0 cooling, < 0 heating
     _check_arguments(lumped, drive, target, tolerance, quantity)
+    check_outputs(drive, cooling_range, freezing, freeze_to)
     times = solution.times
     biot = biot_numbers(
         model,
@@ -251,13 +282,26 @@ def assess(
         time_to_target=_times_to_target(solution, lumped, family, target, drive),
         **family,
     )
-    return Assessment(**findings, verdict=judge(findings, quantity, tolerance, drive))
+    verdict = judge(findings, quantity, tolerance, drive)
+    slowest = solution.minimum if drive < 0 else solution.maximum
+    quench = None
+    if cooling_rates or times_to or cooling_range is not None:
+        histories = {"slowest": slowest} | {f"probe:{n}": h for n, h in solution.probes.items()}
+        quench = quench_outputs(
+            times, histories, drive=drive, times_to=times_to, cooling_range=cooling_range
+        )
+    frozen = None
+    product = freezing_product(model, lumped, freezing, freeze_to)
+    if product is not None:
+        frozen = freezing_comparison(solution, lumped, biot, product, freeze_to, slowest)
+    return Assessment(**findings, verdict=verdict, quench=quench, freezing=frozen)
 
 
 def _energy_error(solution: Solution, lumped: LumpedModel, curve, drive: float) -> float:
     """Largest |lumped − field stored energy| as a fraction of a full approach's exchange."""
     gap = np.abs(lumped.stored_energy(curve) - solution.stored_energy).max()
-    return float(gap / (lumped.heat_capacity * abs(drive)))
+    full_approach = abs(float(lumped.stored_energy(np.array([lumped.equilibrium]))[0]))
+    return float(gap / full_approach)  # latent heat included; C·|T0 − T_eq| for constant c
 
 
 def _lumped_family(solution: Solution, lumped: LumpedModel, scale: float, drive: float) -> dict:
@@ -336,12 +380,18 @@ def check_request(
     target: float | None = None,
     tolerance: float = 0.05,
     quantity: str = "slowest",
+    cooling_rates: bool = False,
+    times_to: Sequence[float] = (),
+    cooling_range: Sequence[float] | None = None,
+    freezing: FreezingProduct | None = None,
+    freeze_to: float | None = None,
 ) -> None:
     """Refuse, before any solve, an assessment that :func:`assess` would refuse."""
     lumped = LumpedModel.of(model)
-    _check_arguments(
-        lumped, lumped.initial_temperature - lumped.equilibrium, target, tolerance, quantity
-    )
+    drive = lumped.initial_temperature - lumped.equilibrium
+    _check_arguments(lumped, drive, target, tolerance, quantity)
+    check_outputs(drive, cooling_range, freezing, freeze_to)
+    freezing_product(model, lumped, freezing, freeze_to)
 
 
 def check_options(

@@ -5,6 +5,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+from scipy.optimize import minimize_scalar
 
 from fem import ThermalModel
 
@@ -115,12 +116,37 @@ def _lengths(model: ThermalModel) -> dict[str, float]:
 
 
 def _coefficient_range(model, end_time, low_t, high_t):
-    times = np.linspace(0.0, max(end_time, 0.0), 65)
-    temperatures = np.linspace(low_t, high_t, 9)
-    hs = [mean_coefficient(model, float(t_), float(time)) for time in times for t_ in temperatures]
+    """Surface coefficients and conductivities over the run: h on a grid of times and surface
+    temperatures, its extremes then refined in temperature (a coefficient that follows the
+    surface temperature may peak sharply between grid points, as nucleate boiling does)."""
+    steady = all(c.is_constant() for _, c in model.conditions())
+    times = np.linspace(0.0, max(end_time, 0.0), 1 if steady else 65)
+    temperatures = np.linspace(low_t, high_t, 65 if high_t > low_t else 1)
+    grid = np.array(
+        [
+            [mean_coefficient(model, float(t_), float(time)) for t_ in temperatures]
+            for time in times
+        ]
+    )
+    hs = list(grid.ravel())
+    if len(temperatures) > 1:
+        for sign in (1.0, -1.0):  # the largest, then the smallest
+            i, j = np.unravel_index(np.argmax(sign * grid), grid.shape)
+            time = float(times[i])
+            bracket = (
+                temperatures[max(j - 1, 0)],
+                temperatures[min(j + 1, len(temperatures) - 1)],
+            )
+            best = minimize_scalar(
+                lambda t_, time=time, sign=sign: -sign * mean_coefficient(model, t_, time),
+                bounds=bracket,
+                method="bounded",
+                options={"xatol": 1e-6 * (high_t - low_t)},
+            )
+            hs.append(-sign * float(best.fun))
     ks = [
         float(m.conductivity_at(float(t_)))
         for m in model.materials.values()
-        for t_ in temperatures
+        for t_ in np.linspace(low_t, high_t, 9)
     ]
     return hs, ks

@@ -5,7 +5,9 @@ condition lets into a part at one temperature (h·(T∞ − T), εσ(T_sur⁴ �
 With constant coefficients and no radiation, T(t) = T∞ + (T0 − T∞)·exp(−t/τ),
 τ = ρ·c·V / Σ h·A and T∞ the h·A-weighted ambient (Incropera et al., *Fundamentals of Heat
 and Mass Transfer*, 6th ed., §5.1, eq. 5.6 — from memory); otherwise the same balance is
-integrated in time with the model's own schedules and properties.
+integrated in time with the model's own schedules and properties, as an enthalpy balance
+(:mod:`advisor.analysis.lumped_balance`), so latent heat and coefficients that follow the
+surface temperature are taken as they are.
 
 Corrected: the same model with every coefficient replaced by h_eff = h / (1 + Bi/β), the
 improved lumped model of Cotta & Mikhailov, *Heat Conduction: Lumped Analysis, Integral
@@ -23,12 +25,12 @@ import math
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy.integrate import solve_ivp
 from scipy.optimize import least_squares
 
 from fem import ThermalModel
 
 from ..errors import AdvisorError
+from .lumped_balance import integrate_balance
 
 
 def mean_initial(model: ThermalModel) -> float:
@@ -89,6 +91,27 @@ def supplied_heat(model: ThermalModel, temperature: float, time: float) -> float
     return supplied + sum(q(time) * facts.region_volumes[r] for r, q in model.heat_sources.items())
 
 
+def stored_enthalpy(model: ThermalModel, temperatures, reference: float) -> np.ndarray:
+    """Σ V_r·(H_r(T) − H_r(T_ref)) over the regions for one temperature per entry of
+    ``temperatures`` °C, J (planar: J/m): sensible and latent heat."""
+    volumes = model.section.facts.region_volumes
+    t = np.asarray(temperatures, dtype=float)
+    return sum(
+        volumes[r] * np.asarray(m.enthalpy(t, reference), dtype=float)
+        for r, m in model.materials.items()
+    )
+
+
+def _linear_enthalpy(model: ThermalModel, reference: float) -> bool:
+    """True when the stored enthalpy is ρ·c·V·(T − T_ref) over the run's temperatures
+    (a material with latent heat is not, even with constant specific heat)."""
+    low, high = model.driving_temperatures(0.0)
+    probe = np.linspace(min(low, reference) - 1.0, max(high, reference) + 1.0, 257)
+    straight = heat_capacity(model, reference) * (probe - reference)
+    stored = stored_enthalpy(model, probe, reference)
+    return bool(np.allclose(stored, straight, rtol=1e-9, atol=0.0))
+
+
 @dataclass(frozen=True)
 class LumpedModel:
     """One temperature for the whole part, for the same conditions as a thermal model.
@@ -147,6 +170,7 @@ class LumpedModel:
             all(c.lumped_closed_form() for _, c in model.conditions())
             and not model.heat_sources
             and all(m.is_constant for m in model.materials.values())
+            and _linear_enthalpy(model, t0)
         )
         return cls(
             name,
@@ -176,9 +200,9 @@ class LumpedModel:
         return conductance / exposed
 
     def stored_energy(self, temperatures) -> np.ndarray:
-        """Heat stored since the start for lumped ``temperatures`` °C, J (planar: J/m), with
-        the capacity at the initial temperature."""
-        return self.heat_capacity * (np.asarray(temperatures) - self.initial_temperature)
+        """Heat stored since the start for lumped ``temperatures`` °C, J (planar: J/m): the
+        enthalpy Σ V_r·(H_r(T) − H_r(T0)), latent heat included."""
+        return stored_enthalpy(self.model, temperatures, self.initial_temperature)
 
     def temperature(self, times) -> np.ndarray:
         """T(t) in °C at ``times`` in s."""
@@ -199,10 +223,14 @@ class LumpedModel:
             return self.time_constant * math.log(start / remaining)
         if horizon is None:
             return None
-        times = np.linspace(0.0, horizon, 2001)
-        return crossing_time(
-            times, self.temperature(times), target, self.initial_temperature - self.equilibrium
+        _, crossing = integrate_balance(
+            self.model,
+            self.initial_temperature,
+            np.array([0.0, horizon]),
+            scale=self.coefficient_scale,
+            target=target,
         )
+        return crossing
 
     def parameters(self) -> dict[str, float]:
         return {
@@ -212,38 +240,10 @@ class LumpedModel:
         }
 
     def _integrate(self, times: np.ndarray) -> np.ndarray:
-        model = self.model
-        facts = model.section.facts
-        surfaces = facts.surface_areas
-        scale = self.coefficient_scale
-
-        def rate(t, y):
-            temperature = y[0]
-            heat = sum(
-                c.lumped_heat(temperature, t, scale) * surfaces[name]
-                for name, c in model.conditions()
-                if c.flows
-            )
-            for region, q in model.heat_sources.items():
-                heat += q(t) * facts.region_volumes[region]
-            return [heat / heat_capacity(model, temperature)]
-
-        end = float(times.max(initial=0.0))
-        if end == 0:
-            return np.full(times.shape, self.initial_temperature)
-        result = solve_ivp(
-            rate,
-            (0.0, end),
-            [self.initial_temperature],
-            method="LSODA",
-            t_eval=np.clip(times, 0.0, end),
-            rtol=1e-9,
-            atol=1e-9,
-            max_step=end / 400,
+        temperatures, _ = integrate_balance(
+            self.model, self.initial_temperature, times, scale=self.coefficient_scale
         )
-        if not result.success:
-            raise AdvisorError(f"the lumped model could not be integrated: {result.message}")
-        return result.y[0]
+        return temperatures
 
 
 @dataclass(frozen=True)

@@ -59,7 +59,9 @@ def quick_check(model: ThermalModel, *, target: float | None = None) -> QuickChe
     check_request(model, target=target)
     lumped = LumpedModel.of(model)
     drive = lumped.initial_temperature - lumped.equilibrium
-    biot = biot_numbers(model)
+    # the surface passes between the initial and the driving temperatures: a coefficient
+    # that follows it (radiation, a boiling curve) is sampled over that range
+    biot = biot_numbers(model, temperature_range=model.driving_temperatures(0.0))
     _, scale, _ = correction(model, biot)
     corrected = LumpedModel.of(model, scale=scale, name="corrected")
     mode = slowest_mode(model)

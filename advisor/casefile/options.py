@@ -60,6 +60,7 @@ def read_advisor(root: Table) -> dict:
     options["tolerance"] = advisor.get("tolerance", "number", 0.05)
     options["quantity"] = advisor.text("quantity", "slowest")
     build(advisor, check_options, **options, default="tolerance")
+    options.update(read_quench_keys(advisor))
     advisor.done()
     return options
 
@@ -72,3 +73,25 @@ def read_outputs(root: Table) -> dict[str, bool]:
     outputs = {key: table.flag(key, True) for key in OUTPUTS if table.has(key)}
     table.done()
     return outputs
+
+
+def read_quench_keys(advisor: Table) -> dict:
+    """``[advisor]`` quench and freezing outputs: ``cooling_rates = true``, ``times_to =
+    ["500 degC", ...]``, ``cooling_range = ["800 degC", "500 degC"]`` (from, to) and
+    ``freeze_to = "-10 degC"`` (Plank's and Pham's times from the material's latent heat)."""
+    options: dict = {}
+    freeze_to = temperature(advisor, "freeze_to", None)
+    if freeze_to is not None:
+        options["freeze_to"] = freeze_to
+    if advisor.has("cooling_rates"):
+        options["cooling_rates"] = advisor.flag("cooling_rates", False)
+    for key in ("times_to", "cooling_range"):
+        values = advisor.raw(key, None)
+        if values is None:
+            continue
+        pair = key == "cooling_range"
+        if not isinstance(values, list) or not values or (pair and len(values) != 2):
+            wanted = "[from, to], two temperatures" if pair else "a list of temperatures"
+            advisor.fail(key, f"expected {wanted}, got {values!r}")
+        options[key] = tuple(advisor.quantity(key, v, "temperature") for v in values)
+    return options
