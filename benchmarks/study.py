@@ -1,5 +1,7 @@
 """Studies: a sweep of the demonstration section (the quench-bar starter at its default 1 mm
-mesh) over 64 heat-transfer coefficients, on local worker processes.
+mesh) over 64 heat-transfer coefficients, on local worker processes; and a 200-point validity
+map of it, analysed into its report, on 2 worker processes and on a dask LocalCluster of 2
+workers (when dask is installed).
 
 The same study runs three times from its own empty store: in this process (``serial``), then
 on a pool of 1 and of 2 spawned worker processes. Figures:
@@ -67,7 +69,52 @@ def task_study(params: dict, reporter) -> dict:
         runs[name] = _study(case, scratch / f"out-{name}", cases, map_, workers)
         reporter.update(runs=runs)
     efficiency = runs["1"]["wall_seconds"] / (2 * runs["2"]["wall_seconds"])
-    return {"cases": cases, "runs": runs, "parallel_efficiency": efficiency}
+    maps = _validity_maps(case, scratch, int(params.get("map_cases", 200)), reporter, runs)
+    return {"cases": cases, "runs": runs, "parallel_efficiency": efficiency, "maps": maps}
+
+
+def _validity_maps(case: Path, scratch: Path, cases: int, reporter, runs: dict) -> dict:
+    """A ``cases``-point validity map on 2 processes and on a LocalCluster of 2 workers: the
+    sweep, then its analysis and report (``study.html``)."""
+    import importlib.util
+
+    from advisor.casefile import load_case
+    from advisor.studies.study_report import analyse_study, write_study_report
+    from advisor.studies.tables import read_study
+
+    engines = [("processes", "processes")]
+    if importlib.util.find_spec("distributed") is not None:
+        engines.append(("dask LocalCluster", "dask"))
+    maps = {}
+    for name, kind in engines:
+        out = scratch / f"map-{kind}"
+        if kind == "dask":
+            from distributed import Client, LocalCluster
+
+            with (
+                LocalCluster(n_workers=2, threads_per_worker=1, processes=True) as cluster,
+                Client(cluster) as client,
+            ):
+                found = _study(case, out, cases, client, 2)
+        else:
+            found = _study(case, out, cases, "processes", 2)
+        started = time.perf_counter()
+        title = load_case(case).title
+        findings = analyse_study(
+            read_study(out),
+            title=title,
+            variable=H_KEY,
+            errors={
+                "classical": "error_classical_slowest",
+                "corrected": "error_corrected_slowest",
+            },
+        )
+        write_study_report(findings, out, read_study(out))
+        found["report_seconds"] = time.perf_counter() - started
+        found["design_rule"] = findings.rules[0].text if findings.rules else ""
+        maps[name] = found
+        reporter.update(runs=runs, maps=maps)
+    return maps
 
 
 def study_targets(outcomes, target) -> list[dict]:
@@ -103,6 +150,17 @@ def study_targets(outcomes, target) -> list[dict]:
                 f"{run['overhead_per_case_s']:.3g} s",
                 run["overhead_per_case_s"] < OVERHEAD_TARGET,
                 f"beyond the solve alone {run['overhead_beyond_solve_per_case_s']:.3g} s",
+            )
+        )
+    for name, run in (data.get("maps") or {}).items():
+        rows.append(
+            target(
+                f"{run['cases']}-point validity map on {name} (2 workers), report included",
+                "measured",
+                f"{run['wall_seconds'] + run['report_seconds']:.3g} s",
+                None,
+                f"sweep {run['wall_seconds']:.3g} s, report {run['report_seconds']:.3g} s, "
+                f"load {run['load_average'][0]:.1f}; {run['design_rule']}",
             )
         )
     return rows
