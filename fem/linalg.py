@@ -39,6 +39,7 @@ class Cost:
     solves: int = 0
     newton_iterations: int = 0
     max_newton_iterations: int = 0
+    damped_iterations: int = 0  # Newton updates shortened by the line search
 
     def iterated(self, iterations: int) -> None:
         """Count a step's Newton iterations (one solve each)."""

@@ -106,6 +106,96 @@ def _clamped_integral(table: PropertyTable, t: np.ndarray) -> np.ndarray:
 Property = float | PropertyTable
 
 
+def smooth_fraction(temperature, solidus: float, liquidus: float):
+    """The liquid fraction S(T) of a phase change between ``solidus`` and ``liquidus`` °C:
+    0 below, 1 above and 3x² − 2x³ between (x the position in the range), so the latent heat it
+    releases, L·S'(T), is continuous and Newton's method sees no jump in the tangent."""
+    x = np.clip((np.asarray(temperature, dtype=float) - solidus) / (liquidus - solidus), 0, 1)
+    return x * x * (3.0 - 2.0 * x)
+
+
+def smooth_fraction_slope(temperature, solidus: float, liquidus: float):
+    """dS/dT of :func:`smooth_fraction`, 1/K: 6x(1 − x)/(liquidus − solidus), peak 1.5/range."""
+    width = liquidus - solidus
+    x = np.clip((np.asarray(temperature, dtype=float) - solidus) / width, 0, 1)
+    return 6.0 * x * (1.0 - x) / width
+
+
+@dataclass(frozen=True)
+class EnthalpyTable:
+    """Specific enthalpy h(T) as a table of temperature, latent heat included, J/kg.
+
+    Between the points h is the monotone piecewise-cubic (PCHIP) interpolant, so the specific
+    heat dh/dT is continuous and never negative; beyond the ends h continues along the end
+    slopes.
+
+    Parameters
+    ----------
+    temperatures : sequence of float
+        Strictly increasing temperatures in °C (at least three).
+    values : sequence of float
+        Specific enthalpy at those temperatures in J/kg, strictly increasing (any reference).
+    """
+
+    temperatures: tuple[float, ...]
+    values: tuple[float, ...]
+
+    def __post_init__(self) -> None:
+        t = np.asarray(self.temperatures, dtype=float)
+        v = np.asarray(self.values, dtype=float)
+        if t.ndim != 1 or t.shape != v.shape or len(t) < 3:
+            raise ModelError(
+                "an enthalpy table needs at least three (temperature, enthalpy) pairs of equal "
+                f"length, got {len(t)} temperatures and {len(v)} values"
+            )
+        if not (np.all(np.isfinite(t)) and np.all(np.isfinite(v))):
+            raise ModelError("enthalpy table entries must be finite")
+        if np.any(np.diff(t) <= 0) or np.any(t <= ABSOLUTE_ZERO):
+            raise ModelError(
+                f"enthalpy table temperatures must increase strictly and lie above "
+                f"{ABSOLUTE_ZERO:g} degC, got {t.tolist()}"
+            )
+        if np.any(np.diff(v) <= 0):
+            raise ModelError(
+                f"enthalpy table values must increase strictly with temperature (a specific "
+                f"heat > 0), got {v.tolist()} J/kg"
+            )
+        object.__setattr__(self, "temperatures", tuple(t.tolist()))
+        object.__setattr__(self, "values", tuple(v.tolist()))
+
+    def _curve(self):
+        curve = self.__dict__.get("_pchip")
+        if curve is None:
+            from scipy.interpolate import PchipInterpolator  # only runs that use a table pay
+
+            curve = PchipInterpolator(self.temperatures, self.values, extrapolate=False)
+            object.__setattr__(self, "_pchip", curve)
+        return curve
+
+    def __call__(self, temperature):
+        """h at ``temperature`` °C, J/kg."""
+        t = np.asarray(temperature, dtype=float)
+        low, high = self.temperatures[0], self.temperatures[-1]
+        curve = self._curve()
+        inside = curve(np.clip(t, low, high))
+        slope_low, slope_high = curve(low, 1), curve(high, 1)
+        return (
+            inside
+            + np.where(t < low, slope_low * (t - low), 0.0)
+            + np.where(t > high, slope_high * (t - high), 0.0)
+        )
+
+    def slope(self, temperature):
+        """dh/dT at ``temperature`` °C: the specific heat, J/(kg·K)."""
+        low, high = self.temperatures[0], self.temperatures[-1]
+        return self._curve()(np.clip(np.asarray(temperature, dtype=float), low, high), 1)
+
+    def specific_heat_table(self) -> PropertyTable:
+        """dh/dT at the table's temperatures, as a property table for reports, J/(kg·K)."""
+        slopes = self.slope(np.asarray(self.temperatures))
+        return PropertyTable(self.temperatures, tuple(np.maximum(slopes, 1e-12).tolist()))
+
+
 def _check_property(value, name: str, unit: str) -> Property:
     if isinstance(value, PropertyTable):
         return value
@@ -134,6 +224,16 @@ class Material:
         A label for reports.
     source : str
         Where the values come from.
+    latent_heat : float
+        Latent heat of the phase change in J/kg (0: none), released between ``solidus`` and
+        ``liquidus`` by the smooth fraction of :func:`smooth_fraction` and added to the
+        enthalpy H(T) = ∫ρc dT + ρ·L·S(T).
+    solidus, liquidus : float, optional
+        Temperatures in °C where the phase change ends and begins (liquidus − solidus > 0; a
+        range of 0.5–2 K keeps a front sharp and Newton's method fast).
+    specific_enthalpy : EnthalpyTable, optional
+        The enthalpy directly (latent heat included), instead of ``specific_heat`` and
+        ``latent_heat``; see :meth:`from_enthalpy`.
 
     Examples
     --------
@@ -147,8 +247,43 @@ class Material:
     specific_heat: Property
     name: str = "material"
     source: str = ""
+    latent_heat: float = 0.0
+    solidus: float | None = None
+    liquidus: float | None = None
+    specific_enthalpy: EnthalpyTable | None = None
+
+    @classmethod
+    def from_enthalpy(
+        cls,
+        conductivity: Property,
+        density: float,
+        specific_enthalpy: EnthalpyTable,
+        name: str = "material",
+        source: str = "",
+    ) -> Material:
+        """A material whose heat storage is a table of specific enthalpy (J/kg) against
+        temperature (°C); ``specific_heat`` becomes its slope at the table's points (for
+        reports).
+
+        >>> water = EnthalpyTable((-5.0, -1.0, 0.0, 5.0), (0.0, 8.4e3, 3.4e5, 3.6e5))
+        >>> round(float(Material.from_enthalpy(0.6, 1000.0, water).enthalpy(0.0, -5.0)))
+        340000000
+        """
+        if not isinstance(specific_enthalpy, EnthalpyTable):
+            raise ModelError(
+                f"Material specific_enthalpy must be an EnthalpyTable, got {specific_enthalpy!r}"
+            )
+        return cls(
+            conductivity,
+            density,
+            specific_enthalpy.specific_heat_table(),
+            name,
+            source,
+            specific_enthalpy=specific_enthalpy,
+        )
 
     def __post_init__(self) -> None:
+        self._check_phase_change()
         object.__setattr__(
             self, "conductivity", _check_property(self.conductivity, "conductivity", "W/(m*K)")
         )
@@ -160,12 +295,69 @@ class Material:
             self, "specific_heat", _check_property(self.specific_heat, "specific_heat", "J/(kg*K)")
         )
 
+    def _check_phase_change(self) -> None:
+        latent = self.latent_heat
+        if not (isinstance(latent, int | float) and not isinstance(latent, bool)) or not (
+            math.isfinite(latent) and latent >= 0
+        ):
+            raise ModelError(
+                f"Material latent_heat must be a finite value >= 0 J/kg, got {latent!r}",
+                argument="latent_heat",
+            )
+        object.__setattr__(self, "latent_heat", float(latent))
+        bounds = (self.solidus, self.liquidus)
+        if latent == 0:
+            if bounds != (None, None):
+                raise ModelError(
+                    "Material solidus and liquidus need a latent_heat > 0 J/kg",
+                    argument="latent_heat",
+                )
+            return
+        for name, value in zip(("solidus", "liquidus"), bounds, strict=True):
+            if not isinstance(value, int | float) or isinstance(value, bool):
+                raise ModelError(
+                    f"Material with latent heat needs a {name} temperature in degC, got {value!r}",
+                    argument=name,
+                )
+            if not math.isfinite(value) or value <= ABSOLUTE_ZERO:
+                raise ModelError(
+                    f"Material {name} must be above {ABSOLUTE_ZERO:g} degC, got {value!r}",
+                    argument=name,
+                )
+        if not self.liquidus > self.solidus:
+            raise ModelError(
+                f"Material liquidus {self.liquidus!r} degC must lie above the solidus "
+                f"{self.solidus!r} degC (a freezing range of 0.5-2 K is typical; a range of 0 "
+                "would make the enthalpy jump)",
+                argument="liquidus",
+            )
+        if self.specific_enthalpy is not None:
+            raise ModelError(
+                "Material takes either latent_heat or specific_enthalpy (which includes it)",
+                argument="latent_heat",
+            )
+        object.__setattr__(self, "solidus", float(self.solidus))
+        object.__setattr__(self, "liquidus", float(self.liquidus))
+
     @property
     def is_constant(self) -> bool:
-        """True when no property depends on temperature."""
-        return not isinstance(self.conductivity, PropertyTable) and not isinstance(
-            self.specific_heat, PropertyTable
+        """True when no property depends on temperature (and there is no phase change)."""
+        return not isinstance(self.conductivity, PropertyTable) and self.constant_capacity
+
+    @property
+    def constant_capacity(self) -> bool:
+        """True when ρc is one number: no table, no latent heat, no enthalpy table."""
+        return (
+            isinstance(self.specific_heat, float)
+            and self.latent_heat == 0
+            and self.specific_enthalpy is None
         )
+
+    @property
+    def has_phase_change(self) -> bool:
+        """True when the material stores latent heat (given as such or in an enthalpy
+        table)."""
+        return self.latent_heat > 0 or self.specific_enthalpy is not None
 
     def conductivity_at(self, temperature):
         k = self.conductivity
@@ -184,22 +376,39 @@ class Material:
         )
 
     def heat_capacity_at(self, temperature):
-        """ρ·c(T) in J/(m³·K)."""
+        """ρ·dh/dT in J/(m³·K): ρ·c(T), with the latent heat's release ρ·L·S'(T)."""
+        if self.specific_enthalpy is not None:
+            return self.density * self.specific_enthalpy.slope(temperature)
         c = self.specific_heat
         values = (
             c(temperature)
             if isinstance(c, PropertyTable)
             else np.full_like(np.asarray(temperature, dtype=float), c)
         )
+        if self.latent_heat:
+            values = values + self.latent_heat * smooth_fraction_slope(
+                temperature, self.solidus, self.liquidus
+            )
         return self.density * values
 
     def enthalpy(self, temperature, reference: float):
-        """∫ ρ·c dT from ``reference`` to ``temperature`` (°C), J/m³."""
-        c = self.specific_heat
+        """H(T) − H(reference): ∫ ρ·c dT from ``reference`` to ``temperature`` (°C) with the
+        latent heat released between them, J/m³."""
         t = np.asarray(temperature, dtype=float)
+        if self.specific_enthalpy is not None:
+            table = self.specific_enthalpy
+            return self.density * (table(t) - table(reference))
+        c = self.specific_heat
         if isinstance(c, PropertyTable):
-            return self.density * c.integral(t, reference)
-        return self.density * c * (t - reference)
+            sensible = c.integral(t, reference)
+        else:
+            sensible = c * (t - reference)
+        if self.latent_heat:
+            fraction = smooth_fraction(t, self.solidus, self.liquidus)
+            sensible = sensible + self.latent_heat * (
+                fraction - smooth_fraction(reference, self.solidus, self.liquidus)
+            )
+        return self.density * sensible
 
     def _nominal(self, value) -> float:
         return float(np.mean(value.range)) if isinstance(value, PropertyTable) else value

@@ -1,9 +1,15 @@
-"""One step of a multistep formula for a nonlinear model, by simplified Newton.
+"""One step of a multistep formula for a nonlinear model, by damped simplified Newton.
 
 The step's residual is a0·C(T1)/h + Σ a_j·C(T_j)/h + β·G(T1, t1) + (1 − β)·G(T0, t0). The
 factorised tangent is kept across iterations and steps (of the same size and formula) while it
 still shrinks the change by ``TANGENT_RATE`` or better; otherwise it is refactorised at the
 current iterate. A step then costs a few solves instead of a factorisation per iteration.
+
+Each update is damped by a line search on the residual's norm (Armijo's test, step lengths
+halved): a full update that does not lower the residual is first retried with a fresh tangent,
+then shortened. Latent heat released over a narrow range, or a coefficient that jumps with the
+surface temperature, make the full update overshoot; the shortened one does not. When the
+iterations still fail, :class:`NewtonStepError` tells the march to retry the step smaller.
 """
 
 from __future__ import annotations
@@ -17,14 +23,35 @@ from .integrators import StepFormula, StepResult
 from .stepper import RunContext
 
 TANGENT_RATE = 0.5  # a kept Newton tangent must shrink the change at least this much per iteration
+SUFFICIENT_DECREASE = 1e-4  # Armijo: the residual norm must fall by this fraction of the length
+SHORTEST_UPDATE = 1.0 / 64  # the shortest damped update, as a fraction of Newton's
+
+
+class NewtonStepError(SolverError):
+    """Newton's method did not converge in one step (the march retries it smaller).
+
+    Attributes
+    ----------
+    time, step : float
+        End of the step and its size, s.
+    change : float
+        The last full Newton update's largest entry, K.
+    residual : float
+        The last residual's largest entry on the free degrees of freedom, W.
+    """
+
+    def __init__(self, message: str, time: float, step: float, change: float, residual: float):
+        super().__init__(message)
+        self.time, self.step, self.change, self.residual = time, step, change, residual
 
 
 class NewtonStep:
-    """Solves nonlinear steps of a run (radiation, k(T), c(T))."""
+    """Solves nonlinear steps of a run (radiation, k(T), c(T), latent heat, h(T_s))."""
 
     def __init__(self, run: RunContext):
         self.run = run
-        # Capacity and radiation tangents are symmetric; k(T) adds k'(T)·δ·∇T, which is not.
+        # Capacity, radiation and h(T_s) tangents are symmetric; k(T) adds k'(T)·δ·∇T, which
+        # is not.
         self.symmetric = all(
             isinstance(m.conductivity, float) for m in run.system.model.materials.values()
         )
@@ -60,41 +87,81 @@ class NewtonStep:
 
         u = guess.copy()
         system.impose_fixed(u, inside1)
-        self._iterate(u, residual, formula, step, t1)
-        r = residual(u)
+        r = self._iterate(u, residual, formula, step, t1)
         reactions = {name: float(r[d].sum()) for name, d in system.fixed_dofs.items()}
         inflow = formula.beta * -float(system.net_outflow(u, inside1).sum())
         inflow += (1 - formula.beta) * inflow_old
         heat = step * (inflow + sum(reactions.values()))
         return StepResult(u, float(system.stored(u).sum()), heat, reactions)
 
-    def _iterate(self, u, residual, formula: StepFormula, step: float, t1: float) -> None:
-        """Newton's iterations on the free degrees of freedom of ``u`` (in place)."""
-        system, controls = self.run.system, self.run.controls
-        inside1 = t1 - 1e-9 * step
-        free = system.free_dofs
+    def _factor(self, u: np.ndarray, formula: StepFormula, step: float, t1: float, key) -> None:
+        """Factorise the tangent at ``u`` and keep it under ``key``."""
+        system = self.run.system
+        jacobian = (formula.a[0] / step) * system.capacity_tangent(u) + formula.beta * (
+            system.outflow_tangent(u, t1 - 1e-9 * step)
+        )
+        self.tangent = (key, self.run.algebra.factor(jacobian, self.symmetric))
+
+    def _iterate(self, u, residual, formula: StepFormula, step: float, t1: float) -> np.ndarray:
+        """Damped Newton iterations on the free degrees of freedom of ``u`` (in place); the
+        residual at the solution."""
+        controls, cost = self.run.controls, self.run.cost
+        free = self.run.system.free_dofs
         key = (float(f"{formula.a[0] / step:.12e}"), formula.beta)
-        refresh = self.tangent is None or self.tangent[0] != key
+        if self.tangent is None or self.tangent[0] != key:
+            self._factor(u, formula, step, t1, key)
+        fresh = True  # the kept tangent was factorised at the current iterate
         previous = math.inf
+        r = residual(u)
+        norm = float(np.linalg.norm(r[free]))
+        largest = math.inf
         for iteration in range(1, controls.max_newton_iterations + 1):
-            r = residual(u)
-            if refresh:
-                jacobian = (formula.a[0] / step) * system.capacity_tangent(u) + formula.beta * (
-                    system.outflow_tangent(u, inside1)
-                )
-                self.tangent = (key, self.run.algebra.factor(jacobian, self.symmetric))
             change = self.tangent[1].solve(-r[free])
-            u[free] += change
             largest = float(np.abs(change).max(initial=0.0))
             if largest <= controls.newton_tolerance:
-                self.run.cost.iterated(iteration)
-                return
-            refresh = largest > TANGENT_RATE * previous
+                u[free] += change
+                cost.iterated(iteration)
+                return residual(u)
+            if not fresh and largest > TANGENT_RATE * previous:
+                self._factor(u, formula, step, t1, key)  # the kept tangent has gone stale
+                fresh = True
+                change = self.tangent[1].solve(-r[free])
+                largest = float(np.abs(change).max(initial=0.0))
+            length, trial, trial_norm = self._search(u, change, residual, norm, free)
+            if length < 1 and not fresh:  # try the exact tangent before damping
+                self._factor(u, formula, step, t1, key)
+                change = self.tangent[1].solve(-r[free])
+                largest = float(np.abs(change).max(initial=0.0))
+                length, trial, trial_norm = self._search(u, change, residual, norm, free)
+            if length < 1:
+                cost.damped_iterations += 1
+            u[free] += length * change
+            r, norm = trial, trial_norm
+            fresh = False
             previous = largest
-        raise SolverError(
-            f"Newton's method did not converge at t = {t1:.6g} s (step "
-            f"{step:.3g} s) in {controls.max_newton_iterations} iterations; the last change "
-            f"was {largest:.3g} K and the residual "
-            f"{float(np.abs(residual(u)[free]).max()):.3g} W. Try a smaller time step or a "
-            "looser newton_tolerance"
+        cost.iterated(controls.max_newton_iterations)
+        residual_norm = float(np.abs(r[free]).max(initial=0.0))
+        raise NewtonStepError(
+            f"Newton's method did not converge at t = {t1:.6g} s (step {step:.3g} s) in "
+            f"{controls.max_newton_iterations} iterations; the last change was {largest:.3g} K "
+            f"and the residual {residual_norm:.3g} W",
+            t1,
+            step,
+            largest,
+            residual_norm,
         )
+
+    def _search(self, u, change, residual, norm, free):
+        """The update's length (1, ½, ¼ … down to ``SHORTEST_UPDATE``) that lowers the
+        residual's norm enough, with the residual there and its norm."""
+        length = 1.0
+        while True:
+            trial_field = u.copy()
+            trial_field[free] += length * change
+            trial = residual(trial_field)
+            trial_norm = float(np.linalg.norm(trial[free]))
+            if trial_norm <= (1 - SUFFICIENT_DECREASE * length) * norm:
+                return length, trial, trial_norm
+            if length <= SHORTEST_UPDATE:
+                return length, trial, trial_norm  # no decrease found: take the shortest
+            length /= 2

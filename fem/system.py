@@ -275,7 +275,7 @@ class ConductionSystem:
 
     @property
     def _constant_capacity(self) -> bool:
-        return all(isinstance(m.specific_heat, float) for m in self.model.materials.values())
+        return all(m.constant_capacity for m in self.model.materials.values())
 
     @property
     def _constant_conductivity(self) -> bool:
