@@ -21,11 +21,14 @@ _LAZY = {
     "HeatFlux": ".conditions",
     "Insulated": ".conditions",
     "Radiation": ".conditions",
+    "SurfaceCurve": ".conditions",
+    "SurfaceTemperatureConvection": ".conditions",
     "check_exponential_parts": ".exponential_run",
     "FieldSeries": ".fields",
     "Material": ".materials",
     "PropertyRangeWarning": ".materials",
     "PropertyTable": ".materials",
+    "EnthalpyTable": ".materials",
     "ThermalModel": ".model",
     "Constant": ".schedules",
     "Periodic": ".schedules",
@@ -70,6 +73,9 @@ __all__ = [
     "SolverStats",
     "Steps",
     "StopWhen",
+    "SurfaceCurve",
+    "SurfaceTemperatureConvection",
+    "EnthalpyTable",
     "ThermalModel",
 ]
 
@@ -83,11 +89,13 @@ if TYPE_CHECKING:
         HeatFlux,
         Insulated,
         Radiation,
+        SurfaceCurve,
+        SurfaceTemperatureConvection,
     )
     from .events import StopWhen
     from .exponential_run import check_exponential_parts
     from .fields import FieldSeries
-    from .materials import Material, PropertyRangeWarning, PropertyTable
+    from .materials import EnthalpyTable, Material, PropertyRangeWarning, PropertyTable
     from .model import ThermalModel
     from .schedules import Constant, Periodic, PiecewiseLinear, Sinusoid, Steps
     from .solution import RunChecks, Solution, SolverStats

@@ -22,6 +22,7 @@ from . import forms
 from .conditions import Condition
 from .materials import Material
 from .model import ThermalModel
+from .quadrature import QuadratureOperator
 
 ENTHALPY_REFERENCE = 0.0  # °C: H(T) = ∫ρc dT from here; differences are all that matter
 
@@ -50,13 +51,20 @@ class EdgeTerms:
         """∫ φ_j φ_i dS: the exchange matrix of a unit coefficient, m²."""
         return self._exchange(1.0)
 
+    @cached_property
+    def quadrature(self) -> QuadratureOperator:
+        """The gather to this edge's quadrature points, built on first use."""
+        return QuadratureOperator(self.basis, self.axisymmetric)
+
     def interpolate(self, field_: np.ndarray) -> np.ndarray:
         """The nodal ``field_`` at the quadrature points, shape (facets, points)."""
-        return np.asarray(self.basis.interpolate(field_))
+        return self.quadrature.interpolate(field_).reshape(self.quadrature.shape)
 
     def integrate(self, flux) -> np.ndarray:
         """∫ q φ_i dS per node, ``flux`` q in W/m² at the quadrature points (or a number)."""
-        return asm(forms.surface_load, self.basis, flux=flux, axisymmetric=self.axisymmetric)
+        if np.ndim(flux) == 0:
+            return flux * self.weights
+        return self.quadrature.integrate(flux)
 
     def exchange(self, coefficient) -> sp.csr_matrix:
         """∫ c φ_j φ_i dS, ``coefficient`` c in W/(m²·K) at the quadrature points (or a
@@ -66,6 +74,8 @@ class EdgeTerms:
         return self._exchange(coefficient)
 
     def _exchange(self, coefficient) -> sp.csr_matrix:
+        if np.ndim(coefficient):
+            return self.quadrature.mass(coefficient)
         return asm(
             forms.surface_exchange,
             self.basis,
@@ -159,20 +169,24 @@ class ConductionSystem:
         return b
 
     # -- the full residual pieces -----------------------------------------------------------
+    @cached_property
+    def quadrature(self) -> dict[str, QuadratureOperator]:
+        """Each region's gather to its quadrature points (built on first use: only the
+        temperature-dependent parts of nonlinear runs need them)."""
+        return {
+            region: QuadratureOperator(basis, self.axisymmetric, gradients=True)
+            for region, basis in self.region_bases.items()
+        }
+
     def stored(self, temperature: np.ndarray) -> np.ndarray:
         """C(T): ∫ H(T) φ_i dV per node, J (planar: J/m)."""
         if self._constant_capacity:
             return self.capacity @ temperature
         total = np.zeros(self.size)
-        for region, basis in self.region_bases.items():
+        for region, operator in self.quadrature.items():
             material = self.model.materials[region]
-            t = basis.interpolate(temperature)
-            total += asm(
-                forms.enthalpy,
-                basis,
-                enthalpy=material.enthalpy(np.asarray(t), ENTHALPY_REFERENCE),
-                axisymmetric=self.axisymmetric,
-            )
+            t = operator.interpolate(temperature)
+            total += operator.integrate(material.enthalpy(t, ENTHALPY_REFERENCE))
         return total
 
     def capacity_tangent(self, temperature: np.ndarray) -> sp.csr_matrix:
@@ -180,16 +194,9 @@ class ConductionSystem:
         if self._constant_capacity:
             return self.capacity
         total = None
-        for region, basis in self.region_bases.items():
-            t = basis.interpolate(temperature)
-            part = asm(
-                forms.heat_capacity,
-                basis,
-                volumetric_heat_capacity=self.model.materials[region].heat_capacity_at(
-                    np.asarray(t)
-                ),
-                axisymmetric=self.axisymmetric,
-            )
+        for region, operator in self.quadrature.items():
+            t = operator.interpolate(temperature)
+            part = operator.mass(self.model.materials[region].heat_capacity_at(t))
             total = part if total is None else total + part
         return total.tocsr()
 
@@ -211,16 +218,11 @@ class ConductionSystem:
             total = self.exchange_operator(time)
         else:
             total = self.exchange_operator(time) - self.stiffness
-            for region, basis in self.region_bases.items():
+            for region, operator in self.quadrature.items():
                 material = self.model.materials[region]
-                t = basis.interpolate(temperature)
-                total = total + asm(
-                    forms.conduction_tangent,
-                    basis,
-                    temperature=t,
-                    conductivity=material.conductivity_at(np.asarray(t)),
-                    conductivity_slope=material.conductivity_slope(np.asarray(t)),
-                    axisymmetric=self.axisymmetric,
+                t = operator.interpolate(temperature)
+                total = total + operator.conduction_tangent(
+                    material.conductivity_at(t), material.conductivity_slope(t), temperature
                 )
         for edge, condition in self.flowing():
             tangent = condition.outflow_tangent(edge, temperature, time)
@@ -232,15 +234,10 @@ class ConductionSystem:
         if self._constant_conductivity:
             return self.stiffness @ temperature
         total = np.zeros(self.size)
-        for region, basis in self.region_bases.items():
-            t = basis.interpolate(temperature)
-            total += asm(
-                forms.conduction_residual,
-                basis,
-                temperature=t,
-                conductivity=self.model.materials[region].conductivity_at(np.asarray(t)),
-                axisymmetric=self.axisymmetric,
-            )
+        for region, operator in self.quadrature.items():
+            t = operator.interpolate(temperature)
+            conductivity = self.model.materials[region].conductivity_at(t)
+            total += operator.conduction(conductivity, temperature)
         return total
 
     # -- what the histories report ----------------------------------------------------------

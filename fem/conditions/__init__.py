@@ -11,11 +11,13 @@ from .base import KINDS, Condition, Linearised, SurfaceEdge, conditions, registe
 # isort: off
 from .convection import Convection
 from .radiation import STEFAN_BOLTZMANN, Radiation
+from .surface_convection import SurfaceTemperatureConvection
 from .flux import HeatFlux
 from .fixed import FixedTemperature
 from .insulated import Insulated
 
 # isort: on
+from .surface_curve import SurfaceCurve
 
 BoundaryCondition = Condition | tuple[Condition, ...]
 
@@ -30,7 +32,9 @@ __all__ = [
     "Insulated",
     "Linearised",
     "Radiation",
+    "SurfaceCurve",
     "SurfaceEdge",
+    "SurfaceTemperatureConvection",
     "conditions",
     "register",
 ]

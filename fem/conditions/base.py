@@ -32,7 +32,7 @@ KINDS: dict[str, type[Condition]] = {}  # name in case files → class
 
 
 def register(kind: type[Condition]) -> type[Condition]:
-    """Class decorator: list ``kind`` under its ``kind.name`` (messages list the kinds from here)."""
+    """Class decorator: list ``kind`` under its ``kind.name`` (messages list kinds from here)."""
     KINDS[kind.name] = kind
     return kind
 

@@ -1,0 +1,90 @@
+"""Gathers from nodal values to quadrature points, built once per basis, for the parts of the
+equations that change with temperature.
+
+scikit-fem's ``Basis.interpolate`` recomputes ``np.unique`` over every element's degrees of
+freedom on each call, and ``asm`` rebuilds its index arrays on each call; a nonlinear step
+interpolates and assembles a few times per iteration. Here the shape functions at the
+quadrature points become sparse matrices once: V (values) and G_x, G_y (gradients), rows one
+per quadrature point, with w the quadrature weights times the measure (2πr for axisymmetric
+sections). Then, exactly as the forms of :mod:`fem.forms` integrate,
+
+    ∫ f φ_i dV = Vᵀ(w·f),   ∫ c φ_j φ_i dV = Vᵀ diag(w·c) V,
+    ∫ k ∇T·∇φ_i dV = Σ_d G_dᵀ(w·k·G_d T),
+
+each a sparse product; the same quadrature rule as ``asm``, so results agree to round-off.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import scipy.sparse as sp
+
+
+class QuadratureOperator:
+    """Sparse interpolation to the quadrature points of a scikit-fem basis (cells or facets).
+
+    Parameters
+    ----------
+    basis : skfem.CellBasis or skfem.FacetBasis
+    axisymmetric : bool
+        Weight by 2πr (r = x) for a section revolved about x = 0.
+    gradients : bool
+        Also build the gradient gathers (cells only).
+    """
+
+    def __init__(self, basis, axisymmetric: bool, gradients: bool = False):
+        dofs = basis.element_dofs  # (local shape function, element)
+        elements, points = basis.dx.shape
+        self.shape = (elements, points)
+        rows = np.arange(elements * points).reshape(elements, points)
+        size = (elements * points, basis.N)
+
+        def gather(pick) -> sp.csr_matrix:
+            data = np.concatenate([pick(basis.basis[i][0]).ravel() for i in range(basis.Nbfun)])
+            cols = np.concatenate(
+                [np.repeat(dofs[i], points) for i in range(basis.Nbfun)]
+            )  # element-major, like the rows
+            return sp.csr_matrix((data, (np.tile(rows.ravel(), basis.Nbfun), cols)), shape=size)
+
+        self.values = gather(lambda field: field.value)
+        self.transposed = self.values.T.tocsr()
+        self.gradients = (
+            [gather(lambda field, d=d: field.grad[d]) for d in range(2)] if gradients else []
+        )
+        self.gradients_transposed = [g.T.tocsr() for g in self.gradients]
+        weights = np.asarray(basis.dx, dtype=float)
+        if axisymmetric:
+            weights = weights * 2.0 * np.pi * np.asarray(basis.mapping.F(basis.X))[0]
+        self.weights = weights.ravel()
+
+    def interpolate(self, field: np.ndarray) -> np.ndarray:
+        """The nodal ``field`` at the quadrature points, flat (element-major)."""
+        return self.values @ field
+
+    def integrate(self, value) -> np.ndarray:
+        """∫ f φ_i for ``value`` f at the quadrature points (flat or (elements, points))."""
+        return self.transposed @ (self.weights * np.ravel(value))
+
+    def mass(self, coefficient) -> sp.csr_matrix:
+        """∫ c φ_j φ_i for ``coefficient`` c at the quadrature points."""
+        scaled = sp.diags(self.weights * np.ravel(coefficient))
+        return (self.transposed @ scaled @ self.values).tocsr()
+
+    def conduction(self, conductivity: np.ndarray, field: np.ndarray) -> np.ndarray:
+        """∫ k ∇T·∇φ_i for ``conductivity`` k at the quadrature points and nodal ``field``."""
+        scaled = self.weights * conductivity
+        return sum(
+            gt @ (scaled * (g @ field))
+            for g, gt in zip(self.gradients, self.gradients_transposed, strict=True)
+        )
+
+    def conduction_tangent(
+        self, conductivity: np.ndarray, slope: np.ndarray, field: np.ndarray
+    ) -> sp.csr_matrix:
+        """∫ (k ∇δ + k'(T) δ ∇T)·∇φ_i: the derivative of :meth:`conduction` for k(T)."""
+        total = None
+        for g, gt in zip(self.gradients, self.gradients_transposed, strict=True):
+            part = gt @ sp.diags(self.weights * conductivity) @ g
+            part = part + gt @ sp.diags(self.weights * slope * (g @ field)) @ self.values
+            total = part if total is None else total + part
+        return total.tocsr()
