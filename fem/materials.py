@@ -85,22 +85,28 @@ class PropertyTable:
         return (min(self.values), max(self.values))
 
 
+def _table_arrays(table: PropertyTable):
+    """The table as arrays with the running integral at its points, kept on the table (a
+    nonlinear step integrates it a few times per iteration)."""
+    arrays = table.__dict__.get("_arrays")
+    if arrays is None:
+        tt = np.asarray(table.temperatures)
+        vv = np.asarray(table.values)
+        cumulative = np.concatenate([[0.0], np.cumsum(0.5 * (vv[1:] + vv[:-1]) * np.diff(tt))])
+        arrays = (tt, vv, cumulative)
+        object.__setattr__(table, "_arrays", arrays)
+    return arrays
+
+
 def _clamped_integral(table: PropertyTable, t: np.ndarray) -> np.ndarray:
-    """∫ from the first table temperature to t of the clamped piecewise-linear table."""
-    tt = np.asarray(table.temperatures)
-    vv = np.asarray(table.values)
-    cumulative = np.concatenate([[0.0], np.cumsum(0.5 * (vv[1:] + vv[:-1]) * np.diff(tt))])
-    below = t < tt[0]
-    above = t > tt[-1]
+    """∫ from the first table temperature to t of the clamped piecewise-linear table: inside
+    it exact, beyond its ends the end value times the distance."""
+    tt, vv, cumulative = _table_arrays(table)
     tc = np.clip(t, tt[0], tt[-1])
     i = np.clip(np.searchsorted(tt, tc, side="right") - 1, 0, len(tt) - 2)
     vc = np.interp(tc, tt, vv)
     inside = cumulative[i] + 0.5 * (vv[i] + vc) * (tc - tt[i])
-    return (
-        inside
-        + np.where(below, vv[0] * (t - tt[0]), 0.0)
-        + np.where(above, vv[-1] * (t - tt[-1]), 0.0)
-    )
+    return inside + vv[0] * np.minimum(t - tt[0], 0.0) + vv[-1] * np.maximum(t - tt[-1], 0.0)
 
 
 Property = float | PropertyTable
