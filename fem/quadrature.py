@@ -46,7 +46,7 @@ class QuadratureOperator:
             )  # element-major, like the rows
             return sp.csr_matrix((data, (np.tile(rows.ravel(), basis.Nbfun), cols)), shape=size)
 
-        self.values = gather(lambda field: field.value)
+        self.values = gather(np.asarray)
         self.transposed = self.values.T.tocsr()
         self.gradients = (
             [gather(lambda field, d=d: field.grad[d]) for d in range(2)] if gradients else []
