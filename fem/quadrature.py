@@ -54,7 +54,7 @@ class QuadratureOperator:
         self.gradients_transposed = [g.T.tocsr() for g in self.gradients]
         weights = np.asarray(basis.dx, dtype=float)
         if axisymmetric:
-            weights = weights * 2.0 * np.pi * np.asarray(basis.mapping.F(basis.X))[0]
+            weights = weights * 2.0 * np.pi * np.asarray(basis.global_coordinates())[0]
         self.weights = weights.ravel()
 
     def interpolate(self, field: np.ndarray) -> np.ndarray:

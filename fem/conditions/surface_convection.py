@@ -100,7 +100,7 @@ class SurfaceTemperatureConvection(Condition):
     # -- time -------------------------------------------------------------------------------
     def breakpoints(self, end_time: float) -> set[float]:
         stages = {start for start, _ in self.curve[1:] if 0 < start <= end_time}
-        return stages | self.ambient.breakpoints(end_time)
+        return stages | set(self.ambient.breakpoints(end_time))
 
     def is_constant(self) -> bool:
         return len(self.curve) == 1 and self.ambient.is_constant

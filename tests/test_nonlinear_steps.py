@@ -1,0 +1,84 @@
+"""Nonlinear steps that do not give up where damping or a smaller step works.
+
+Two runs that fail with plain Newton steps succeed by default, and their statistics say how:
+
+- freezing (latent heat over 0.5 K) at 60 s fixed steps: the full Newton update overshoots
+  the freezing range; the line search on the residual shortens it;
+- a quench through a film-to-nucleate jump of 10× in h over 50 K at 5 s fixed steps: Newton's
+  iterations cycle across the jump; the step is subdivided.
+
+Each run's energy balance is held to 1e-6 of the exchanged energy, and a run that cannot be
+rescued names the time, the step, the residual and the settings to change. The freezing case
+also keeps the Neumann front within 2 % (Carslaw & Jaeger, *Conduction of Heat in Solids*, 2nd
+ed., §11.2, from memory; the root-finding is in ``test_phase_change``), at steps 40× the
+adaptive run's.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+
+import numpy as np
+import pytest
+import test_phase_change as freezing
+import test_surface_convection as quench
+
+import fem.newton
+import fem.step_control
+from fem import Material, SolverError, solve
+
+
+def freezing_model():
+    material = Material(
+        freezing.SOLID_K,
+        freezing.DENSITY,
+        freezing.SOLID_C,
+        latent_heat=freezing.LATENT,
+        solidus=-0.25,
+        liquidus=0.25,
+    )
+    return freezing.strip_model(0.06, material, 0.25)
+
+
+def test_damping_rescues_freezing_at_large_steps(monkeypatch):
+    model = freezing_model()
+    solution = solve(model, 3600.0, time_step=60.0, output_times=freezing.TIMES)
+    assert solution.stats.damped_iterations > 0
+    assert solution.stats.subdivided_steps == 0
+    assert solution.checks.energy_balance_error <= 1e-6
+    alpha = freezing.SOLID_K / (freezing.DENSITY * freezing.SOLID_C)
+    lam = freezing.one_phase_lambda(freezing.SOLID_C * 10.0 / freezing.LATENT)
+    x, temperature = freezing.profile(solution, 3600.0)
+    # 60 s Crank–Nicolson steps on a moving front: required 2 %.
+    expected = 2 * lam * math.sqrt(alpha * 3600.0)
+    assert freezing.front(x, temperature) == pytest.approx(expected, rel=0.02)
+
+    monkeypatch.setattr(fem.newton, "SHORTEST_UPDATE", 1.0)  # no damping
+    monkeypatch.setattr(fem.step_control, "SUBDIVISIONS", 0)  # no smaller steps
+    with pytest.raises(SolverError, match="newton_tolerance"):
+        solve(model, 3600.0, time_step=60.0, output_times=freezing.TIMES)
+
+
+def test_subdivision_rescues_quench_at_large_steps(monkeypatch):
+    model = quench.cylinder_model("coefficient")
+    solution = solve(model, quench.END, time_step=5.0, output_times=quench.TIMES)
+    stats = solution.stats
+    assert stats.subdivided_steps >= 1
+    assert stats.retried_steps >= stats.subdivided_steps
+    assert stats.smallest_step < 5.0
+    assert solution.checks.energy_balance_error <= 1e-6
+    centre, surface = quench.method_of_lines("coefficient")
+    rows = np.searchsorted(solution.times, quench.TIMES)
+    # 5 s Crank–Nicolson steps through the film collapse: required 2 % of the 790 K span.
+    assert np.abs(solution.probes["surface"][rows] - surface).max() < 0.02 * 790.0
+    assert np.abs(solution.probes["centre"][rows] - centre).max() < 0.02 * 790.0
+
+    monkeypatch.setattr(fem.step_control, "SUBDIVISIONS", 0)
+    with pytest.raises(SolverError) as failure:
+        solve(model, quench.END, time_step=5.0, output_times=quench.TIMES)
+    message = str(failure.value)
+    assert re.search(r"t = [0-9.]+ s", message)
+    assert re.search(r"residual [0-9.eE+-]+ W", message)
+    for setting in ("max_newton_iterations", "newton_tolerance", "time_step"):
+        assert setting in message
