@@ -97,9 +97,9 @@ class SurfaceCurve:
         if np.any(wrong):
             i = int(np.argmax(wrong))
             raise ModelError(
-                f"SurfaceCurve heat flux {q[i]:g} W/m^2 at {t[i]:g} degC flows towards the "
-                f"hotter side of a fluid at {ambient:g} degC: the flux leaving the surface must "
-                "be >= 0 above the fluid's temperature and <= 0 below it",
+                f"the heat flux {q[i]:g} W/m^2 leaving a surface at {t[i]:g} degC flows towards "
+                f"the hotter side of a fluid at {ambient:g} degC: it must be >= 0 above the "
+                "fluid's temperature and <= 0 below it",
                 argument="values",
             )
 
