@@ -87,9 +87,11 @@ class NewtonStep:
 
         u = guess.copy()
         system.impose_fixed(u, inside1)
-        r = self._iterate(u, residual, formula, step, t1)
+        self._iterate(u, residual, formula, step, t1)
+        outflow1 = system.net_outflow(u, inside1)
+        r = formula.a[0] * system.stored(u) / step + known + formula.beta * outflow1
         reactions = {name: float(r[d].sum()) for name, d in system.fixed_dofs.items()}
-        inflow = formula.beta * -float(system.net_outflow(u, inside1).sum())
+        inflow = formula.beta * -float(outflow1.sum())
         inflow += (1 - formula.beta) * inflow_old
         heat = step * (inflow + sum(reactions.values()))
         return StepResult(u, float(system.stored(u).sum()), heat, reactions)
@@ -102,9 +104,10 @@ class NewtonStep:
         )
         self.tangent = (key, self.run.algebra.factor(jacobian, self.symmetric))
 
-    def _iterate(self, u, residual, formula: StepFormula, step: float, t1: float) -> np.ndarray:
-        """Damped Newton iterations on the free degrees of freedom of ``u`` (in place); the
-        residual at the solution."""
+    def _iterate(self, u, residual, formula: StepFormula, step: float, t1: float) -> None:
+        """Damped Newton iterations on the free degrees of freedom of ``u`` (in place), until
+        the update is below the tolerance (the energy balance of the step is then closed to
+        the tolerance's share)."""
         controls, cost = self.run.controls, self.run.cost
         free = self.run.system.free_dofs
         key = (float(f"{formula.a[0] / step:.12e}"), formula.beta)
@@ -121,7 +124,7 @@ class NewtonStep:
             if largest <= controls.newton_tolerance:
                 u[free] += change
                 cost.iterated(iteration)
-                return residual(u)
+                return
             if not fresh and largest > TANGENT_RATE * previous:
                 self._factor(u, formula, step, t1, key)  # the kept tangent has gone stale
                 fresh = True

@@ -182,6 +182,9 @@ class ConductionSystem:
         """C(T): ∫ H(T) φ_i dV per node, J (planar: J/m)."""
         if self._constant_capacity:
             return self.capacity @ temperature
+        return _remembered(self, "_stored_memo", temperature, self._stored)
+
+    def _stored(self, temperature: np.ndarray) -> np.ndarray:
         total = np.zeros(self.size)
         for region, operator in self.quadrature.items():
             material = self.model.materials[region]
@@ -233,6 +236,9 @@ class ConductionSystem:
     def _conduction(self, temperature: np.ndarray) -> np.ndarray:
         if self._constant_conductivity:
             return self.stiffness @ temperature
+        return _remembered(self, "_conduction_memo", temperature, self._conduction_of)
+
+    def _conduction_of(self, temperature: np.ndarray) -> np.ndarray:
         total = np.zeros(self.size)
         for region, operator in self.quadrature.items():
             t = operator.interpolate(temperature)
@@ -277,6 +283,19 @@ class ConductionSystem:
     @property
     def _constant_conductivity(self) -> bool:
         return all(isinstance(m.conductivity, float) for m in self.model.materials.values())
+
+
+def _remembered(system, name: str, temperature: np.ndarray, compute) -> np.ndarray:
+    """``compute(temperature)``, or the last result when ``temperature`` is the field it was
+    computed for: a step's last residual and the next step's known part share their field.
+    The result is read-only, since callers receive the remembered array itself."""
+    memo = system.__dict__.get(name)
+    if memo is not None and np.array_equal(memo[0], temperature):
+        return memo[1]
+    result = compute(temperature)
+    result.flags.writeable = False
+    system.__dict__[name] = (temperature.copy(), result)
+    return result
 
 
 def element_for(model: ThermalModel):
