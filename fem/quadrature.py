@@ -1,5 +1,5 @@
 """Gathers from nodal values to quadrature points, built once per basis, for the parts of the
-equations that change with temperature.
+equations that change with temperature; the edge terms the boundary conditions use.
 
 scikit-fem's ``Basis.interpolate`` recomputes ``np.unique`` over every element's degrees of
 freedom on each call, and ``asm`` rebuilds its index arrays on each call; a nonlinear step
@@ -16,8 +16,15 @@ each a sparse product; the same quadrature rule as ``asm``, so results agree to 
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+from functools import cached_property
+
 import numpy as np
 import scipy.sparse as sp
+from skfem import FacetBasis, asm
+
+from . import forms
+from .conditions import Condition
 
 
 class QuadratureOperator:
@@ -88,3 +95,67 @@ class QuadratureOperator:
             part = part + gt @ sp.diags(self.weights * slope * (g @ field)) @ self.values
             total = part if total is None else total + part
         return total.tocsr()
+
+
+def remembered(system, name: str, temperature: np.ndarray, compute) -> np.ndarray:
+    """``compute(temperature)``, or the last result when ``temperature`` is the field it was
+    computed for: a step's last residual and the next step's known part share their field.
+    The result is read-only, since callers receive the remembered array itself."""
+    memo = system.__dict__.get(name)
+    if memo is not None and np.array_equal(memo[0], temperature):
+        return memo[1]
+    result = compute(temperature)
+    result.flags.writeable = False
+    system.__dict__[name] = (temperature.copy(), result)
+    return result
+
+
+@dataclass
+class EdgeTerms:
+    """One edge group's basis and what its conditions ask of it (a
+    :class:`fem.conditions.SurfaceEdge`): fields at its quadrature points, fluxes given there
+    integrated against the shape functions, and exchange matrices for coefficients given
+    there."""
+
+    basis: FacetBasis
+    weights: np.ndarray  # ∫ φ_i dS
+    area: float  # Σ weights: the group's surface area
+    axisymmetric: bool
+    conditions: tuple[Condition, ...]  # those of its conditions through which heat flows
+
+    @cached_property
+    def exchange_matrix(self) -> sp.csr_matrix:
+        """∫ φ_j φ_i dS: the exchange matrix of a unit coefficient, m²."""
+        return self._exchange(1.0)
+
+    @cached_property
+    def quadrature(self) -> QuadratureOperator:
+        """The gather to this edge's quadrature points, built on first use."""
+        return QuadratureOperator(self.basis, self.axisymmetric)
+
+    def interpolate(self, field_: np.ndarray) -> np.ndarray:
+        """The nodal ``field_`` at the quadrature points, shape (facets, points)."""
+        return self.quadrature.interpolate(field_).reshape(self.quadrature.shape)
+
+    def integrate(self, flux) -> np.ndarray:
+        """∫ q φ_i dS per node, ``flux`` q in W/m² at the quadrature points (or a number)."""
+        if np.ndim(flux) == 0:
+            return flux * self.weights
+        return self.quadrature.integrate(flux)
+
+    def exchange(self, coefficient) -> sp.csr_matrix:
+        """∫ c φ_j φ_i dS, ``coefficient`` c in W/(m²·K) at the quadrature points (or a
+        number)."""
+        if np.ndim(coefficient) == 0:
+            return coefficient * self.exchange_matrix
+        return self._exchange(coefficient)
+
+    def _exchange(self, coefficient) -> sp.csr_matrix:
+        if np.ndim(coefficient):
+            return self.quadrature.mass(coefficient)
+        return asm(
+            forms.surface_exchange,
+            self.basis,
+            coefficient=coefficient,
+            axisymmetric=self.axisymmetric,
+        ).tocsr()
