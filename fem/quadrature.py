@@ -55,14 +55,46 @@ class QuadratureOperator:
 
         self.values = gather(np.asarray)
         self.transposed = self.values.T.tocsr()
-        self.gradients = (
-            [gather(lambda field, d=d: field.grad[d]) for d in range(2)] if gradients else []
-        )
-        self.gradients_transposed = [g.T.tocsr() for g in self.gradients]
         weights = np.asarray(basis.dx, dtype=float)
         if axisymmetric:
             weights = weights * 2.0 * np.pi * np.asarray(basis.global_coordinates())[0]
         self.weights = weights.ravel()
+        if gradients:
+            self._gradient_gathers(basis, gather)
+
+    def _gradient_gathers(self, basis, gather) -> None:
+        """∂/∂x and ∂/∂y stacked in one matrix: at every quadrature point, or once per element
+        where the gradients are constant in it (P1 on straight triangles), which cuts a
+        conduction residual's products by the number of points."""
+        elements, points = self.shape
+        fields = [np.asarray(basis.basis[i][0].grad) for i in range(basis.Nbfun)]
+        scale = max(float(np.abs(f).max()) for f in fields)
+        self.per_element = points > 1 and all(
+            float(np.ptp(f, axis=-1).max()) <= 1e-12 * scale for f in fields
+        )
+        if self.per_element:
+            dofs = basis.element_dofs
+            rows = np.tile(np.arange(elements), basis.Nbfun)
+            cols = np.concatenate([dofs[i] for i in range(basis.Nbfun)])
+            parts = [
+                sp.csr_matrix(
+                    (np.concatenate([f[d, :, 0] for f in fields]), (rows, cols)),
+                    shape=(elements, basis.N),
+                )
+                for d in range(2)
+            ]
+            # sums each element's points: (elements, elements·points)
+            self._element_sum = sp.csr_matrix(
+                (
+                    np.ones(elements * points),
+                    (np.repeat(np.arange(elements), points), np.arange(elements * points)),
+                ),
+                shape=(elements, elements * points),
+            )
+        else:
+            parts = [gather(lambda field, d=d: field.grad[d]) for d in range(2)]
+        self.gradient = sp.vstack(parts).tocsr()
+        self.gradient_transposed = self.gradient.T.tocsr()
 
     def interpolate(self, field: np.ndarray) -> np.ndarray:
         """The nodal ``field`` at the quadrature points, flat (element-major)."""
@@ -77,23 +109,30 @@ class QuadratureOperator:
         scaled = sp.diags(self.weights * np.ravel(coefficient))
         return (self.transposed @ scaled @ self.values).tocsr()
 
+    def _weighted(self, conductivity: np.ndarray) -> np.ndarray:
+        """w·k at each row of the stacked gradient (per element: summed over its points)."""
+        weighted = self.weights * conductivity
+        if self.per_element:  # a product, not .sum(axis=1): numpy's short-axis sums are slow
+            weighted = weighted.reshape(self.shape) @ np.ones(self.shape[1])
+        return np.concatenate((weighted, weighted))
+
     def conduction(self, conductivity: np.ndarray, field: np.ndarray) -> np.ndarray:
         """∫ k ∇T·∇φ_i for ``conductivity`` k at the quadrature points and nodal ``field``."""
-        scaled = self.weights * conductivity
-        return sum(
-            gt @ (scaled * (g @ field))
-            for g, gt in zip(self.gradients, self.gradients_transposed, strict=True)
-        )
+        return self.gradient_transposed @ (self._weighted(conductivity) * (self.gradient @ field))
 
     def conduction_tangent(
         self, conductivity: np.ndarray, slope: np.ndarray, field: np.ndarray
     ) -> sp.csr_matrix:
         """∫ (k ∇δ + k'(T) δ ∇T)·∇φ_i: the derivative of :meth:`conduction` for k(T)."""
-        total = None
-        for g, gt in zip(self.gradients, self.gradients_transposed, strict=True):
-            part = gt @ sp.diags(self.weights * conductivity) @ g
-            part = part + gt @ sp.diags(self.weights * slope * (g @ field)) @ self.values
-            total = part if total is None else total + part
+        g, gt = self.gradient, self.gradient_transposed
+        total = gt @ sp.diags(self._weighted(conductivity)) @ g
+        # k'(T)·δ at the points, against ∇T at the same rows as the stacked gradient
+        values = sp.diags(self.weights * slope) @ self.values
+        if self.per_element:
+            values = self._element_sum @ values
+        else:
+            values = values.tocsr()
+        total = total + gt @ sp.diags(g @ field) @ sp.vstack([values, values])
         return total.tocsr()
 
 
