@@ -40,6 +40,7 @@ class Cost:
     newton_iterations: int = 0
     max_newton_iterations: int = 0
     damped_iterations: int = 0  # Newton updates shortened by the line search
+    iteration_seconds: float = 0.0  # Newton iterations of converged steps, factorisations in
 
     def iterated(self, iterations: int) -> None:
         """Count a step's Newton iterations (one solve each)."""

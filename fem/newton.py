@@ -15,6 +15,7 @@ iterations still fail, :class:`NewtonStepError` tells the march to retry the ste
 from __future__ import annotations
 
 import math
+import time as clock
 
 import numpy as np
 
@@ -110,6 +111,7 @@ class NewtonStep:
         the tolerance's share)."""
         controls, cost = self.run.controls, self.run.cost
         free = self.run.system.free_dofs
+        started = clock.perf_counter()
         key = (float(f"{formula.a[0] / step:.12e}"), formula.beta)
         if self.tangent is None or self.tangent[0] != key:
             self._factor(u, formula, step, t1, key)
@@ -124,8 +126,9 @@ class NewtonStep:
             if largest <= controls.newton_tolerance:
                 u[free] += change
                 cost.iterated(iteration)
+                cost.iteration_seconds += clock.perf_counter() - started
                 return
-            if not fresh and largest > TANGENT_RATE * previous:
+            if not fresh and self._stale(largest, previous, controls.newton_tolerance):
                 self._factor(u, formula, step, t1, key)  # the kept tangent has gone stale
                 fresh = True
                 change = self.tangent[1].solve(-r[free])
@@ -153,6 +156,22 @@ class NewtonStep:
             largest,
             residual_norm,
         )
+
+    def _stale(self, change: float, previous: float, tolerance: float) -> bool:
+        """Whether to refactorise a kept tangent that shrank the update from ``previous`` to
+        ``change`` K: when it shrinks it by less than ``TANGENT_RATE``, or when the iterations
+        it would still need (at that rate, to the tolerance) cost more than a factorisation at
+        this run's measured prices (a fresh tangent converges in about two)."""
+        rate = change / previous
+        if rate > TANGENT_RATE:
+            return True
+        if change <= tolerance or rate <= 0:
+            return False
+        cost = self.run.cost
+        iteration = cost.iteration_seconds / max(cost.newton_iterations, 1)
+        factorisation = cost.factorisation_seconds / max(cost.factorisations, 1)
+        remaining = math.log(tolerance / change) / math.log(rate)
+        return remaining * iteration > factorisation + 2 * iteration
 
     def _search(self, u, change, residual, norm, free):
         """The update's length (1, ½, ¼ … down to ``SHORTEST_UPDATE``) that lowers the

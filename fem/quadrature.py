@@ -55,6 +55,8 @@ class QuadratureOperator:
 
         self.values = gather(np.asarray)
         self.transposed = self.values.T.tocsr()
+        self._dofs, self._size = dofs, basis.N
+        self._phi = np.array([np.asarray(basis.basis[i][0]) for i in range(basis.Nbfun)])
         weights = np.asarray(basis.dx, dtype=float)
         if axisymmetric:
             weights = weights * 2.0 * np.pi * np.asarray(basis.global_coordinates())[0]
@@ -68,6 +70,7 @@ class QuadratureOperator:
         conduction residual's products by the number of points."""
         elements, points = self.shape
         fields = [np.asarray(basis.basis[i][0].grad) for i in range(basis.Nbfun)]
+        self._grads = np.array(fields)  # (shape function, direction, element, point)
         scale = max(float(np.abs(f).max()) for f in fields)
         self.per_element = points > 1 and all(
             float(np.ptp(f, axis=-1).max()) <= 1e-12 * scale for f in fields
@@ -83,14 +86,6 @@ class QuadratureOperator:
                 )
                 for d in range(2)
             ]
-            # sums each element's points: (elements, elements·points)
-            self._element_sum = sp.csr_matrix(
-                (
-                    np.ones(elements * points),
-                    (np.repeat(np.arange(elements), points), np.arange(elements * points)),
-                ),
-                shape=(elements, elements * points),
-            )
         else:
             parts = [gather(lambda field, d=d: field.grad[d]) for d in range(2)]
         self.gradient = sp.vstack(parts).tocsr()
@@ -104,10 +99,38 @@ class QuadratureOperator:
         """∫ f φ_i for ``value`` f at the quadrature points (flat or (elements, points))."""
         return self.transposed @ (self.weights * np.ravel(value))
 
+    @cached_property
+    def _scatter(self):
+        """Element matrices → the global matrix: the pattern (indices, indptr) of every pair of
+        an element's degrees of freedom, and the sparse sum S of each element entry (ordered
+        element, row, column) into its place, so assembling is one product S·entries."""
+        dofs, size = self._dofs, self._size
+        local = dofs.shape[0]
+        rows = np.broadcast_to(dofs[:, None, :], (local, local, dofs.shape[1]))
+        cols = np.broadcast_to(dofs[None, :, :], (local, local, dofs.shape[1]))
+        keys = (
+            rows.transpose(2, 0, 1).astype(np.int64).ravel() * size
+            + cols.transpose(2, 0, 1).ravel()
+        )
+        unique, inverse = np.unique(keys, return_inverse=True)
+        scatter = sp.csr_matrix(
+            (np.ones(keys.size), (inverse, np.arange(keys.size))), shape=(unique.size, keys.size)
+        )
+        indices = (unique % size).astype(np.int32)
+        indptr = np.searchsorted(unique // size, np.arange(size + 1)).astype(np.int32)
+        return scatter, indices, indptr
+
+    def _assembled(self, entries: np.ndarray) -> sp.csr_matrix:
+        """The global matrix of element matrices ``entries`` (element, row, column)."""
+        scatter, indices, indptr = self._scatter
+        data = scatter @ entries.ravel()
+        return sp.csr_matrix((data, indices, indptr), shape=(self._size, self._size))
+
     def mass(self, coefficient) -> sp.csr_matrix:
         """∫ c φ_j φ_i for ``coefficient`` c at the quadrature points."""
-        scaled = sp.diags(self.weights * np.ravel(coefficient))
-        return (self.transposed @ scaled @ self.values).tocsr()
+        weighted = (self.weights * np.ravel(coefficient)).reshape(self.shape)
+        phi = self._phi
+        return self._assembled(np.einsum("iep,jep,ep->eij", phi, phi, weighted, optimize=True))
 
     def _weighted(self, conductivity: np.ndarray) -> np.ndarray:
         """w·k at each row of the stacked gradient (per element: summed over its points)."""
@@ -124,16 +147,14 @@ class QuadratureOperator:
         self, conductivity: np.ndarray, slope: np.ndarray, field: np.ndarray
     ) -> sp.csr_matrix:
         """∫ (k ∇δ + k'(T) δ ∇T)·∇φ_i: the derivative of :meth:`conduction` for k(T)."""
-        g, gt = self.gradient, self.gradient_transposed
-        total = gt @ sp.diags(self._weighted(conductivity)) @ g
-        # k'(T)·δ at the points, against ∇T at the same rows as the stacked gradient
-        values = sp.diags(self.weights * slope) @ self.values
-        if self.per_element:
-            values = self._element_sum @ values
-        else:
-            values = values.tocsr()
-        total = total + gt @ sp.diags(g @ field) @ sp.vstack([values, values])
-        return total.tocsr()
+        grads, phi = self._grads, self._phi
+        conducting = (self.weights * conductivity).reshape(self.shape)
+        entries = np.einsum("idep,jdep,ep->eij", grads, grads, conducting, optimize=True)
+        gradient = np.einsum("idep,ie->dep", grads, field[self._dofs], optimize=True)  # ∇T
+        along = np.einsum("idep,dep->iep", grads, gradient, optimize=True)  # ∇φ_i·∇T
+        sloping = (self.weights * slope).reshape(self.shape)
+        entries += np.einsum("iep,jep,ep->eij", along, phi, sloping, optimize=True)
+        return self._assembled(entries)
 
 
 def remembered(system, name: str, temperature: np.ndarray, compute) -> np.ndarray:
