@@ -26,6 +26,9 @@ from .stepper import RunContext
 TANGENT_RATE = 0.5  # a kept Newton tangent must shrink the change at least this much per iteration
 SUFFICIENT_DECREASE = 1e-4  # Armijo: the residual norm must fall by this fraction of the length
 SHORTEST_UPDATE = 1.0 / 64  # the shortest damped update, as a fraction of Newton's
+# Updates this short, this many times running, mean the iterations are stuck (a kink in a
+# table they circle around): the step is given up early and retried smaller.
+STALLED_LENGTH, STALLED_ITERATIONS = 1.0 / 8, 4
 
 
 class NewtonStepError(SolverError):
@@ -111,7 +114,7 @@ class NewtonStep:
         the tolerance's share)."""
         controls, cost = self.run.controls, self.run.cost
         free = self.run.system.free_dofs
-        started = clock.perf_counter()
+        started, factoring = clock.perf_counter(), cost.factorisation_seconds
         key = (float(f"{formula.a[0] / step:.12e}"), formula.beta)
         if self.tangent is None or self.tangent[0] != key:
             self._factor(u, formula, step, t1, key)
@@ -120,13 +123,15 @@ class NewtonStep:
         r = residual(u)
         norm = float(np.linalg.norm(r[free]))
         largest = math.inf
+        stalled = iteration = 0
         for iteration in range(1, controls.max_newton_iterations + 1):
             change = self.tangent[1].solve(-r[free])
             largest = float(np.abs(change).max(initial=0.0))
             if largest <= controls.newton_tolerance:
                 u[free] += change
                 cost.iterated(iteration)
-                cost.iteration_seconds += clock.perf_counter() - started
+                spent = clock.perf_counter() - started
+                cost.iteration_seconds += spent - (cost.factorisation_seconds - factoring)
                 return
             if not fresh and self._stale(largest, previous, controls.newton_tolerance):
                 self._factor(u, formula, step, t1, key)  # the kept tangent has gone stale
@@ -145,12 +150,16 @@ class NewtonStep:
             r, norm = trial, trial_norm
             fresh = False
             previous = largest
-        cost.iterated(controls.max_newton_iterations)
+            stalled = stalled + 1 if length <= STALLED_LENGTH else 0
+            if stalled >= STALLED_ITERATIONS:
+                break
+        cost.iterated(iteration)
         residual_norm = float(np.abs(r[free]).max(initial=0.0))
+        how = "stalled after" if stalled >= STALLED_ITERATIONS else "did not converge in"
         raise NewtonStepError(
-            f"Newton's method did not converge at t = {t1:.6g} s (step {step:.3g} s) in "
-            f"{controls.max_newton_iterations} iterations; the last change was {largest:.3g} K "
-            f"and the residual {residual_norm:.3g} W",
+            f"Newton's method {how} {iteration} iterations at t = {t1:.6g} s (step "
+            f"{step:.3g} s); the last change was {largest:.3g} K and the residual "
+            f"{residual_norm:.3g} W",
             t1,
             step,
             largest,
