@@ -15,7 +15,7 @@ factorisation and stepping time over its steps. Run from the repository root::
 
     python -m benchmarks.nonlinear --nodes 10k --steps 200
 
-It prints a table and writes ``benchmarks/nonlinear.json``.
+It prints a table and writes ``benchmarks/results-nonlinear.json``.
 """
 
 from __future__ import annotations
@@ -39,7 +39,7 @@ from fem import (
 from . import models
 from .cli import count
 
-OUTPUT = Path(__file__).resolve().parent / "nonlinear.json"
+OUTPUT = Path(__file__).resolve().parent / "results-nonlinear.json"
 FOOD = {"conductivity": 0.5, "density": 1050.0, "specific_heat": 3700.0}  # unfrozen
 EDGES = (-60.0, -1.5, -0.5, 60.0)  # degC: frozen below -1.5, unfrozen above -0.5
 QUENCH = SurfaceCurve(
