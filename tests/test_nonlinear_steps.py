@@ -115,3 +115,18 @@ def test_latent_heat_as_a_peak_in_specific_heat_runs_in_every_combination(width,
     # measured -0.3 %, -0.9 % and -1.4 % for 0.5, 1 and 2 K; required 2 %.
     expected = 2 * lam * math.sqrt(alpha * 3600.0)
     assert freezing.front(x, temperature) == pytest.approx(expected, rel=0.02)
+
+
+def test_adaptive_run_retries_steps_newton_cannot_take(monkeypatch):
+    # The quench at default (adaptive) settings: at the film's collapse Newton's iterations
+    # fail on a few steps the error estimate would have accepted; they are retried at half the
+    # size. Without the retry the run stops there.
+    model = quench.cylinder_model("coefficient")
+    solution = solve(model, quench.END, output_times=quench.TIMES)
+    assert solution.stats.retried_steps >= 1
+    assert solution.stats.subdivided_steps == 0  # adaptive runs halve, they do not subdivide
+    assert solution.checks.energy_balance_error <= 1e-6
+
+    monkeypatch.setattr(fem.step_control.StepControl, "retry", lambda self, step, end: False)
+    with pytest.raises(SolverError, match="min_step"):
+        solve(model, quench.END, output_times=quench.TIMES)
