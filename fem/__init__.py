@@ -28,7 +28,7 @@ _LAZY = {
     "Material": ".materials",
     "PropertyRangeWarning": ".materials",
     "PropertyTable": ".materials",
-    "EnthalpyTable": ".materials",
+    "EnthalpyTable": ".enthalpy",
     "ThermalModel": ".model",
     "Constant": ".schedules",
     "Periodic": ".schedules",
@@ -92,10 +92,11 @@ if TYPE_CHECKING:
         SurfaceCurve,
         SurfaceTemperatureConvection,
     )
+    from .enthalpy import EnthalpyTable
     from .events import StopWhen
     from .exponential_run import check_exponential_parts
     from .fields import FieldSeries
-    from .materials import EnthalpyTable, Material, PropertyRangeWarning, PropertyTable
+    from .materials import Material, PropertyRangeWarning, PropertyTable
     from .model import ThermalModel
     from .schedules import Constant, Periodic, PiecewiseLinear, Sinusoid, Steps
     from .solution import RunChecks, Solution, SolverStats
