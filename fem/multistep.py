@@ -141,10 +141,9 @@ class _FormulaMarch:
         bound = "min_step" if controls.adaptive else "time_step (substeps go down to 1/4096 of it)"
         raise SolverError(
             f"Newton's method did not converge on the step to t = {end:.6g} s even with the step "
-            f"cut to {h:.3g} s (from t = {self.time:.6g} s; the floor is {floor:.3g} s); the "
-            f"last change was "
-            f"{failure.change:.3g} K and the residual {failure.residual:.3g} W after "
-            f"{controls.max_newton_iterations} iterations. Raise max_newton_iterations (now "
+            f"cut to {h:.3g} s (from t = {self.time:.6g} s; the floor is {floor:.3g} s): the "
+            f"last change was {failure.change:.3g} K and the residual {failure.residual:.3g} W "
+            f"({failure.how}). Raise max_newton_iterations (now "
             f"{controls.max_newton_iterations}) or newton_tolerance (now "
             f"{controls.newton_tolerance:.3g} K) in [run], or lower {bound}; a very narrow "
             "freezing range or a jump in a property table may also need smoothing"

@@ -2,8 +2,10 @@
 
 The step's residual is a0·C(T1)/h + Σ a_j·C(T_j)/h + β·G(T1, t1) + (1 − β)·G(T0, t0). The
 factorised tangent is kept across iterations and steps (of the same size and formula) while it
-still shrinks the change by ``TANGENT_RATE`` or better; otherwise it is refactorised at the
-current iterate. A step then costs a few solves instead of a factorisation per iteration.
+still shrinks the change by ``TANGENT_RATE`` or better and the iterations it would still need
+cost less than a new factorisation (at the run's measured prices); otherwise it is
+refactorised at the current iterate. A step then costs a few solves instead of a
+factorisation per iteration.
 
 Each update is damped by a line search on the residual's norm (Armijo's test, step lengths
 halved): a full update that does not lower the residual is first retried with a fresh tangent,
@@ -42,11 +44,17 @@ class NewtonStepError(SolverError):
         The last full Newton update's largest entry, K.
     residual : float
         The last residual's largest entry on the free degrees of freedom, W.
+    how : str
+        "stalled after n iterations" (the line search made no headway) or "not converged in
+        n iterations".
     """
 
-    def __init__(self, message: str, time: float, step: float, change: float, residual: float):
+    def __init__(
+        self, message: str, time: float, step: float, change: float, residual: float, how: str
+    ):
         super().__init__(message)
         self.time, self.step, self.change, self.residual = time, step, change, residual
+        self.how = how
 
 
 class NewtonStep:
@@ -155,15 +163,16 @@ class NewtonStep:
                 break
         cost.iterated(iteration)
         residual_norm = float(np.abs(r[free]).max(initial=0.0))
-        how = "stalled after" if stalled >= STALLED_ITERATIONS else "did not converge in"
+        how = "stalled after" if stalled >= STALLED_ITERATIONS else "not converged in"
+        how = f"{how} {iteration} iterations"
         raise NewtonStepError(
-            f"Newton's method {how} {iteration} iterations at t = {t1:.6g} s (step "
-            f"{step:.3g} s); the last change was {largest:.3g} K and the residual "
-            f"{residual_norm:.3g} W",
+            f"Newton's method {how} at t = {t1:.6g} s (step {step:.3g} s); the last change "
+            f"was {largest:.3g} K and the residual {residual_norm:.3g} W",
             t1,
             step,
             largest,
             residual_norm,
+            how,
         )
 
     def _stale(self, change: float, previous: float, tolerance: float) -> bool:
