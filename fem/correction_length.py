@@ -35,7 +35,9 @@ from skfem import Basis, FacetBasis, asm
 
 from . import forms
 from .errors import ModelError
+from .linalg import NESTED_DISSECTION_FROM
 from .model import ThermalModel
+from .ordering import nested_dissection
 from .system import element_for
 
 
@@ -143,11 +145,33 @@ def correction_length(
     stored = capacity @ np.ones(basis.N)  # ∫ρc φ_i dV
     load = exposed / stored.sum() * stored - outflow  # sums to zero: compatible
     w = np.zeros(basis.N)
-    held = slice(1, None)  # dof 0 held at zero fixes the constant
-    w[held] = spla.splu(stiffness[held, held].tocsc()).solve(load[held])
+    held = np.arange(1, basis.N)  # dof 0 held at zero fixes the constant
+    w[held] = _solve_definite(stiffness[held][:, held], load[held], basis.doflocs[:, held])
     w -= (stored @ w) / stored.sum()
     resistance = -float(outflow @ w) / exposed
     return CorrectionLength(resistance, float(mean), float(exposed), float(temperature))
+
+
+def _solve_definite(matrix, load: np.ndarray, points: np.ndarray) -> np.ndarray:
+    """x with matrix·x = load for a symmetric positive definite ``matrix``: SuperLU in
+    symmetric mode without pivoting, ordered as the solver's step matrices are
+    (:mod:`fem.linalg`): minimum degree, or nested dissection of the mesh for large ones."""
+    order = None
+    if len(load) >= NESTED_DISSECTION_FROM:
+        order = nested_dissection(matrix.tocsr(), points)
+        matrix, load = matrix[order][:, order], load[order]
+    factor = spla.splu(
+        matrix.tocsc(),
+        permc_spec="NATURAL" if order is not None else "MMD_AT_PLUS_A",
+        diag_pivot_thresh=0.0,
+        options={"SymmetricMode": True},
+    )
+    solution = factor.solve(load)
+    if order is None:
+        return solution
+    unpermuted = np.empty_like(solution)
+    unpermuted[order] = solution
+    return unpermuted
 
 
 def _matrices(model: ThermalModel, basis: Basis, element, temperature: float):

@@ -195,14 +195,22 @@ def test_corrected_model_no_longer_runs_ahead(name):
     assert found.scale - exact < 0.5 * (former - exact)
 
 
-def test_square_bar_correction_length_is_a_third():
-    # In a square w is a sum of two slab solutions (the load splits by direction), so
-    # s = a/3 and beta = d/s = 3 exactly (P2 on L/16: to round-off), not the former rule's 4.
-    model = model_of(square_quarter(), biot_on_length=1.0)
+@pytest.mark.parametrize("half_width", [LENGTH, 1.5 * LENGTH])
+def test_rectangular_bar_correction_length(half_width):
+    # A bar of half-sides a, b: the load 1/a + 1/b splits by direction, so w is the sum of two
+    # slab solutions (s = a/3 and b/3 on their faces, zero mean across), and the exposed mean
+    # gives s = (2/3)·a·b/(a + b): a/3 for a square, β = d/s = 3 there (d = the half-side),
+    # not the former rule's 4. This is also the first-order term of the product solution
+    # (ζ² ≈ Bi(1 − Bi/3) in each direction; Carslaw & Jaeger §1.15, from memory). P2 catches
+    # the quadratic w exactly (measured 1e-13); required 1e-6.
+    names = {"right": "cooled", "top": "cooled", "left": "symmetry", "bottom": "symmetry"}
+    section = Rectangle(half_width, LENGTH, edge_names=names).mesh(LENGTH / 8, order=2)
+    model = model_of(section, biot_on_length=1.0)
     found = correction_factor(model, biot_numbers(model))
-    assert found.length == pytest.approx(LENGTH / 3, rel=1e-6)
-    assert found.shape == pytest.approx(3.0, rel=1e-6)
-    assert found.scale == pytest.approx(0.75, rel=1e-6)
+    length = 2.0 / 3.0 * half_width * LENGTH / (half_width + LENGTH)
+    assert found.length == pytest.approx(length, rel=1e-6)
+    assert found.shape == pytest.approx(LENGTH / length, rel=1e-6)  # d = the shorter half-side
+    assert found.scale == pytest.approx(1.0 / (1.0 + length / LENGTH), rel=1e-6)
 
 
 def test_assessment_reports_the_correction_and_its_time():
