@@ -105,7 +105,8 @@ def correction_length(
     ...     "left": "ends", "right": "ends"}).mesh(0.001)
     >>> air = Convection(heat_transfer_coefficient=50.0, ambient=20.0)
     >>> model = ThermalModel(strip, Material(20.0, 5000.0, 800.0),
-    ...     {"cooled": air, "mid": Insulated(), "ends": Insulated()}, initial_temperature=100.0)
+    ...     {"cooled": air, "mid": Insulated(), "ends": Insulated()}, initial_temperature=100.0,
+    ...     element_order=2)
     >>> round(correction_length(model, 100.0).length(20.0) / 0.01, 4)  # a slab: L/3
     0.3333
     """

@@ -22,6 +22,8 @@ The materials and sizes are invented.
 
 from __future__ import annotations
 
+import doctest
+import importlib
 import math
 
 import numpy as np
@@ -316,3 +318,11 @@ def test_two_layer_wall_uses_each_region_conductivity():
     # for both layers would leave an O(Bi) gap (order 1).
     order = np.polyfit(np.log(biots), np.log(gaps), 1)[0]
     assert 1.8 < order < 2.2, (order, gaps)
+
+
+def test_docstring_example_runs():
+    # The module's example: a slab strip gives s = L/3 (Cotta & Mikhailov 1997, from memory).
+    module = importlib.import_module("fem.correction_length")
+    result = doctest.testmod(module, optionflags=doctest.ELLIPSIS)
+    assert result.attempted > 0
+    assert result.failed == 0
