@@ -17,6 +17,8 @@ from .lumped import (
     FittedExponential,
     LumpedModel,
     TwoNodeModel,
+    correction,
+    correction_factor,
     crossing_time,
     fit_exponential,
     fit_two_node,
@@ -80,9 +82,12 @@ class Assessment:
     lumped : LumpedModel
         The classical lumped model.
     corrected : LumpedModel
-        The model with h_eff = h / (1 + Bi/β).
+        The model with h_eff = h / (1 + h·s/k) = h / (1 + Bi/β), Bi on the conduction distance.
     correction_shape : float
-        The β used, and why in ``correction_note``.
+        The β used (d/s), and how it was found in ``correction_note``.
+    correction_length : float
+        s in m, the section's correction length from one steady solve
+        (:func:`advisor.analysis.lumped.correction_factor`).
     fitted : FittedExponential or None
         A single exponential fitted to the late field mean (None if the run ends too early).
     two_node : TwoNodeModel or None
@@ -116,6 +121,7 @@ class Assessment:
     corrected: LumpedModel
     correction_shape: float
     correction_note: str
+    correction_length: float
     fitted: FittedExponential | None
     two_node: TwoNodeModel | None
     mode: SlowestMode
@@ -165,25 +171,6 @@ class Assessment:
     def effective_coefficient(self) -> float:
         """h_eff of the corrected lumped model at the start, W/(m²·K)."""
         return self.corrected.surface_coefficient
-
-
-def correction(model: ThermalModel, biot: tuple[BiotNumber, ...]) -> tuple[float, float, str]:
-    """β and the coefficient scale 1/(1 + Bi/β) of the corrected lumped model, with why.
-
-    β = 3, 4, 5 for a slab, long cylinder and sphere, with Bi on the half-thickness or radius:
-    exactly d/(V/A_s) + 2 with d the largest conduction distance (1, 2, 3 for those shapes),
-    which is the rule used for any section.
-    """
-    by_name = {b.name: b for b in biot}
-    ratio = by_name["conduction_distance"].length / by_name["volume_to_surface"].length
-    beta = ratio + 2.0
-    bi = by_name["conduction_distance"].value
-    note = (
-        f"β = d/(V/A_s) + 2 = {beta:.3g} (slab 3, long cylinder 4, sphere 5), Bi on the "
-        f"conduction distance d = {1000 * by_name['conduction_distance'].length:.4g} mm: "
-        f"h_eff = h/(1 + {bi:.3g}/{beta:.3g})"
-    )
-    return beta, 1.0 / (1.0 + bi / beta), note
 
 
 def assess(
@@ -261,8 +248,8 @@ def assess(
         end_time=float(times[-1]),
         temperature_range=(float(solution.minimum.min()), float(solution.maximum.max())),
     )
-    beta, scale, note = correction(model, biot)
-    family = _lumped_family(solution, lumped, scale, drive)
+    found = correction_factor(model, biot)
+    family = _lumped_family(solution, lumped, found.scale, drive)
     curves = family["model_temperatures"]
     spread = solution.internal_difference
     peak = int(np.argmax(spread))
@@ -270,8 +257,9 @@ def assess(
         solution=solution,
         biot=biot,
         lumped=lumped,
-        correction_shape=beta,
-        correction_note=note,
+        correction_shape=found.shape,
+        correction_note=found.note,
+        correction_length=found.length,
         mode=slowest_mode(model, system),
         lumped_temperature=curves["classical"],
         errors=_errors(solution, family, drive),

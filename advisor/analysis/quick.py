@@ -1,18 +1,32 @@
 """A quick check that needs no field solve: Biot numbers, the lumped and corrected curves,
 their times to target, the slowest mode and the expected direction of the lumped error — in
-well under a second on a coarse mesh, so it fits a design loop."""
+well under a second on a coarse mesh, so it fits a design loop.
+
+The slowest point's time comes from the slowest mode alone: once the faster modes have died
+away, T − T∞ ≈ a·φ₁·exp(−λ₁t) with a = (φ₁ᵀMθ₀)/(φ₁ᵀMφ₁) the initial field's projection on
+the mode (M the capacity matrix, θ₀ = T₀ − T∞), and the slowest point is where a·φ₁ is
+farthest from T∞. That holds for a linear model with constant conditions and a uniform steady
+state; where the model leaves those assumptions the check says so, in ``assumptions_broken``,
+with which way the estimate moves.
+"""
 
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
-from fem import ThermalModel
+import numpy as np
+
+from fem import PropertyTable, ThermalModel, assemble
+from fem.modes import slowest_eigenpair
+from fem.system import ConductionSystem, initial_field
 
 from .assessment import check_request, correction
 from .biot import COMMON_LIMIT, BiotNumber, biot_numbers
 from .lumped import LumpedModel
 from .modes import SlowestMode, slowest_mode
+
+LATENT_PEAK = 3.0  # a specific-heat table peaking above 3× its lowest value holds latent heat
 
 
 @dataclass(frozen=True)
@@ -29,6 +43,11 @@ class QuickCheck:
         late-stage slowest point, ln(core_to_mean·θ0/θ)/λ₁, in s.
     expected_direction : str
         Which way the lumped estimate will be wrong.
+    assumptions_broken : tuple of str
+        Where the model leaves the modal estimate's assumptions (nonlinear exchange,
+        temperature-dependent properties, latent heat, conditions that change during the run,
+        a steady state that is not uniform), each with which way it moves the estimate; empty
+        when the estimate applies.
     """
 
     biot: tuple[BiotNumber, ...]
@@ -38,6 +57,7 @@ class QuickCheck:
     target: float | None
     time_to_target: dict[str, float | None]
     expected_direction: str
+    assumptions_broken: tuple[str, ...] = field(default=())
 
 
 def quick_check(model: ThermalModel, *, target: float | None = None) -> QuickCheck:
@@ -64,15 +84,15 @@ def quick_check(model: ThermalModel, *, target: float | None = None) -> QuickChe
     biot = biot_numbers(model, temperature_range=model.driving_temperatures(0.0))
     _, scale, _ = correction(model, biot)
     corrected = LumpedModel.of(model, scale=scale, name="corrected")
-    mode = slowest_mode(model)
+    system = assemble(model)
+    mode = slowest_mode(model, system)
 
     times: dict[str, float | None] = {}
     if target is not None:
         horizon = 20 * lumped.time_constant
         times["classical"] = lumped.time_to(target, horizon)
         times["corrected"] = corrected.time_to(target, horizon)
-        ratio = mode.core_to_mean * drive / (target - lumped.equilibrium)
-        times["slowest (modal estimate)"] = math.log(ratio) / mode.rate if ratio > 1 else None
+        times["slowest (modal estimate)"] = _modal_time(system, lumped, target)
 
     heating = drive < 0
     bi = biot[0]
@@ -93,4 +113,92 @@ def quick_check(model: ThermalModel, *, target: float | None = None) -> QuickChe
                 else "non-conservative for the end of a quench or a safe-to-handle time"
             )
         )
-    return QuickCheck(biot, lumped, corrected, mode, target, times, direction)
+    reasons = assumptions_broken(model, lumped.initial_temperature)
+    return QuickCheck(biot, lumped, corrected, mode, target, times, direction, reasons)
+
+
+def _modal_time(system: ConductionSystem, lumped: LumpedModel, target: float) -> float | None:
+    """When the slowest point of a·φ₁·exp(−λ₁t) reaches ``target`` °C, s (None if the mode's
+    slowest point starts nearer the equilibrium than the target)."""
+    pair = slowest_eigenpair(system, lumped.initial_temperature, 0.0)
+    dofs, shape = pair.dofs, pair.shape
+    capacity = system.capacity[dofs][:, dofs]
+    start = initial_field(system)[dofs] - lumped.equilibrium
+    amplitude = (shape @ (capacity @ start)) / (shape @ (capacity @ shape))
+    side = math.copysign(1.0, lumped.initial_temperature - lumped.equilibrium)
+    slowest = float(np.max(side * amplitude * shape))  # farthest towards the start
+    ratio = slowest / (side * (target - lumped.equilibrium))
+    return math.log(ratio) / pair.rate if ratio > 1 else None
+
+
+def assumptions_broken(model: ThermalModel, temperature: float) -> tuple[str, ...]:
+    """Where ``model`` leaves the modal estimate's assumptions, each with which way that
+    moves the estimate; ``temperature`` °C is where coefficients and properties were taken."""
+    reasons = []
+    nonlinear = sorted({n for n, c in model.conditions() if not c.linear})
+    if nonlinear:
+        reasons.append(
+            f"edges {nonlinear} exchange heat nonlinearly (radiation): the mode takes their "
+            f"coefficient at {temperature:.4g} °C; radiation weakens as the surface nears its "
+            "surroundings, so the estimate is early for cooling and late for heating"
+        )
+    tables = {
+        r: m for r, m in model.materials.items() if isinstance(m.conductivity, PropertyTable)
+    }
+    if tables:
+        reasons.append(
+            f"the conductivity of {sorted(tables)} depends on temperature: the mode uses the "
+            "table's mid-range value, which moves the estimate either way"
+        )
+    reasons.extend(_heat_capacity_reasons(model))
+    changing = sorted({n for n, c in model.conditions() if not c.is_constant()})
+    changing += sorted(r for r, q in model.heat_sources.items() if not q.is_constant)
+    if changing:
+        reasons.append(
+            f"the conditions or sources of {changing} change during the run: the mode takes "
+            "them at t = 0, so the estimate moves with the schedule, either way"
+        )
+    if not _uniform_steady_state(model, temperature):
+        reasons.append(
+            "the part does not head to one uniform temperature (heat sources, fluxes or "
+            "different ambients): the slowest point settles elsewhere than the lumped "
+            "equilibrium, so the estimate can be off either way or the target never reached"
+        )
+    return tuple(reasons)
+
+
+def _heat_capacity_reasons(model: ThermalModel) -> list[str]:
+    """Latent heat (a specific-heat peak) or a specific heat that varies with temperature."""
+    latent, varying = [], []
+    for region, material in model.materials.items():
+        table = material.specific_heat
+        if isinstance(table, PropertyTable):
+            values = np.asarray(table.values, dtype=float)
+            (latent if values.max() > LATENT_PEAK * values.min() else varying).append(region)
+    reasons = []
+    if latent:
+        reasons.append(
+            f"{sorted(latent)} hold latent heat (a specific-heat peak): the mode uses one heat "
+            "capacity, the table's mid-range value, not the phase change's plateau; the "
+            "estimate can be off several-fold either way"
+        )
+    if varying:
+        reasons.append(
+            f"the specific heat of {sorted(varying)} depends on temperature: the mode uses the "
+            "table's mid-range value, which moves the estimate either way"
+        )
+    return reasons
+
+
+def _uniform_steady_state(model: ThermalModel, temperature: float) -> bool:
+    """True when, under the t = 0 conditions, the part heads to one uniform temperature: no
+    sources, no supplied flux, one ambient for every exchanging edge."""
+    if any(q(0.0) for q in model.heat_sources.values()):
+        return False
+    lines = [c.linearised(temperature, 0.0) for _, c in model.conditions() if c.flows]
+    if any(line.supplied for line in lines):
+        return False
+    ambients = [line.ambient for line in lines if line.coefficient > 0]
+    return not ambients or max(ambients) - min(ambients) <= 1e-9 * max(
+        1.0, max(abs(a) for a in ambients)
+    )

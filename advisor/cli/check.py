@@ -41,5 +41,7 @@ def execute(args: argparse.Namespace) -> int:
         shown = "not reached" if value is None else f"{value:.4g} s"
         log.info(f"Time to {check.target:g} degC, {name}: {shown}")
     log.info(f"Expected direction: {check.expected_direction}.")
+    for reason in check.assumptions_broken:
+        log.warning(f"The modal estimate does not hold here: {reason}.")
     log.info(f"Caution: {CAUTION}")
     return EXIT_OK
