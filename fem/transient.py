@@ -100,7 +100,8 @@ def solve(
     newton_tolerance : float
         Newton's method stops when the largest temperature change is below this, K.
     max_newton_iterations : int
-        Iterations allowed per step before :class:`SolverError`.
+        Iterations allowed per step; a step that needs more is retried smaller, and the run
+        stops with :class:`SolverError` only at the smallest step.
     field_folder : str or Path, optional
         Write the output fields to this folder as they are produced instead of keeping them in
         memory.

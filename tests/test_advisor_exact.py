@@ -358,9 +358,9 @@ def test_corrected_model_against_exact_series(shape, biot):
     # The solver and the advisor.
     solution = standard_run(shape, biot)
     a = assess(solution, quantity="mean")
-    # beta = d/(V/A_s) + 2 with d from mesh nodes and edge samples: on a curved P2 mesh of size
-    # h the chord sag makes d short by about R (h/R)^2 / 8 = 5e-4 R (measured beta = 3.9991 and
-    # 4.9986; the strip's 3 is exact); required 0.2 %.
+    # beta = d/s with s the correction length of one steady solve on the mesh and d from mesh
+    # nodes and edge samples: on a curved P2 mesh of size h the chord sag makes d short by about
+    # R (h/R)^2 / 8 = 5e-4 R; required 0.2 %.
     assert a.correction_shape == pytest.approx(beta, rel=2e-3)
     biot_by_name = {b.name: b for b in a.biot}
     assert biot_by_name["conduction_distance"].length == pytest.approx(LENGTH, rel=1e-3)
