@@ -57,6 +57,13 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument(
         "--case-folders", action="store_true", help="write each case's results folder too"
     )
+    parser.add_argument(
+        "--sensitivity",
+        choices=("rank", "sobol", "chaos"),
+        default="rank",
+        help="how a sampled study ranks its inputs: rank correlation (default), Sobol indices "
+        "by RBD-FAST or by a polynomial-chaos surrogate (these two need the uncertainty extra)",
+    )
 
 
 def execute(args: argparse.Namespace) -> int:
@@ -85,7 +92,7 @@ def execute(args: argparse.Namespace) -> int:
         progress=_progress_line(),
         case_folders=args.case_folders,
     )
-    files = [*run.files, *_report(out, run)]
+    files = [*run.files, *_report(out, run, args.sensitivity)]
     log.info(
         f"{run.done} of {len(run.planned.cases)} cases done, {run.failed} failed; wrote "
         f"{out}/study.sqlite, " + ", ".join(str(f.relative_to(out)) for f in files)
@@ -96,7 +103,7 @@ def execute(args: argparse.Namespace) -> int:
     return EXIT_OK if run.done else EXIT_FAILED
 
 
-def _report(out: Path, run) -> list[Path]:
+def _report(out: Path, run, sensitivity: str) -> list[Path]:
     """The study report (validity map, design rule, spreads), when pandas is there and a case
     finished."""
     import importlib.util
@@ -107,7 +114,7 @@ def _report(out: Path, run) -> list[Path]:
         return []
     from ..studies.study_report import write_sweep_report
 
-    return write_sweep_report(out, run.planned)
+    return write_sweep_report(out, run.planned, sensitivity=sensitivity)
 
 
 def _usage(message: str):
