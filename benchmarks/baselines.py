@@ -34,7 +34,7 @@ def system_matrices(model):
 
 def script_steps(model, time_step: float, steps: int) -> dict:
     """Run (a) for ``steps`` steps from the initial state; time each step."""
-    from fem.system import initial_field
+    from fem.assembly import initial_field
 
     started = time.perf_counter()
     system, M, A, b = system_matrices(model)
@@ -61,7 +61,7 @@ def script_steps(model, time_step: float, steps: int) -> dict:
 
 def ivp_bdf(model, end_time: float, output_times, rtol: float, atol: float) -> dict:
     """Run (b) to ``end_time``; fields at ``output_times`` (vertex values)."""
-    from fem.system import initial_field
+    from fem.assembly import initial_field
 
     started = time.perf_counter()
     system, M, A, b = system_matrices(model)

@@ -39,7 +39,7 @@ _LAZY = {
     "Solution": ".solution",
     "SolverStats": ".solution",
     "ConductionSystem": ".system",
-    "assemble": ".system",
+    "assemble": ".assembly",
     "StopWhen": ".events",
     "solve": ".transient",
 }
@@ -82,6 +82,7 @@ __all__ = [
 if TYPE_CHECKING:
     from . import solids
     from .arguments import check_run_options
+    from .assembly import assemble
     from .conditions import (
         BoundaryCondition,
         Convection,
@@ -100,7 +101,7 @@ if TYPE_CHECKING:
     from .model import ThermalModel
     from .schedules import Constant, Periodic, PiecewiseLinear, Sinusoid, Steps
     from .solution import RunChecks, Solution, SolverStats
-    from .system import ConductionSystem, assemble
+    from .system import ConductionSystem
     from .transient import solve
 
 

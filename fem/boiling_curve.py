@@ -1,5 +1,6 @@
 """A boiling curve — heat flux against surface temperature — for a part quenched in a liquid,
-built from the liquid's properties by the classical correlations.
+built from the liquid's properties (:mod:`fem.liquids`) by the classical correlations
+(:mod:`fem.boiling_correlations`, which describes the regimes).
 
 **A starting point, not a quenchant's data.** Real quenchants (oils, polymer solutions, water
 with additives, agitated baths) are characterised by probe tests; their film-to-nucleate
@@ -7,28 +8,11 @@ transition depends on the surface, its oxide, agitation and contamination in way
 correlation carries. Use a curve measured with a probe where one exists; use this one to
 explore, and compare its result with measurements before relying on it.
 
-Regimes, in order of rising wall superheat ΔT_e = T_s − T_sat:
-
-- natural convection to the bath (horizontal cylinder, Churchill & Chu, from ``ht``), while it
-  carries more heat than nucleate boiling;
-- nucleate boiling by Rohsenow's correlation (from ``ht``), up to
-- the critical heat flux by Zuber's correlation with the textbook constant 0.149 (``ht``'s
-  default is 0.18), raised for subcooling by Ivey & Morris's factor
-  1 + 0.1·(ρ_l/ρ_v)^0.75·c_l·ΔT_sub/h_fg (from memory);
-- a transition segment, a straight line on the log–log boiling curve from the critical point to
-- the minimum heat flux of Zuber and Berenson, q_min = 0.09·ρ_v·h_fg·[σ·g·(ρ_l − ρ_v) /
-  (ρ_l + ρ_v)²]^(1/4) (Incropera et al., *Fundamentals of Heat and Mass Transfer*, 6th ed.,
-  eq. 10.7, from memory), placed where the film-boiling curve carries it (the Leidenfrost
-  point); Berenson's own estimate of that temperature is reported beside it;
-- film boiling by Bromley's correlation, h_conv = C·[g·(ρ_l − ρ_v)·h'_fg·ρ_v·k_v³ /
-  (μ_v·D·ΔT_e)]^(1/4) with h'_fg = h_fg + 0.8·c_v·ΔT_e, C = 0.62 for a horizontal cylinder and
-  0.67 for a sphere, combined with radiation across the film as h^(4/3) = h_conv^(4/3) +
-  h_rad·h^(1/3) (Incropera et al., 6th ed., eqs. 10.9–10.11, from memory).
-
 Film boiling uses the saturated liquid's properties: a subcooled bath thins the vapour film
 and raises the film-boiling flux, which this builder does not model.
 
 ``ht`` (and CoolProp, for :meth:`Liquid.water`) are optional: ``pip install soakwise[boiling]``.
+This module re-exports the liquid and the correlations, the builder's public names.
 """
 
 from __future__ import annotations
@@ -38,205 +22,35 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from .boiling_correlations import (
+    BROMLEY,
+    GRAVITY,
+    STEFAN_BOLTZMANN,
+    berenson_minimum_superheat,
+    critical_heat_flux,
+    film_coefficients,
+    minimum_heat_flux,
+    natural_convection_flux,
+    nucleate_flux,
+)
 from .errors import ModelError
+from .liquids import Liquid
 from .temperatures import ABSOLUTE_ZERO
 
-GRAVITY = 9.80665  # m/s²
-STEFAN_BOLTZMANN = 5.670374419e-8  # W/(m²·K⁴)
-BROMLEY = {"horizontal cylinder": 0.62, "sphere": 0.67}
-
-
-def _ht():
-    try:
-        import ht
-    except ImportError:  # pragma: no cover - depends on the installation
-        raise ModelError(
-            "the boiling-curve builder needs the 'ht' package: pip install soakwise[boiling]",
-            argument="liquid",
-        ) from None
-    return ht
-
-
-@dataclass(frozen=True)
-class Liquid:
-    """A quenching liquid at its saturation pressure, in SI units (temperatures in °C).
-
-    Liquid properties are those of the saturated liquid; vapour properties those of the vapour
-    at a typical film temperature (T_s + T_sat)/2 of the run.
-    """
-
-    saturation_temperature: float
-    liquid_density: float
-    liquid_viscosity: float
-    liquid_conductivity: float
-    liquid_specific_heat: float
-    liquid_expansion: float
-    surface_tension: float
-    latent_heat: float
-    vapour_density: float
-    vapour_viscosity: float
-    vapour_conductivity: float
-    vapour_specific_heat: float
-    name: str = "liquid"
-
-    def __post_init__(self) -> None:
-        for name in self.__dataclass_fields__:
-            value = getattr(self, name)
-            if name in ("name", "saturation_temperature"):
-                continue
-            if not (isinstance(value, int | float) and math.isfinite(value) and value > 0):
-                raise ModelError(f"Liquid {name} must be a finite number > 0, got {value!r}")
-        if not self.saturation_temperature > ABSOLUTE_ZERO:
-            raise ModelError(
-                f"saturation_temperature must be above {ABSOLUTE_ZERO:g} degC, "
-                f"got {self.saturation_temperature!r}"
-            )
-
-    @property
-    def prandtl(self) -> float:
-        """Pr of the liquid."""
-        return self.liquid_viscosity * self.liquid_specific_heat / self.liquid_conductivity
-
-    @classmethod
-    def water(cls, pressure: float = 101325.0, film_temperature: float = 400.0) -> Liquid:
-        """Water from CoolProp: saturated liquid at ``pressure`` Pa, vapour at
-        ``film_temperature`` °C and the same pressure."""
-        try:
-            from CoolProp.CoolProp import PropsSI
-        except ImportError:  # pragma: no cover - depends on the installation
-            raise ModelError(
-                "Liquid.water needs CoolProp: pip install soakwise[boiling]", argument="pressure"
-            ) from None
-
-        def liquid(key):
-            return PropsSI(key, "P", pressure, "Q", 0, "Water")
-
-        t_sat = liquid("T")
-        t_film = film_temperature - ABSOLUTE_ZERO
-        if not t_film > t_sat:
-            raise ModelError(
-                f"film_temperature must be above saturation ({t_sat + ABSOLUTE_ZERO:.4g} degC), "
-                f"got {film_temperature!r}",
-                argument="film_temperature",
-            )
-
-        def vapour(key):
-            return PropsSI(key, "T", t_film, "P", pressure, "Water")
-
-        return cls(
-            t_sat + ABSOLUTE_ZERO,
-            liquid("D"),
-            liquid("V"),
-            liquid("L"),
-            liquid("C"),
-            liquid("ISOBARIC_EXPANSION_COEFFICIENT"),
-            liquid("I"),
-            PropsSI("H", "P", pressure, "Q", 1, "Water") - liquid("H"),
-            vapour("D"),
-            vapour("V"),
-            vapour("L"),
-            vapour("C"),
-            f"water at {pressure / 1000:.4g} kPa (CoolProp)",
-        )
-
-
-def critical_heat_flux(liquid: Liquid, subcooling: float = 0.0, constant: float = 0.149):
-    """Zuber's critical heat flux, W/m², raised by Ivey & Morris's factor for ``subcooling``
-    K of the bath below saturation."""
-    saturated = _ht().Zuber(
-        sigma=liquid.surface_tension,
-        Hvap=liquid.latent_heat,
-        rhol=liquid.liquid_density,
-        rhog=liquid.vapour_density,
-        K=constant,
-    )
-    ratio = (liquid.liquid_density / liquid.vapour_density) ** 0.75
-    return saturated * (
-        1 + 0.1 * ratio * liquid.liquid_specific_heat * subcooling / liquid.latent_heat
-    )
-
-
-def nucleate_flux(liquid: Liquid, superheat, surface_factor: float, exponent: float = 1.0):
-    """Rohsenow's nucleate-boiling heat flux at wall ``superheat`` K, W/m² (``ht``)."""
-    rohsenow = _ht().Rohsenow
-    return np.array(
-        [
-            rohsenow(
-                rhol=liquid.liquid_density,
-                rhog=liquid.vapour_density,
-                mul=liquid.liquid_viscosity,
-                kl=liquid.liquid_conductivity,
-                Cpl=liquid.liquid_specific_heat,
-                Hvap=liquid.latent_heat,
-                sigma=liquid.surface_tension,
-                Te=float(t),
-                Csf=surface_factor,
-                n=exponent,
-            )
-            * float(t)
-            for t in np.atleast_1d(superheat)
-        ]
-    )
-
-
-def minimum_heat_flux(liquid: Liquid) -> float:
-    """Zuber's and Berenson's minimum film-boiling heat flux, W/m² (constant 0.09)."""
-    rho_l, rho_v = liquid.liquid_density, liquid.vapour_density
-    group = liquid.surface_tension * GRAVITY * (rho_l - rho_v) / (rho_l + rho_v) ** 2
-    return 0.09 * rho_v * liquid.latent_heat * group**0.25
-
-
-def berenson_minimum_superheat(liquid: Liquid) -> float:
-    """Berenson's wall superheat at the minimum heat flux (flat plate), K (from memory)."""
-    rho_l, rho_v = liquid.liquid_density, liquid.vapour_density
-    difference = rho_l - rho_v
-    return (
-        0.127
-        * rho_v
-        * liquid.latent_heat
-        / liquid.vapour_conductivity
-        * (GRAVITY * difference / (rho_l + rho_v)) ** (2 / 3)
-        * (liquid.surface_tension / (GRAVITY * difference)) ** 0.5
-        * (liquid.vapour_viscosity / difference) ** (1 / 3)
-    )
-
-
-def film_coefficients(liquid: Liquid, superheat, diameter: float, emissivity: float, shape: str):
-    """Bromley's convective coefficient, the radiation coefficient and their combination
-    h^(4/3) = h_conv^(4/3) + h_rad·h^(1/3), each in W/(m²·K), at wall ``superheat`` K."""
-    dt = np.atleast_1d(np.asarray(superheat, dtype=float))
-    latent = liquid.latent_heat + 0.8 * liquid.vapour_specific_heat * dt
-    group = (
-        GRAVITY
-        * (liquid.liquid_density - liquid.vapour_density)
-        * latent
-        * liquid.vapour_density
-        * liquid.vapour_conductivity**3
-        / (liquid.vapour_viscosity * diameter * dt)
-    )
-    convective = BROMLEY[shape] * group**0.25
-    saturation = liquid.saturation_temperature - ABSOLUTE_ZERO
-    surface = saturation + dt
-    radiative = emissivity * STEFAN_BOLTZMANN * (surface**4 - saturation**4) / dt
-    total = convective + 0.75 * radiative  # start from the simple sum; the map contracts
-    for _ in range(60):
-        total = (convective ** (4 / 3) + radiative * total ** (1 / 3)) ** 0.75
-    return convective, radiative, total
-
-
-def natural_convection_flux(liquid: Liquid, difference, diameter: float, shape: str):
-    """Single-phase natural convection to the bath at surface-to-bath ``difference`` K, W/m²."""
-    ht = _ht()
-    dt = np.atleast_1d(np.asarray(difference, dtype=float))
-    nu = liquid.liquid_viscosity / liquid.liquid_density
-    grashof = GRAVITY * liquid.liquid_expansion * dt * diameter**3 / nu**2
-    correlation = (
-        ht.Nu_horizontal_cylinder_Churchill_Chu
-        if shape == "horizontal cylinder"
-        else ht.Nu_sphere_Churchill
-    )
-    nusselt = np.array([correlation(liquid.prandtl, float(g)) for g in grashof])
-    return nusselt * liquid.liquid_conductivity / diameter * dt
+__all__ = [
+    "BROMLEY",
+    "GRAVITY",
+    "STEFAN_BOLTZMANN",
+    "BoilingCurve",
+    "Liquid",
+    "berenson_minimum_superheat",
+    "boiling_curve",
+    "critical_heat_flux",
+    "film_coefficients",
+    "minimum_heat_flux",
+    "natural_convection_flux",
+    "nucleate_flux",
+]
 
 
 @dataclass(frozen=True)
@@ -353,19 +167,9 @@ def boiling_curve(
     q_max = float(critical_heat_flux(liquid, subcooling, zuber_constant))
     per_cube = float(nucleate_flux(liquid, 1.0, surface_factor, rohsenow_exponent)[0])
     chf_superheat = (q_max / per_cube) ** (1 / 3)  # Rohsenow: q ∝ ΔT_e³
-    if leidenfrost_temperature is None:
-        q_min = minimum_heat_flux(liquid)
-        min_superheat = _leidenfrost_superheat(liquid, q_min, diameter, emissivity, shape)
-    else:
-        min_superheat = leidenfrost_temperature - saturation
-        if not min_superheat > 0:
-            raise ModelError(
-                "leidenfrost_temperature must be above saturation, "
-                f"got {leidenfrost_temperature!r}",
-                argument="leidenfrost_temperature",
-            )
-        film = film_coefficients(liquid, min_superheat, diameter, emissivity, shape)[2][0]
-        q_min = float(film * min_superheat)
+    min_superheat, q_min = _minimum_point(
+        liquid, leidenfrost_temperature, diameter, emissivity, shape
+    )
     if not (q_min < q_max and chf_superheat < min_superheat < highest_temperature - saturation):
         raise ModelError(
             f"the correlations do not give a boiling curve here: critical heat flux "
@@ -419,6 +223,23 @@ def _check_arguments(liquid, diameter, bath, highest, shape, emissivity) -> None
             f"highest_temperature must be above saturation, got {highest!r}",
             argument="highest_temperature",
         )
+
+
+def _minimum_point(liquid, leidenfrost_temperature, diameter, emissivity, shape):
+    """The wall superheat (K) where film boiling ends and the minimum heat flux there (W/m²):
+    at ``leidenfrost_temperature`` °C when given, else where the film-boiling curve carries
+    Zuber's and Berenson's minimum heat flux."""
+    if leidenfrost_temperature is None:
+        q_min = minimum_heat_flux(liquid)
+        return _leidenfrost_superheat(liquid, q_min, diameter, emissivity, shape), q_min
+    min_superheat = leidenfrost_temperature - liquid.saturation_temperature
+    if not min_superheat > 0:
+        raise ModelError(
+            f"leidenfrost_temperature must be above saturation, got {leidenfrost_temperature!r}",
+            argument="leidenfrost_temperature",
+        )
+    film = film_coefficients(liquid, min_superheat, diameter, emissivity, shape)[2][0]
+    return min_superheat, float(film * min_superheat)
 
 
 def _leidenfrost_superheat(liquid, q_min, diameter, emissivity, shape) -> float:

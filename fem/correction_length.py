@@ -34,11 +34,11 @@ import scipy.sparse.linalg as spla
 from skfem import Basis, FacetBasis, asm
 
 from . import forms
+from .assembly import element_for
 from .errors import ModelError
 from .linalg import NESTED_DISSECTION_FROM
 from .model import ThermalModel
 from .ordering import nested_dissection
-from .system import element_for
 
 
 @dataclass(frozen=True)

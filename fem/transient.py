@@ -23,6 +23,7 @@ from .arguments import (
     StopWhen,
     check_arguments,
 )
+from .assembly import assemble, initial_field
 from .errors import ModelError
 from .events import merged_breakpoints
 from .fields import FieldSeries
@@ -34,7 +35,7 @@ from .run_checks import check_run
 from .scales import surface_diffusion_time
 from .solution import Solution, SolverStats
 from .stepper import March, RunContext, Stepper
-from .system import ConductionSystem, assemble, initial_field
+from .system import ConductionSystem
 
 __all__ = ["StopWhen", "solve"]
 

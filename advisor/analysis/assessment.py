@@ -1,31 +1,32 @@
 """Compare a finite-element field with the lumped family and say whether, by how much and in
-which direction the lumped estimate is wrong — and what to use instead."""
+which direction the lumped estimate is wrong — and what to use instead.
+
+What it finds is in :mod:`advisor.analysis.assessment_results`, the checks of a request in
+:mod:`advisor.analysis.assessment_checks`; this module re-exports both."""
 
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass, field
 
 import numpy as np
 
-from fem import ConductionSystem, Solution, ThermalModel
+from fem import ConductionSystem, Solution
 
-from ..errors import AdvisorError
-from .biot import BiotNumber, biot_numbers
-from .freezing import FreezingComparison, FreezingProduct
+from .assessment_checks import check_arguments, check_options, check_request
+from .assessment_results import Assessment, LumpedError
+from .biot import biot_numbers
+from .freezing import FreezingProduct
 from .lumped import (
-    FittedExponential,
     LumpedModel,
-    TwoNodeModel,
     correction,
     correction_factor,
     crossing_time,
     fit_exponential,
     fit_two_node,
 )
-from .modes import SlowestMode, slowest_mode
+from .modes import slowest_mode
 from .process_readings import check_outputs, freezing_comparison, freezing_product
-from .quench import QuenchOutputs, quench_outputs
+from .quench import quench_outputs
 from .verdict import QUANTITIES, RATINGS, SUBJECTS, Verdict, judge
 
 __all__ = [
@@ -36,141 +37,10 @@ __all__ = [
     "LumpedError",
     "Verdict",
     "assess",
+    "check_options",
     "check_request",
     "correction",
 ]
-
-
-@dataclass(frozen=True)
-class LumpedError:
-    """The largest gap between a lumped model and one field quantity over the run.
-
-    Attributes
-    ----------
-    quantity : str
-        ``"mean"``, ``"slowest"`` (the point farthest from the ambient), ``"hottest"``,
-        ``"coldest"`` or ``"probe:<name>"``.
-    model : str
-        Which lumped model (``"classical"``, ``"corrected"``, ...).
-    largest : float
-        Largest |lumped − field| in K.
-    fraction : float
-        ``largest`` divided by the initial driving difference |T0 − T∞|.
-    time : float
-        When it occurs, s.
-    lumped_ahead : bool
-        True when, at that time, the lumped model is nearer the ambient than the field: it has
-        heated or cooled the part faster than it really goes.
-    """
-
-    quantity: str
-    model: str
-    largest: float
-    fraction: float
-    time: float
-    lumped_ahead: bool
-
-
-@dataclass(frozen=True)
-class Assessment:
-    """The advisor's answers for one solution.
-
-    Attributes
-    ----------
-    solution : fem.Solution
-    biot : tuple of BiotNumber
-    lumped : LumpedModel
-        The classical lumped model.
-    corrected : LumpedModel
-        The model with h_eff = h / (1 + h·s/k) = h / (1 + Bi/β), Bi on the conduction distance.
-    correction_shape : float
-        The β used (d/s), and how it was found in ``correction_note``.
-    correction_length : float
-        s in m, the section's correction length from one steady solve
-        (:func:`advisor.analysis.lumped.correction_factor`).
-    fitted : FittedExponential or None
-        A single exponential fitted to the late field mean (None if the run ends too early).
-    two_node : TwoNodeModel or None
-        Core and skin fitted to the field (None for conditions that change in time).
-    mode : SlowestMode
-    lumped_temperature : ndarray
-        Classical lumped estimate in °C at ``solution.times``.
-    model_temperatures : dict of str to ndarray
-        Every lumped model's mean temperature at ``solution.times``.
-    errors : dict of str to LumpedError
-        Keyed ``"<model> vs <quantity>"``.
-    peak_internal_difference, peak_internal_difference_time : float
-        Largest max − min temperature in the section (K) and when (s).
-    energy_error : float
-        Largest |lumped stored energy − field stored energy| over the run, as a fraction of the
-        energy a full approach to the ambient exchanges (sensible and latent heat).
-    target : float or None
-    time_to_target : dict of str to float or None
-        When each model and field quantity reaches the target, s.
-    verdict : Verdict
-    quench : QuenchOutputs or None
-        Cooling rates against temperature, the largest rate, times to temperatures and the
-        time through a range at the slowest point and the probes, when asked for.
-    freezing : FreezingComparison or None
-        The field's freezing time beside Plank's and Pham's, when a product was given.
-    """
-
-    solution: Solution
-    biot: tuple[BiotNumber, ...]
-    lumped: LumpedModel
-    corrected: LumpedModel
-    correction_shape: float
-    correction_note: str
-    correction_length: float
-    fitted: FittedExponential | None
-    two_node: TwoNodeModel | None
-    mode: SlowestMode
-    lumped_temperature: np.ndarray
-    model_temperatures: dict[str, np.ndarray]
-    errors: dict[str, LumpedError]
-    peak_internal_difference: float
-    peak_internal_difference_time: float
-    energy_error: float
-    target: float | None
-    time_to_target: dict[str, float | None]
-    verdict: Verdict = field(repr=False)
-    quench: QuenchOutputs | None = field(default=None, repr=False)
-    freezing: FreezingComparison | None = field(default=None, repr=False)
-
-    @property
-    def heating(self) -> bool:
-        """True when the part warms up towards the ambient."""
-        return self.lumped.equilibrium > self.lumped.initial_temperature
-
-    @property
-    def slowest(self) -> np.ndarray:
-        """Temperature history of the point farthest from the ambient, °C."""
-        return self.solution.minimum if self.heating else self.solution.maximum
-
-    @property
-    def lumped_energy(self) -> np.ndarray:
-        """Heat the classical lumped model has stored since the start at ``solution.times``,
-        J (planar: J/m)."""
-        return self.lumped.stored_energy(self.lumped_temperature)
-
-    @property
-    def error_histories(self) -> dict[tuple[str, str], np.ndarray]:
-        """(field − lumped) / (T0 − T∞) at ``solution.times`` for the classical and corrected
-        models (first key) against the field mean and the slowest point (second key);
-        positive where the lumped estimate is nearer its equilibrium than the field (it runs
-        ahead). T∞ is the lumped equilibrium: the ambient, raised by any sources and fluxes."""
-        drive = self.lumped.initial_temperature - self.lumped.equilibrium
-        quantities = {"field mean": self.solution.mean, "slowest point": self.slowest}
-        return {
-            (model, quantity): (history - self.model_temperatures[model]) / drive
-            for model in ("classical", "corrected")
-            for quantity, history in quantities.items()
-        }
-
-    @property
-    def effective_coefficient(self) -> float:
-        """h_eff of the corrected lumped model at the start, W/(m²·K)."""
-        return self.corrected.surface_coefficient
 
 
 def assess(
@@ -240,7 +110,7 @@ def assess(
     model = solution.model
     lumped = LumpedModel.of(model)
     drive = lumped.initial_temperature - lumped.equilibrium  # > 0 cooling, < 0 heating
-    _check_arguments(lumped, drive, target, tolerance, quantity)
+    check_arguments(lumped, drive, target, tolerance, quantity)
     check_outputs(drive, cooling_range, freezing, freeze_to)
     times = solution.times
     biot = biot_numbers(
@@ -360,61 +230,6 @@ def _times_to_target(
     for name, history in solution.probes.items():
         found[f"probe:{name}"] = crossing_time(times, history, target, drive)
     return found
-
-
-def check_request(
-    model: ThermalModel,
-    *,
-    target: float | None = None,
-    tolerance: float = 0.05,
-    quantity: str = "slowest",
-    cooling_rates: bool = False,
-    times_to: Sequence[float] = (),
-    cooling_range: Sequence[float] | None = None,
-    freezing: FreezingProduct | None = None,
-    freeze_to: float | None = None,
-) -> None:
-    """Refuse, before any solve, an assessment that :func:`assess` would refuse."""
-    lumped = LumpedModel.of(model)
-    drive = lumped.initial_temperature - lumped.equilibrium
-    _check_arguments(lumped, drive, target, tolerance, quantity)
-    check_outputs(drive, cooling_range, freezing, freeze_to)
-    freezing_product(model, lumped, freezing, freeze_to)
-
-
-def check_options(
-    *, target: float | None = None, tolerance: float = 0.05, quantity: str = "slowest"
-) -> None:
-    """Refuse what :func:`assess` refuses of its options without a model (a case file checks
-    them before meshing); :func:`check_request` adds what needs the model."""
-    if quantity not in QUANTITIES:
-        raise AdvisorError(
-            f"quantity must be one of {QUANTITIES}, got {quantity!r}", argument="quantity"
-        )
-    if not (isinstance(tolerance, int | float) and 0 < tolerance < 1):
-        raise AdvisorError(
-            f"tolerance must be a fraction in (0, 1), got {tolerance!r}", argument="tolerance"
-        )
-    if target is None and quantity == "time_to_target":
-        raise AdvisorError(
-            "quantity 'time_to_target' needs a target temperature", argument="target"
-        )
-
-
-def _check_arguments(lumped, drive, target, tolerance, quantity) -> None:
-    check_options(target=target, tolerance=tolerance, quantity=quantity)
-    if abs(drive) <= 1e-9 * max(abs(lumped.initial_temperature), 1.0):
-        raise AdvisorError(
-            f"the initial temperature equals the lumped equilibrium ({lumped.equilibrium:.6g} "
-            "degC): nothing heats or cools at the start, so there is nothing to assess"
-        )
-    if target is not None:
-        low, high = sorted((lumped.initial_temperature, lumped.equilibrium))
-        if not (isinstance(target, int | float) and low < target < high):
-            raise AdvisorError(
-                f"target must be a temperature strictly between the initial temperature and "
-                f"where the part is heading, ({low:.6g}, {high:.6g}) degC, got {target!r}"
-            )
 
 
 def _largest_error(quantity, model, field_history, lumped, times, drive) -> LumpedError:

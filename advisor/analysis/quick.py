@@ -18,8 +18,9 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from fem import PropertyTable, ThermalModel, assemble
+from fem.assembly import initial_field
 from fem.modes import slowest_eigenpair
-from fem.system import ConductionSystem, initial_field
+from fem.system import ConductionSystem
 
 from .assessment import check_request, correction
 from .biot import COMMON_LIMIT, BiotNumber, biot_numbers
