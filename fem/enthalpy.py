@@ -94,10 +94,3 @@ class EnthalpyTable:
         """dh/dT at ``temperature`` °C: the specific heat, J/(kg·K)."""
         low, high = self.temperatures[0], self.temperatures[-1]
         return self._curve()(np.clip(np.asarray(temperature, dtype=float), low, high), 1)
-
-    def specific_heat_table(self):
-        """dh/dT at the table's temperatures, as a property table for reports, J/(kg·K)."""
-        from .materials import PropertyTable  # materials imports this module
-
-        slopes = self.slope(np.asarray(self.temperatures))
-        return PropertyTable(self.temperatures, tuple(np.maximum(slopes, 1e-12).tolist()))

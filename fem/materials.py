@@ -195,7 +195,7 @@ class Material:
         return cls(
             conductivity,
             density,
-            specific_enthalpy.specific_heat_table(),
+            _specific_heat_table(specific_enthalpy),
             name,
             source,
             specific_enthalpy=specific_enthalpy,
@@ -346,3 +346,9 @@ class Material:
     def diffusivity(self) -> float:
         """Thermal diffusivity α = k/(ρ·c) in m²/s (mid-range values for tables)."""
         return self.nominal_conductivity / self.volumetric_heat_capacity
+
+
+def _specific_heat_table(table: EnthalpyTable) -> PropertyTable:
+    """dh/dT at an enthalpy table's temperatures, as a property table for reports, J/(kg·K)."""
+    slopes = table.slope(np.asarray(table.temperatures))
+    return PropertyTable(table.temperatures, tuple(np.maximum(slopes, 1e-12).tolist()))

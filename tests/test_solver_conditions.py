@@ -764,7 +764,7 @@ def two_blocks(size=0.001):
 
 
 def test_per_region_initial_temperatures_mix_to_the_capacity_weighted_mean():
-    # Regression: fem.system.initial_field indexed a region basis's element_dofs (only that
+    # Regression: fem.assembly.initial_field indexed a region basis's element_dofs (only that
     # region's elements) with the mesh-wide numbers of mesh.subdomains[region], so any region
     # after the first raised IndexError (fixed in 7fa2526).
     size = 0.001

@@ -146,12 +146,6 @@ class StudyStore:
         columns = ["case", "status", "error", "wall_seconds", "overrides", *names]
         return columns, list(self.connection.execute(query))
 
-    def to_dataframe(self):
-        """The study's table as a pandas DataFrame (see :mod:`advisor.studies.tables`)."""
-        from .tables import to_dataframe
-
-        return to_dataframe(self)
-
     def close(self) -> None:
         self.connection.close()
 

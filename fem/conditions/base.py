@@ -38,7 +38,7 @@ def register(kind: type[Condition]) -> type[Condition]:
 
 
 class SurfaceEdge(Protocol):
-    """What an edge group offers its conditions (built by :func:`fem.system.assemble`)."""
+    """What an edge group offers its conditions (built by :func:`fem.assembly.assemble`)."""
 
     area: float  # the group's surface area, m² (planar: m²/m)
     weights: np.ndarray  # ∫ φ_i dS per node
