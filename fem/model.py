@@ -105,12 +105,7 @@ class ThermalModel:
         if isinstance(self.material, Material):
             return self.material
         materials = dict(self.material)
-        missing, unknown = sorted(regions - set(materials)), sorted(set(materials) - regions)
-        if missing or unknown:
-            raise ModelError(
-                f"materials must be given for exactly the section's regions {sorted(regions)}; "
-                f"missing {missing}, unknown {unknown}"
-            )
+        _exactly(materials, regions, "materials must be given for exactly the section's regions")
         for region, material in materials.items():
             if not isinstance(material, Material):
                 raise ModelError(
@@ -158,12 +153,7 @@ class ThermalModel:
         if isinstance(value, np.ndarray):  # a field, taken from a Solution before
             return value
         if isinstance(value, Mapping):
-            missing, unknown = sorted(regions - set(value)), sorted(set(value) - regions)
-            if missing or unknown:
-                raise ModelError(
-                    f"initial temperatures must be given for exactly the regions "
-                    f"{sorted(regions)}; missing {missing}, unknown {unknown}"
-                )
+            _exactly(value, regions, "initial temperatures must be given for exactly the regions")
             for region, t in value.items():
                 check_temperature(t, f"initial temperature of region {region!r}")
             return {r: float(t) for r, t in value.items()}
@@ -233,3 +223,10 @@ def check_element_order(value) -> int:
     if isinstance(value, bool) or value not in (1, 2):
         raise ModelError(f"element_order must be 1 or 2, got {value!r}", argument="element_order")
     return int(value)
+
+
+def _exactly(given: Mapping, regions: set[str], what: str) -> None:
+    """Raise unless ``given`` is keyed by exactly the section's ``regions``."""
+    missing, unknown = sorted(regions - set(given)), sorted(set(given) - regions)
+    if missing or unknown:
+        raise ModelError(f"{what} {sorted(regions)}; missing {missing}, unknown {unknown}")
