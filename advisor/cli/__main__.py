@@ -2,6 +2,10 @@
 
 import sys
 
-from . import main
+try:
+    from . import main
+except KeyboardInterrupt:  # Ctrl-C while the command line itself loads
+    print("soakwise: interrupted; nothing written", file=sys.stderr)
+    sys.exit(130)
 
 sys.exit(main())
