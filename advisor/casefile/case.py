@@ -20,7 +20,7 @@ from geometries import Section, SectionMesh
 from .conditions import read_boundaries, read_initial, read_probes, read_sources
 from .materials import WHOLE_SECTION, read_materials
 from .options import read_advisor, read_outputs, read_run
-from .reader import DEEPEST, CaseError, Context, Table, check_tree, echo, nesting_line
+from .reader import DEEPEST, CaseError, Context, Table, check_tree, echo, nesting_key, shown_path
 from .sections import read_section
 from .validation import LIBRARY_ERRORS
 
@@ -153,11 +153,9 @@ def case_from_toml(
     except tomllib.TOMLDecodeError as error:
         raise CaseError(f"{path.name}: not valid TOML: {error}") from None
     except RecursionError:  # the parser recurses once per nested array or inline table
-        line = nesting_line(text)
-        where = path.name + (f", line {line}" if line else "")
-        raise CaseError(
-            f"{where}: arrays or inline tables nested more than {DEEPEST} deep"
-        ) from None
+        found = nesting_key(text)
+        where = path.name + (f", line {found[0]}: {shown_path(found[1])}" if found else "")
+        raise CaseError(f"{where}: is nested more than {DEEPEST} tables or arrays deep") from None
     return case_from_data(data, path, overrides, text.splitlines())
 
 

@@ -119,8 +119,6 @@ def line_of(lines, key_path: str) -> int | None:
     line that assigns the next part of the path and, for keys inside an inline table, holds the
     rest of it.
     """
-    if len(key_path) > 10 * ECHO:  # no key of the format is that long: it is not written out
-        return None
     inside = [
         block
         for block in _table_blocks(lines)
@@ -307,9 +305,19 @@ def check_tree(data: dict, context: Context) -> None:
             stack.append((here, item, depth + 1))
 
 
-def nesting_line(text: str, deepest: int = DEEPEST) -> int | None:
-    """The line where brackets and braces, outside strings and comments, first open more than
-    ``deepest`` deep (for a file too deeply nested for the TOML parser itself)."""
+def nesting_key(text: str, deepest: int = DEEPEST) -> tuple[int, str] | None:
+    """The line and key path where brackets and braces, outside strings and comments, first
+    open more than ``deepest`` deep (for a file too deeply nested for the TOML parser)."""
+    line = _nesting_line(text, deepest)
+    if line is None:
+        return None
+    lines = text.splitlines()
+    table = [path for path, start, end in _table_blocks(lines) if start <= line <= end][-1]
+    key = lines[line - 1].split("=", 1)[0].strip().strip("\"'") if line <= len(lines) else ""
+    return line, ".".join(part for part in (table, key) if part) or "(top)"
+
+
+def _nesting_line(text: str, deepest: int) -> int | None:
     depth, quote, line = 0, "", 1
     previous = ""
     for character in text:
