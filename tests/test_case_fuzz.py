@@ -16,17 +16,12 @@ import os
 import sys
 from pathlib import Path
 
-import pytest
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
 
-hypothesis = pytest.importorskip(
-    "hypothesis", reason="the fuzz test needs hypothesis (test extra)"
-)
-from hypothesis import HealthCheck, given, settings  # noqa: E402
-from hypothesis import strategies as st  # noqa: E402
-
-from advisor.casefile.case import CaseError, load_case  # noqa: E402
-from advisor.casefile.starters import SCENARIOS, starter_text  # noqa: E402
-from advisor.casefile.units import UnitError, quantity  # noqa: E402
+from advisor.casefile.case import CaseError, load_case
+from advisor.casefile.starters import SCENARIOS, starter_text
+from advisor.casefile.units import UnitError, quantity
 
 if sys.version_info >= (3, 11):
     import tomllib
