@@ -214,3 +214,30 @@ def test_a_signal_during_the_solve_ends_with_one_line_and_nothing_written(stop, 
         r"soakwise: interrupted at t = [0-9.e+]+ s of 600 s; nothing written", lines[0]
     ), lines[0]
     assert sorted(p.name for p in tmp_path.iterdir()) == ["bar.toml"]  # no staging, no lock
+
+
+# --- study folders -------------------------------------------------------------------------------
+
+
+def test_force_replaces_a_study_store_only(tmp_path):
+    from advisor.studies.store import FILE_NAME, StudyError, StudyStore, check_replaceable
+    from advisor.studies.study import open_store
+
+    real = tmp_path / "study"
+    real.mkdir()
+    store = StudyStore(real / FILE_NAME)
+    store.describe({"case": "bar.toml"})
+    check_replaceable(real)  # while the store is open, in WAL mode
+    store.connection.close()
+    check_replaceable(real)
+    open_store(real, resume=False, force=True).connection.close()
+
+    other = tmp_path / "other"
+    other.mkdir()
+    (other / FILE_NAME).write_text("my own notes, not a database")
+    (other / "cases").mkdir()
+    (other / "cases" / "keep.txt").write_text("mine")
+    with pytest.raises(StudyError, match="only a study store soakwise wrote is replaced"):
+        open_store(other, resume=False, force=True)
+    assert (other / "cases" / "keep.txt").read_text() == "mine"
+    assert (other / FILE_NAME).read_text() == "my own notes, not a database"
