@@ -241,3 +241,25 @@ def test_force_replaces_a_study_store_only(tmp_path):
         open_store(other, resume=False, force=True)
     assert (other / "cases" / "keep.txt").read_text() == "mine"
     assert (other / FILE_NAME).read_text() == "my own notes, not a database"
+
+
+@pytest.mark.parametrize("delay", [0.5, 1.5, 3.0])
+def test_ctrl_c_at_any_early_moment_prints_one_line(delay, tmp_path):
+    """Ctrl-C while the modules load, the case is read or the mesh is made: one line, no
+    traceback, exit status 130 (or, if the run was quicker than the signal, a finished run)."""
+    case = small_case(tmp_path, time_step="0.5 ms", end_time="10 min")
+    run = subprocess.Popen(
+        [sys.executable, "-m", "advisor.cli", "run", str(case), "--out", str(tmp_path / "out")],
+        cwd=tmp_path,
+        stderr=subprocess.PIPE,
+        text=True,
+        env={**os.environ, "PYTHONPATH": str(ROOT)},
+    )
+    time.sleep(delay)
+    run.send_signal(signal.SIGINT)
+    err = run.communicate(timeout=120)[1]
+    assert run.returncode == EXIT_INTERRUPTED, err
+    assert "Traceback" not in err
+    assert err.strip().splitlines()[-1].startswith("soakwise: interrupted"), err
+    assert len([line for line in err.splitlines() if "interrupted" in line]) == 1
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["bar.toml"]

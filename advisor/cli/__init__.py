@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import argparse
 import logging
+import os
 import signal
 import sys
 import threading
@@ -29,7 +30,15 @@ from .common import (
     on_terminate,
 )
 
-__all__ = ["EXIT_FAILED", "EXIT_INTERRUPTED", "EXIT_OK", "EXIT_USAGE", "build_parser", "main"]
+__all__ = [
+    "EXIT_FAILED",
+    "EXIT_INTERRUPTED",
+    "EXIT_OK",
+    "EXIT_USAGE",
+    "build_parser",
+    "console",
+    "main",
+]
 
 COMMANDS = {
     "run": run,
@@ -87,6 +96,21 @@ def main(argv: list[str] | None = None) -> int:
     finally:
         if previous is not None:
             signal.signal(signal.SIGTERM, previous)
+
+
+def console() -> None:
+    """The ``soakwise`` program: :func:`main`, then exit with its status.
+
+    After an interruption the process ends at once with status 130 (every cleanup has run):
+    CPython remembers a Ctrl-C that landed inside code compiled at run time (dataclasses make
+    their methods so) and would otherwise end the process by SIGINT although it was handled.
+    """
+    status = main()
+    if status == EXIT_INTERRUPTED:
+        sys.stdout.flush()
+        sys.stderr.flush()
+        os._exit(status)
+    sys.exit(status)
 
 
 def _main(argv: list[str] | None) -> int:

@@ -1,11 +1,13 @@
 """``python -m advisor.cli``: the ``soakwise`` command."""
 
+import os
 import sys
 
 try:
-    from . import main
+    from . import console
 except KeyboardInterrupt:  # Ctrl-C while the command line itself loads
     print("soakwise: interrupted; nothing written", file=sys.stderr)
-    sys.exit(130)
+    sys.stderr.flush()
+    os._exit(130)  # see console(): a plain exit could still end by SIGINT
 
-sys.exit(main())
+console()
