@@ -15,6 +15,7 @@ from __future__ import annotations
 import os
 import re
 import shutil
+import threading
 from collections.abc import Iterator
 from contextlib import contextmanager
 from pathlib import Path
@@ -26,7 +27,7 @@ try:  # POSIX
 except ImportError:  # pragma: no cover - Windows
     fcntl = None
 
-_HELD: dict[Path, int] = {}  # folders this process holds, with how many holders
+_HELD: dict[tuple[Path, int], int] = {}  # (folder, thread) held here → how many holders
 
 
 def lock_path(folder: Path) -> Path:
@@ -57,23 +58,24 @@ def results_lock(folder: Path) -> Iterator[None]:
         If another process holds the lock.
     """
     folder = Path(os.path.abspath(folder))
-    if folder in _HELD:
-        _HELD[folder] += 1
+    held = (folder, threading.get_ident())  # another thread locks like another process
+    if held in _HELD:
+        _HELD[held] += 1
         try:
             yield
         finally:
-            _HELD[folder] -= 1
+            _HELD[held] -= 1
         return
     made = _make_parents(folder.parent)
     try:
         handle = _acquire(lock_path(folder), folder)
-        _HELD[folder] = 1
+        _HELD[held] = 1
         try:
             for stale in leftovers(folder):
                 shutil.rmtree(stale, ignore_errors=True)
             yield
         finally:
-            del _HELD[folder]
+            del _HELD[held]
             _release(lock_path(folder), handle)
     finally:
         for parent in made:  # innermost first; only folders this lock made, and only if empty

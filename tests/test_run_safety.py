@@ -263,3 +263,24 @@ def test_ctrl_c_at_any_early_moment_prints_one_line(delay, tmp_path):
     assert err.strip().splitlines()[-1].startswith("soakwise: interrupted"), err
     assert len([line for line in err.splitlines() if "interrupted" in line]) == 1
     assert sorted(p.name for p in tmp_path.iterdir()) == ["bar.toml"]
+
+
+def test_another_thread_is_refused_like_another_process(tmp_path):
+    import threading
+
+    folder = tmp_path / "results"
+    refusals: list[str] = []
+
+    def second_writer() -> None:
+        try:
+            with results_lock(folder):
+                pass
+        except ResultsFolderExistsError as error:
+            refusals.append(str(error))
+
+    with results_lock(folder):
+        thread = threading.Thread(target=second_writer)
+        thread.start()
+        thread.join()
+    assert len(refusals) == 1 and "another run is writing" in refusals[0]
+    assert not lock_path(folder).exists()
