@@ -19,21 +19,29 @@ Layout::
     fields/temperature.xdmf      XDMF time series (with h5py, the ``xdmf`` extra) ...
     fields/temperature.h5        ... and its HDF5 data
 
+and ``.soakwise-results``, the marker: which program and version wrote the folder, when, and
+every file in it. ``force`` replaces only a folder holding this marker and nothing but the
+files it lists; never a plain file, a device, a link, the current or root folder, a folder
+holding the current one or the case file, or a folder holding anything else.
+
 The folder is first written under a temporary name beside the target and renamed when
 complete, so an interrupted run leaves no half-written results and an existing folder is
-replaced only after the new one is whole. The public entry is
-:func:`advisor.pipeline.write_results`.
+replaced only after the new one is whole. One run at a time writes a folder (see
+:mod:`advisor.folder_lock`). The public entry is :func:`advisor.pipeline.write_results`.
 """
 
 from __future__ import annotations
 
 import importlib.util
+import json
 import shutil
 import tempfile
+import time
 from pathlib import Path
 
 from .analysis.assessment import Assessment
 from .errors import AdvisorError, ResultsFolderExistsError
+from .folder_lock import results_lock
 from .writers.animation import mp4_available, write_animation
 from .writers.histories_csv import write_histories_csv
 from .writers.plots import PLOTS, write_plots
@@ -45,15 +53,67 @@ from .writers.vtk_series import write_vtk_series, write_xdmf_series
 
 PLOT_FOLDER = "plots"
 FIELD_FOLDER = "fields"
+MARKER = ".soakwise-results"
 
 
-def check_results_folder(folder: Path, *, force: bool) -> None:
-    """Raise :class:`ResultsFolderExistsError` if ``folder`` exists and ``force`` is false."""
-    if Path(folder).exists() and not force:
+def check_results_folder(folder: Path, *, force: bool, keep: tuple[Path, ...] = ()) -> None:
+    """Check that the results can go to ``folder``: it does not exist, or ``force`` is set and
+    it is a results folder soakwise wrote, holding nothing else.
+
+    Parameters
+    ----------
+    folder : path
+        The results folder.
+    force : bool
+        Replace an existing results folder.
+    keep : tuple of paths
+        Files that must survive (the case file): a folder holding one is never replaced.
+
+    Raises
+    ------
+    ResultsFolderExistsError
+        With the reason; nothing is changed.
+    """
+    folder = Path(folder)
+    if not folder.exists() and not folder.is_symlink():
+        return
+    shown = repr(str(folder))
+    if not force:
         raise ResultsFolderExistsError(
-            f"results folder {str(folder)!r} already exists; choose another or replace it "
+            f"results folder {shown} already exists; choose another or replace it "
             "with force=True (--force on the command line)"
         )
+    reason = _not_replaceable(folder, keep)
+    if reason:
+        raise ResultsFolderExistsError(
+            f"{shown} is not replaced: {reason}; only a results folder soakwise wrote (with "
+            f"{MARKER} in it) and holding nothing else is replaced; choose another folder"
+        )
+
+
+def _not_replaceable(folder: Path, keep: tuple[Path, ...]) -> str | None:
+    """Why ``folder`` (which exists) must not be deleted, or None."""
+    if folder.is_symlink():
+        return "it is a symbolic link"
+    if not folder.is_dir():
+        return "it is not a folder (a file or a device)"
+    real = folder.resolve()
+    if real == Path(real.anchor) or real in (Path.cwd().resolve(), *Path.cwd().resolve().parents):
+        return "it is the root folder, the current folder or one holding it"
+    for path in keep:
+        if Path(path).resolve().is_relative_to(real):
+            return f"it holds {Path(path).name}"
+    try:
+        listed = set(json.loads((folder / MARKER).read_text(encoding="utf-8"))["files"])
+    except (OSError, ValueError, KeyError, TypeError):
+        return f"it has no readable {MARKER} (soakwise did not write it)"
+    for path in folder.rglob("*"):
+        name = path.relative_to(folder).as_posix()
+        if path.is_symlink() or (not path.is_dir() and name not in listed):
+            return f"it holds {name!r}, which soakwise did not write"
+        if path.is_dir() and not any(f.startswith(name + "/") for f in listed):
+            return f"it holds the folder {name!r}, which soakwise did not write"
+    return None
 
 
 def xdmf_available() -> bool:
@@ -91,13 +151,16 @@ def write_folder(
     check_results_folder(folder, force=force)
     mp4 = animation and _optional(mp4, mp4_available(), "mp4", "mp4")
     xdmf = vtk and _optional(xdmf, xdmf_available(), "xdmf", "xdmf")
-    folder.parent.mkdir(parents=True, exist_ok=True)
-    staging = Path(tempfile.mkdtemp(dir=folder.parent, prefix=f".{folder.name}.", suffix=".part"))
-    try:
-        files = _write_files(assessment, staging, report, animation, vtk, mp4, xdmf)
-        _put_in_place(staging, folder)
-    finally:
-        shutil.rmtree(staging, ignore_errors=True)
+    with results_lock(folder):
+        check_results_folder(folder, force=force)  # as it is now that no one else writes it
+        staging = Path(
+            tempfile.mkdtemp(dir=folder.parent, prefix=f".{folder.name}.", suffix=".part")
+        )
+        try:
+            files = _write_files(assessment, staging, report, animation, vtk, mp4, xdmf)
+            _put_in_place(staging, folder)
+        finally:
+            shutil.rmtree(staging, ignore_errors=True)
     return files
 
 
@@ -129,14 +192,28 @@ def _write_files(
     files = [Path("summary.json")]
     if report:
         files += [Path("report.html"), Path("report.md")]
-    files += [p.relative_to(staging) for p in written]
+    files += [p.relative_to(staging) for p in written] + [Path(MARKER)]
     names = [f.as_posix() for f in files]
     if report:
         content = build_report(assessment, _pictures(animation), names)
         write_html_report(content, staging / "report.html")
         write_markdown_report(content, staging / "report.md")
     write_summary_json(assessment, staging / "summary.json", names)
+    _write_marker(staging / MARKER, names)
     return files
+
+
+def _write_marker(path: Path, names: list[str]) -> None:
+    """The marker that lets ``force`` know soakwise wrote the folder, and every file in it."""
+    from importlib.metadata import PackageNotFoundError, version
+
+    try:
+        written_by = f"soakwise {version('soakwise')}"
+    except PackageNotFoundError:
+        written_by = "soakwise"
+    stamp = time.strftime("%Y-%m-%dT%H:%M:%SZ", time.gmtime())
+    text = json.dumps({"written_by": written_by, "time": stamp, "files": names}, indent=1)
+    path.write_text(text + "\n", encoding="utf-8")
 
 
 def _pictures(animation: bool) -> list[Picture]:

@@ -104,6 +104,7 @@ def check_run_options(
             argument="time_step",
         )
     adaptive = time_step is None if adaptive is None else bool(adaptive)
+    _check_counts(end, None if adaptive else time_step, max_step, output_interval, output_times)
     startup = _startup_steps(stepper, startup_steps)
     times = _outputs(end, output_interval, output_times)
     if tolerance is not None and not _positive(tolerance):
@@ -258,3 +259,32 @@ def _positive(value) -> bool:
         and math.isfinite(value)
         and value > 0
     )
+
+
+MAX_STEPS = 10_000_000  # a run's histories keep about 0.5 kB a step
+MAX_OUTPUTS = 100_000  # each output keeps the field: 8 bytes a node
+
+
+def _check_counts(end: float, time_step, max_step, output_interval, output_times) -> None:
+    """Refuse, before anything is built, a run whose fixed step (or largest step) or output
+    interval asks for more than :data:`MAX_STEPS` steps or :data:`MAX_OUTPUTS` outputs: the
+    run would fill the memory long before it ended."""
+    counts = []
+    for name, value in (("time_step", time_step), ("max_step", max_step)):
+        if _positive(value):
+            counts.append((name, end / float(value), MAX_STEPS, "steps"))
+    if output_interval is not None and _positive(output_interval):
+        counts.append(("output_interval", end / float(output_interval), MAX_OUTPUTS, "outputs"))
+    elif hasattr(output_times, "__len__"):  # an iterator is left for _outputs to read
+        counts.append(("output_times", len(output_times), MAX_OUTPUTS, "outputs"))
+    for name, count, limit, what in counts:
+        if count > limit:
+            memory = 500 * count if what == "steps" else 8 * count
+            each = "of histories" if what == "steps" else "for each node of the mesh"
+            advice = "give fewer" if name == "output_times" else f"make {name} larger"
+            raise ModelError(
+                f"{name} asks for about {count:.3g} {what} over end_time = {end:g} s "
+                f"(about {memory / 1e9:.3g} GB {each}); at most {limit:,} are allowed: "
+                f"{advice}",
+                argument=name,
+            )

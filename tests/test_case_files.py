@@ -269,6 +269,44 @@ MALFORMED = [
         "max_newton_iterations_fraction.toml",
         "run.max_newton_iterations",
         "must be a whole number >= 1",
+    # text that is not UTF-8
+    row("encoding_utf16.toml", None, "not UTF-8 text: byte 0 is 0xff (it looks like UTF-16", None),
+    row("encoding_binary.toml", None, "not UTF-8 text: byte 48 is 0x80", None),
+    # units pint cannot parse (its tokenizer, parser and arithmetic fail in their own ways)
+    row(
+        "unit_unbalanced_bracket.toml",
+        "boundaries.quenched.convection.coefficient",
+        "unknown unit 'W/(m^2*K'",
+        23,
+    ),
+    row("unit_dangling_power.toml", "section.shape[0].width", "unknown unit 'm**'", 9),
+    row("unit_division_by_zero.toml", "material.density", "unknown unit 'kg/m^3/0'", 16),
+    row("unit_emoji.toml", "section.shape[0].height", "unknown unit", 10),
+    # control characters in names, huge keys and values (echoed at most ~80 characters)
+    row(
+        "edge_group_name_with_nul.toml",
+        "section.shape[0].edges.right",
+        "control character U+0000",
+        11,
+    ),
+    row("probe_name_with_escape.toml", "probes", "holds the character U+001B", 28),
+    row("unknown_key_100k_characters.toml", None, "is not a known key (keys here:", 38),
+    row("probe_point_of_100k_numbers.toml", "probes.core", "got [0, 0, 0, 0, 0, 0, ...]", 29),
+    # nesting deeper than any key of the format (the TOML parser itself would recurse)
+    row("arrays_nested_5000_deep.toml", "probes.deep", "nested more than 16", 31),
+    row("inline_tables_nested_40_deep.toml", None, "probes.core.x.x", 29),
+    # steps and outputs: refused before meshing with the estimate; min_step above max_step
+    row("min_step_above_max_step.toml", "run.min_step", "is above max_step 1.0 s", 33),
+    row(
+        "time_step_one_nanosecond_over_ten_years.toml",
+        "run.time_step",
+        "about 3.16e+17 steps over end_time = 3.15576e+08 s",
+        33,
+    ),
+    row(
+        "output_interval_one_nanosecond.toml",
+        "run.output_interval",
+        "about 6e+11 outputs over end_time = 600 s",
         34,
     ),
     # not TOML at all
@@ -313,8 +351,10 @@ def test_the_corpus_is_the_table():
     on_disk = {p.name for p in CASES.glob("*.toml")}
     assert on_disk == listed
     assert len(MALFORMED) >= 25
-    for name in on_disk:  # each file says what is wrong with it
-        assert (CASES / name).read_text(encoding="utf-8").startswith("# ")
+    for name in on_disk:  # each file says what is wrong with it (in its own encoding)
+        data = (CASES / name).read_bytes()
+        utf16 = data[:2] in (b"\xff\xfe", b"\xfe\xff")
+        assert data.decode("utf-16" if utf16 else "latin-1").startswith("# ")
 
 
 @pytest.mark.parametrize(("name", "key_path", "phrase", "line"), MALFORMED)
@@ -331,6 +371,7 @@ def test_malformed_case_is_refused_with_one_message(
     lines = err.strip().splitlines()
     assert len(lines) == 1, err
     assert lines[0].startswith("soakwise: error: "), err
+    assert len(lines[0]) <= 700, "the message echoes too much of the input"
     check_message(lines[0].removeprefix("soakwise: error: "), name, key_path, phrase, line)
     assert list(tmp_path.iterdir()) == []
     assert sorted(p.name for p in CASES.iterdir()) == before
@@ -341,6 +382,13 @@ def test_malformed_case_is_refused_by_the_loader(name, key_path, phrase, line):
     with pytest.raises(CaseError) as error:
         load_case(CASES / name)
     check_message(str(error.value), name, key_path, phrase, line)
+
+
+def test_check_refuses_min_step_above_max_step(capsys):
+    status = main(["check", str(CASES / "min_step_above_max_step.toml")])
+    err = capsys.readouterr().err
+    assert status == EXIT_USAGE
+    assert "line 33: run.min_step: 10.0 s is above max_step 1.0 s" in err
 
 
 def test_temperature_difference_in_degc_is_a_difference_or_refused():

@@ -19,6 +19,7 @@ def test_force_replaces_the_folder(tmp_path):
     out = tmp_path / "results"
     out.mkdir()
     (out / "stale.txt").write_text("old")
+    (out / ".soakwise-results").write_text('{"files": ["stale.txt", ".soakwise-results"]}')
     assert main(["--quiet", "demo", "--out", str(out), "--force"]) == EXIT_OK
     assert not (out / "stale.txt").exists()
     assert (out / "summary.json").is_file()

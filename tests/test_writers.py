@@ -518,6 +518,7 @@ def test_switches_leave_their_files_out(run, tmp_path):
             "summary.json",
             "histories.csv",
             *(f"plots/{s}.{k}" for s in PLOTS for k in ("png", "svg")),
+            ".soakwise-results",
         ]
     )
     assert (

@@ -20,7 +20,7 @@ from geometries import Section, SectionMesh
 from .conditions import read_boundaries, read_initial, read_probes, read_sources
 from .materials import WHOLE_SECTION, read_materials
 from .options import read_advisor, read_outputs, read_run
-from .reader import CaseError, Context, Table
+from .reader import DEEPEST, CaseError, Context, Table, check_tree, echo, nesting_key, shown_path
 from .sections import read_section
 from .validation import LIBRARY_ERRORS
 
@@ -117,8 +117,29 @@ def load_case(path: str | Path, overrides: dict | None = None) -> Case:
     """
     path = Path(path)
     if not path.is_file():
-        raise CaseError(f"case file {str(path)!r} does not exist")
-    return case_from_toml(path.read_text(encoding="utf-8"), path, overrides)
+        raise CaseError(f"case file {echo(str(path))} does not exist")
+    try:
+        data = path.read_bytes()
+    except OSError as error:
+        raise CaseError(f"case file {echo(str(path))} cannot be read: {error.strerror}") from None
+    return case_from_toml(decoded(data, path.name), path, overrides)
+
+
+def decoded(data: bytes, name: str) -> str:
+    """The text of a case file, which TOML wants in UTF-8 (a leading byte-order mark is
+    dropped); anything else is refused at the first byte that is not UTF-8."""
+    try:
+        return data.decode("utf-8").removeprefix("\ufeff")
+    except UnicodeDecodeError as error:
+        start = data[:4]
+        looks = (
+            " (it looks like UTF-16 or UTF-32: save it as UTF-8)"
+            if start[:2] in (b"\xff\xfe", b"\xfe\xff") or b"\x00" in start
+            else ""
+        )
+        raise CaseError(
+            f"{name}: not UTF-8 text: byte {error.start} is 0x{data[error.start]:02x}{looks}"
+        ) from None
 
 
 def case_from_toml(
@@ -131,6 +152,10 @@ def case_from_toml(
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as error:
         raise CaseError(f"{path.name}: not valid TOML: {error}") from None
+    except RecursionError:  # the parser recurses once per nested array or inline table
+        found = nesting_key(text)
+        where = path.name + (f", line {found[0]}: {shown_path(found[1])}" if found else "")
+        raise CaseError(f"{where}: is nested more than {DEEPEST} tables or arrays deep") from None
     return case_from_data(data, path, overrides, text.splitlines())
 
 
@@ -140,18 +165,32 @@ def case_from_data(
     """A :class:`Case` from the tables of a case file as a dict (what ``tomllib`` gives);
     ``lines``, the file's text, lets messages name lines."""
     path = Path(path)
-    data = copy.deepcopy(data)  # the overrides must not change the caller's tables
-    for dotted, value in (overrides or {}).items():
-        target = data
-        *parents, last = dotted.split(".")
-        for key in parents:
-            target = target.setdefault(key, {})
-        target[last] = value
     context = Context(path.name, tuple(lines), path.parent)
+    check_tree(data, context)  # before any recursive copy or read meets a deep nesting
+    data = _overridden(copy.deepcopy(data), overrides or {}, path.name)
+    check_tree(data, context)
     try:
         return _read_case(Table(data, "", context), path)
     except LIBRARY_ERRORS as error:  # a library check no key path was found for
         raise CaseError(f"{path.name}: {error}") from None
+    except CaseError:
+        raise
+    except (TypeError, ValueError, KeyError, IndexError, AttributeError, ArithmeticError) as error:
+        # a value of a shape no reader expected: refused, never a traceback
+        raise CaseError(f"{path.name}: a value could not be read: {echo(error)}") from None
+
+
+def _overridden(data: dict, overrides: dict, name: str) -> dict:
+    """``data`` with ``overrides`` (dotted key path → value) written in."""
+    for dotted, value in overrides.items():
+        target = data
+        *parents, last = str(dotted).split(".")
+        for key in parents:
+            target = target.setdefault(key, {}) if isinstance(target, dict) else None
+        if not isinstance(target, dict):
+            raise CaseError(f"{name}: {echo(dotted)}: cannot be set, a key on its path is a value")
+        target[last] = value
+    return data
 
 
 def _read_case(root: Table, path: Path) -> Case:

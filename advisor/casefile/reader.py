@@ -7,6 +7,7 @@ from __future__ import annotations
 
 import difflib
 import re
+import reprlib
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -14,10 +15,46 @@ from ..errors import AdvisorError
 from .units import UnitError, quantity
 
 MISSING = object()  # "no default": the key is required
+ECHO = 80  # characters of a value or key shown in a message
+LONGEST_MESSAGE = 600  # characters; a longer message keeps its start and its end
+DEEPEST = 16  # tables and arrays inside one another; the deepest key of the format is ~6
+_CONTROL = re.compile(r"[\x00-\x1f\x7f-\x9f]")
 
 
 class CaseError(AdvisorError):
-    """A case file that cannot be run: the message starts with the file, line and key path."""
+    """A case file that cannot be run: the message starts with the file, line and key path.
+
+    The message is bounded (:data:`LONGEST_MESSAGE` characters): a value echoed whole from a
+    huge input would bury what is wrong with it.
+    """
+
+    def __init__(self, message: str, *, argument: str | None = None) -> None:
+        super().__init__(clipped(str(message), LONGEST_MESSAGE), argument=argument)
+
+
+_SHOWN = reprlib.Repr()
+_SHOWN.maxlevel, _SHOWN.maxstring, _SHOWN.maxother = 3, ECHO, ECHO
+_SHOWN.maxlist = _SHOWN.maxtuple = _SHOWN.maxdict = 6
+
+
+def clipped(text: str, limit: int = ECHO) -> str:
+    """``text`` cut to ``limit`` characters, the middle given up for " ... "."""
+    if len(text) <= limit:
+        return text
+    keep = limit - 5
+    return f"{text[: keep - keep // 3]} ... {text[len(text) - keep // 3 :]}"
+
+
+def echo(value) -> str:
+    """``repr(value)`` for a message: at most :data:`ECHO` characters, deep or long values
+    shortened (the repr of a 2 MB array or of arrays nested a thousand deep is never built)."""
+    return clipped(_SHOWN.repr(value))
+
+
+def control_character(text: str) -> str | None:
+    """The first control character (NUL, escape, newline, ...) of ``text`` as ``U+XXXX``."""
+    found = _CONTROL.search(text)
+    return None if found is None else f"U+{ord(found.group()):04X}"
 
 
 @dataclass(frozen=True)
@@ -43,7 +80,14 @@ class Context:
         """Raise a :class:`CaseError` naming the file, the line of ``key_path`` and the key."""
         line = line_of(self.lines, key_path)
         where = self.name + (f", line {line}" if line else "")
-        raise CaseError(f"{where}: {key_path}: {message}")
+        raise CaseError(f"{where}: {shown_path(key_path)}: {message}")
+
+
+def shown_path(key_path: str) -> str:
+    """A key path for a message: each key at most :data:`ECHO` characters, control
+    characters written as escapes."""
+    parts = (clipped(part) for part in key_path.split("."))
+    return ".".join(part if control_character(part) is None else echo(part) for part in parts)
 
 
 _HEADER = re.compile(r"^(\[\[?)\s*([^\]]+?)\s*\]\]?")
@@ -99,6 +143,8 @@ def line_of(lines, key_path: str) -> int | None:
 
 def suggest(name, choices) -> str:
     """ "; did you mean 'x'?" for the choice nearest ``name``, or nothing."""
+    if len(str(name)) > 4 * ECHO:  # nothing of the format is that long; spare the comparison
+        return ""
     close = difflib.get_close_matches(str(name), [str(c) for c in choices], n=1, cutoff=0.6)
     return f"; did you mean {close[0]!r}?" if close else ""
 
@@ -146,6 +192,7 @@ class Table:
                 k
                 for k in self.data
                 if k not in self.known
+                and len(str(k)) <= 4 * ECHO
                 and difflib.get_close_matches(name, [str(k)], n=1, cutoff=0.6)
             ]
             if misspelt:
@@ -173,7 +220,7 @@ class Table:
         if value is default and default is not MISSING:
             return default
         if not (isinstance(value, list) and len(value) == 2):
-            self.fail(name, f"expected a point [x, y] of two lengths, got {value!r}")
+            self.fail(name, f"expected a point [x, y] of two lengths, got {echo(value)}")
         return (self.quantity(name, value[0], "length"), self.quantity(name, value[1], "length"))
 
     def text(self, name: str, default=MISSING, choices=None) -> str:
@@ -182,18 +229,17 @@ class Table:
         if value is default and default is not MISSING:
             return default
         if not isinstance(value, str) or not value.strip():
-            self.fail(name, f"expected a name (text), got {value!r}")
+            self.fail(name, f"expected a name (text), got {echo(value)}")
         if choices is not None and value not in choices:
-            self.fail(
-                name, f"must be one of {list(choices)}, got {value!r}" + suggest(value, choices)
-            )
+            wanted = f"must be one of {list(choices)}, got {echo(value)}"
+            self.fail(name, wanted + suggest(value, choices))
         return value
 
     def flag(self, name: str, default: bool) -> bool:
         """true or false."""
         value = self.raw(name, default)
         if not isinstance(value, bool):
-            self.fail(name, f"expected true or false, got {value!r}")
+            self.fail(name, f"expected true or false, got {echo(value)}")
         return value
 
     def table(self, name: str, default=MISSING) -> Table | None:
@@ -202,7 +248,7 @@ class Table:
         if value is default and default is not MISSING:
             return default
         if not isinstance(value, dict):
-            self.fail(name, f"expected a table, got {value!r}")
+            self.fail(name, f"expected a table, got {echo(value)}")
         return Table(value, self.key(name), self.context)
 
     def tables(self, name: str) -> list[Table]:
@@ -226,3 +272,71 @@ class Table:
                 + suggest(name, known)
                 + (f" (keys here: {', '.join(known)})" if known else ""),
             )
+
+
+def check_tree(data: dict, context: Context) -> None:
+    """Refuse, before anything is read, tables or arrays nested more than :data:`DEEPEST`
+    deep and keys or text holding control characters (NUL, escape, line breaks ...), which
+    would end up raw in reports, tables and file names.
+
+    The walk keeps its own stack, so no depth of nesting exhausts Python's.
+    """
+    stack: list[tuple[str, object, int]] = [("", data, 0)]
+    while stack:
+        path, value, depth = stack.pop()
+        if isinstance(value, str):
+            bad = control_character(value)
+            if bad is not None:
+                context.fail(path, f"holds the control character {bad} in {echo(value)}")
+            continue
+        if not isinstance(value, dict | list):
+            continue
+        if depth >= DEEPEST:
+            context.fail(path, f"is nested more than {DEEPEST} tables or arrays deep")
+        items = value.items() if isinstance(value, dict) else enumerate(value)
+        for key, item in items:
+            if isinstance(value, dict):
+                bad = control_character(str(key))
+                here = f"{path}.{key}" if path else str(key)
+                if bad is not None:
+                    context.fail(path or here, f"the key {echo(key)} holds the character {bad}")
+            else:
+                here = f"{path}[{key}]"
+            stack.append((here, item, depth + 1))
+
+
+def nesting_key(text: str, deepest: int = DEEPEST) -> tuple[int, str] | None:
+    """The line and key path where brackets and braces, outside strings and comments, first
+    open more than ``deepest`` deep (for a file too deeply nested for the TOML parser)."""
+    line = _nesting_line(text, deepest)
+    if line is None:
+        return None
+    lines = text.splitlines()
+    table = [path for path, start, end in _table_blocks(lines) if start <= line <= end][-1]
+    key = lines[line - 1].split("=", 1)[0].strip().strip("\"'") if line <= len(lines) else ""
+    return line, ".".join(part for part in (table, key) if part) or "(top)"
+
+
+def _nesting_line(text: str, deepest: int) -> int | None:
+    depth, quote, line = 0, "", 1
+    previous = ""
+    for character in text:
+        if character == "\n":
+            line += 1
+            if quote in ("#", '"', "'"):  # a comment or a one-line string ends here
+                quote = ""
+        elif quote == "#":
+            pass
+        elif quote:
+            if character == quote and previous != "\\":
+                quote = ""
+        elif character in "\"'#":
+            quote = character
+        elif character in "[{":
+            depth += 1
+            if depth > deepest:
+                return line
+        elif character in "]}":
+            depth -= 1
+        previous = character
+    return None

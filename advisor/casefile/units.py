@@ -30,11 +30,20 @@ KINDS = {
     "number": ("", "a plain number"),
 }
 
+LONGEST_UNIT = 40  # characters of a unit: "W/(m^2*K)" is 9
+# a power of a power ("m**9**9**9") would have pint compute a number of millions of digits
+_TOWER = re.compile(r"(\*\*|\^)[^a-zA-Z]*(\*\*|\^)|(\*\*|\^)\s*\(?\s*[-+]?\d{3}")
 _NUMBER = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
 
 
 class UnitError(ValueError):
     """A value that is not a quantity of the expected kind; the message says what is."""
+
+
+def _shown(value) -> str:
+    """``repr(value)`` cut to about 80 characters for a message."""
+    text = repr(value) if not isinstance(value, list | dict) else f"a {type(value).__name__}"
+    return text if len(text) <= 80 else f"{text[:60]} ... {text[-15:]}"
 
 
 @lru_cache(maxsize=1)
@@ -46,35 +55,45 @@ def quantity(value, kind: str) -> float:
     """The magnitude of ``value`` in the SI unit of ``kind`` (°C for temperatures)."""
     unit, described = KINDS[kind]
     if isinstance(value, bool):
-        raise UnitError(f"expected {described}, got {value!r}")
+        raise UnitError(f"expected {described}, got {_shown(value)}")
     if isinstance(value, int | float):
         number = float(value)
     elif isinstance(value, str):
         match = _NUMBER.match(value)
         if match is None:
-            raise UnitError(f"expected {described}, got {value!r} (a number, then a unit)")
+            raise UnitError(f"expected {described}, got {_shown(value)} (a number, then a unit)")
         magnitude, text = float(match.group(1)), match.group(2)
         if not text:
             number = magnitude
         elif kind == "number":
-            raise UnitError(f"expected a plain number, got {value!r}")
+            raise UnitError(f"expected a plain number, got {_shown(value)}")
         else:
-            ureg = registry()
-            if kind == "temperature_difference":  # "8 degC" of difference is 8 K, not 281 K
-                text = re.sub(r"\bdeg(C|F)\b", r"delta_deg\1", text)
-            try:
-                given = ureg.Quantity(magnitude, ureg.parse_units(text.replace("^", "**")))
-                number = float(given.to(unit.replace("^", "**")).magnitude)
-            except pint.errors.DimensionalityError:
-                raise UnitError(
-                    f"expected {described}, got {value!r}: '{text}' is a different kind of unit"
-                ) from None
-            except (pint.errors.UndefinedUnitError, AttributeError, TypeError, ValueError):
-                raise UnitError(
-                    f"expected {described}, got {value!r}: unknown unit '{text}'"
-                ) from None
+            number = _converted(magnitude, text, kind, value)
     else:
-        raise UnitError(f"expected {described}, got {value!r}")
+        raise UnitError(f"expected {described}, got {_shown(value)}")
     if not math.isfinite(number):
-        raise UnitError(f"expected {described}, got {value!r} (not finite)")
+        raise UnitError(f"expected {described}, got {_shown(value)} (not finite)")
     return number
+
+
+def _converted(magnitude: float, text: str, kind: str, value: str) -> float:
+    """``magnitude`` of the unit ``text`` in the SI unit of ``kind``, through pint; every
+    failure of pint's parser (unbalanced brackets, a dangling operator, a division by zero,
+    a character it has no token for) is a :class:`UnitError`."""
+    unit, described = KINDS[kind]
+    if len(text) > LONGEST_UNIT or _TOWER.search(text):
+        raise UnitError(f"expected {described}, got {_shown(value)}: not a unit pint can read")
+    ureg = registry()
+    if kind == "temperature_difference":  # "8 degC" of difference is 8 K, not 281 K
+        text = re.sub(r"\bdeg(C|F)\b", r"delta_deg\1", text)
+    try:
+        given = ureg.Quantity(magnitude, ureg.parse_units(text.replace("^", "**")))
+        return float(given.to(unit.replace("^", "**")).magnitude)
+    except pint.errors.DimensionalityError:
+        raise UnitError(
+            f"expected {described}, got {_shown(value)}: '{text}' is a different kind of unit"
+        ) from None
+    except Exception:  # pint's parser fails in many ways: TokenError, AssertionError, ...
+        raise UnitError(
+            f"expected {described}, got {_shown(value)}: unknown unit {_shown(text)}"
+        ) from None

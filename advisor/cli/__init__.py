@@ -5,20 +5,40 @@ field solve, ``demo``, ``new`` (write a starting case for a scenario), ``materia
 library) and ``show`` (a results folder's summary). A command imports the solver, the mesher
 and the plotting only when it runs, so the help and the small commands start quickly.
 
-Exit status: 0 done, 1 the run failed, 2 bad command line or input (nothing written).
+Exit status: 0 done, 1 the run failed, 2 bad command line or input (nothing written), 130
+interrupted by Ctrl-C or SIGTERM (one line, staging folders removed, nothing written).
 """
 
 from __future__ import annotations
 
 import argparse
 import logging
+import os
+import signal
 import sys
+import threading
 
 from ..errors import AdvisorError
 from . import check, converge, demo, materials, new, run, show, sweep
-from .common import EPILOG, EXIT_FAILED, EXIT_OK, EXIT_USAGE, configure_logging
+from .common import (
+    EPILOG,
+    EXIT_FAILED,
+    EXIT_INTERRUPTED,
+    EXIT_OK,
+    EXIT_USAGE,
+    configure_logging,
+    on_terminate,
+)
 
-__all__ = ["EXIT_FAILED", "EXIT_OK", "EXIT_USAGE", "build_parser", "main"]
+__all__ = [
+    "EXIT_FAILED",
+    "EXIT_INTERRUPTED",
+    "EXIT_OK",
+    "EXIT_USAGE",
+    "build_parser",
+    "console",
+    "main",
+]
 
 COMMANDS = {
     "run": run,
@@ -65,6 +85,35 @@ def build_parser() -> argparse.ArgumentParser:
 
 def main(argv: list[str] | None = None) -> int:
     """Run the command line; return the exit status."""
+    main_thread = threading.current_thread() is threading.main_thread()
+    previous = signal.signal(signal.SIGTERM, on_terminate) if main_thread else None
+    try:
+        return _main(argv)
+    except KeyboardInterrupt as stop:  # Ctrl-C or SIGTERM, wherever it came
+        where = getattr(stop, "where", "")
+        print(f"soakwise: interrupted{where}; nothing written", file=sys.stderr)
+        return EXIT_INTERRUPTED
+    finally:
+        if previous is not None:
+            signal.signal(signal.SIGTERM, previous)
+
+
+def console() -> None:
+    """The ``soakwise`` program: :func:`main`, then exit with its status.
+
+    After an interruption the process ends at once with status 130 (every cleanup has run):
+    CPython remembers a Ctrl-C that landed inside code compiled at run time (dataclasses make
+    their methods so) and would otherwise end the process by SIGINT although it was handled.
+    """
+    status = main()
+    if status == EXIT_INTERRUPTED:
+        sys.stdout.flush()
+        sys.stderr.flush()
+        os._exit(status)
+    sys.exit(status)
+
+
+def _main(argv: list[str] | None) -> int:
     parser = build_parser()
     args = parser.parse_args(argv)
     configure_logging(

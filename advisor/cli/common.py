@@ -8,16 +8,17 @@ imports what it needs when it runs.
 from __future__ import annotations
 
 import logging
+import signal
 import sys
 import warnings
 from pathlib import Path
 
 from ..caution import CAUTION
 
-EXIT_OK, EXIT_FAILED, EXIT_USAGE = 0, 1, 2
+EXIT_OK, EXIT_FAILED, EXIT_USAGE, EXIT_INTERRUPTED = 0, 1, 2, 130
 EPILOG = (
     f"Caution: {CAUTION}\n\nExit status: 0 done, 1 the run failed, 2 bad command line "
-    "or input (nothing is written)."
+    "or input (nothing is written), 130 interrupted (Ctrl-C or SIGTERM)."
 )
 
 log = logging.getLogger("soakwise")
@@ -76,3 +77,54 @@ def report_run(assessment, folder: Path, files: list[Path]) -> None:
         f"Wrote {len(files)} files to {folder}/: open report.html, or fields/ in a VTK viewer"
     )
     log.info(f"Caution: {CAUTION}")
+
+
+class Interrupted(KeyboardInterrupt):
+    """Ctrl-C or SIGTERM, raised where the program was so that every cleanup runs;
+    ``where`` says how far it got (" at t = 12 s of 600 s")."""
+
+    def __init__(self, where: str = "") -> None:
+        super().__init__(where)
+        self.where = where
+
+
+def on_terminate(signum, frame) -> None:
+    """SIGTERM's handler: stop like Ctrl-C (Python's default ends without any cleanup)."""
+    raise Interrupted()
+
+
+def rearm_terminate() -> None:
+    """Put :func:`on_terminate` back at the operating system's level where the command line
+    set it: gmsh resets SIGTERM to its default when it starts, behind Python's back."""
+    if signal.getsignal(signal.SIGTERM) is on_terminate:
+        signal.signal(signal.SIGTERM, on_terminate)
+
+
+class SolvePosition:
+    """The solver's ``progress`` callback that remembers how far the solve got, passing each
+    call on to the progress line (``display``, or None)."""
+
+    def __init__(self, display=None) -> None:
+        self.display = display
+        self.time: float | None = None
+        self.end_time: float | None = None
+        self.solved = False
+
+    def __call__(self, time: float, end_time: float, steps: int) -> None:
+        if self.time is None:  # the first call, after meshing
+            rearm_terminate()
+        self.time, self.end_time = float(time), float(end_time)
+        if self.display is not None:
+            self.display(time, end_time, steps)
+
+    def close(self) -> None:
+        if self.display is not None:
+            self.display.close()
+
+    def where(self) -> str:
+        """ " at t = 12.5 s of 600 s", or where the run was before or after the solve."""
+        if self.solved:
+            return " while writing the results"
+        if self.time is None:
+            return " before the solve"
+        return f" at t = {self.time:.4g} s of {self.end_time:.4g} s"

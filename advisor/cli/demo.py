@@ -5,7 +5,7 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
-from .common import EXIT_OK, log, report_run
+from .common import EXIT_OK, Interrupted, log, rearm_terminate, report_run
 
 DEFAULT_FOLDER = "soakwise-demo"
 SUMMARY = "run the built-in example (a steel bar quenched in oil) into a results folder"
@@ -24,18 +24,26 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
         help=f"results folder to write (default: ./{DEFAULT_FOLDER})",
     )
     parser.add_argument(
-        "--force", action="store_true", help="replace the results folder if it exists"
+        "--force",
+        action="store_true",
+        help="replace the results folder (only one soakwise wrote, holding nothing else)",
     )
 
 
 def execute(args: argparse.Namespace) -> int:
     from ..demo import run_demo
+    from ..folder_lock import results_lock
     from ..pipeline import write_results
     from ..results_folder import check_results_folder
 
     check_results_folder(args.out, force=args.force)  # fail before the solve, not after
-    log.info("Solving the demonstration: steel bar 60 mm x 40 mm quenched in oil ...")
-    results = run_demo()
-    files = write_results(results, args.out, force=args.force)
+    try:
+        with results_lock(args.out):
+            log.info("Solving the demonstration: steel bar 60 mm x 40 mm quenched in oil ...")
+            results = run_demo()
+            rearm_terminate()  # meshing reset SIGTERM
+            files = write_results(results, args.out, force=args.force)
+    except KeyboardInterrupt as stop:
+        raise Interrupted() from stop
     report_run(results.assessment, args.out, files)
     return EXIT_OK

@@ -5,7 +5,15 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
-from .common import EXIT_OK, log, progress_display, report_run
+from .common import (
+    EXIT_OK,
+    Interrupted,
+    SolvePosition,
+    log,
+    progress_display,
+    rearm_terminate,
+    report_run,
+)
 
 SUMMARY = "solve a case file and write its results folder"
 DESCRIPTION = (
@@ -22,20 +30,34 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
         metavar="DIR",
         help="results folder (default: the case file's name without .toml)",
     )
-    parser.add_argument("--force", action="store_true", help="replace the results folder")
+    parser.add_argument(
+        "--force",
+        action="store_true",
+        help="replace the results folder (only one soakwise wrote, holding nothing else)",
+    )
 
 
 def execute(args: argparse.Namespace) -> int:
     from ..casefile.case import load_case
+    from ..folder_lock import results_lock
     from ..pipeline import run_case, write_results
     from ..results_folder import check_results_folder
 
     case = load_case(args.case)  # every check that needs no mesh, before anything is written
     out = results_folder(args.case, args.out)
-    check_results_folder(out, force=args.force)
-    log.info(f"Meshing and solving {case.title!r} ...")
-    results = run_case(case, progress=progress_display())
-    files = write_results(results, out, force=args.force)
+    check_results_folder(out, force=args.force, keep=(args.case,))
+    position = SolvePosition(progress_display())
+    try:
+        with results_lock(out):  # held through the solve: a second run into out is refused
+            log.info(f"Meshing and solving {case.title!r} ...")
+            results = run_case(case, progress=position)
+            position.solved = True
+            rearm_terminate()
+            check_results_folder(out, force=args.force, keep=(args.case,))
+            files = write_results(results, out, force=args.force)
+    except KeyboardInterrupt as stop:
+        position.close()
+        raise Interrupted(position.where()) from stop
     report_run(results.assessment, out, files)
     return EXIT_OK
 

@@ -34,6 +34,40 @@ class StudyError(AdvisorError):
     """A study that cannot start or resume as asked; the message says why and what to do."""
 
 
+def check_replaceable(folder: Path) -> None:
+    """Refuse to replace the study in ``folder`` (``--force``) unless its
+    :data:`FILE_NAME` is a study store this program wrote: an SQLite database whose ``study``
+    table records the layout. A file of that name holding anything else is left alone.
+
+    Raises
+    ------
+    StudyError
+        With the reason; nothing is changed.
+    """
+    path = Path(folder) / FILE_NAME
+    reason = None
+    if path.is_symlink() or not path.is_file():
+        reason = "it is not a file"
+    else:
+        try:
+            connection = sqlite3.connect(f"{path.resolve().as_uri()}?mode=ro", uri=True)
+            try:
+                row = connection.execute(
+                    "SELECT value FROM study WHERE name = 'layout'"
+                ).fetchone()
+            finally:
+                connection.close()
+            if row is None:
+                reason = "it records no study layout"
+        except sqlite3.Error as error:
+            reason = f"it is not a study store ({error})"
+    if reason is not None:
+        raise StudyError(
+            f"{str(path)!r} is not replaced with --force: {reason}; only a study store "
+            "soakwise wrote is replaced; choose another folder"
+        )
+
+
 class StudyStore:
     """The database of one study.
 

@@ -19,7 +19,7 @@ from .cases import (
 )
 from .engines import WORKER_FAILED, choose
 from .spec import StudySpec, read_study_table
-from .store import FILE_NAME, StudyError, StudyStore
+from .store import FILE_NAME, StudyError, StudyStore, check_replaceable
 from .tables import CSV_NAME, PARQUET_NAME, to_dataframe, write_csv, write_parquet
 from .worker import CaseTask
 
@@ -122,6 +122,7 @@ def open_store(folder: Path | None, *, resume: bool, force: bool) -> StudyStore:
                 f"{folder} already holds a study; continue it with --resume, or replace it "
                 "with --force"
             )
+        check_replaceable(folder)
         for name in (FILE_NAME, FILE_NAME + "-wal", FILE_NAME + "-shm", CSV_NAME, PARQUET_NAME):
             (folder / name).unlink(missing_ok=True)
         shutil.rmtree(folder / CASES_FOLDER, ignore_errors=True)
