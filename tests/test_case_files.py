@@ -269,6 +269,8 @@ MALFORMED = [
         "max_newton_iterations_fraction.toml",
         "run.max_newton_iterations",
         "must be a whole number >= 1",
+        34,
+    ),
     # text that is not UTF-8
     row("encoding_utf16.toml", None, "not UTF-8 text: byte 0 is 0xff (it looks like UTF-16", None),
     row("encoding_binary.toml", None, "not UTF-8 text: byte 48 is 0x80", None),
