@@ -7,7 +7,8 @@ safe and parallel meshing runs in separate processes.
 gmsh's API is used directly (pygmsh's session falls short here): gmsh sets its own interrupt
 handler when it starts, which only the main thread may do and which ``finalize`` does not undo.
 Off the main thread (a dask worker's task) it starts without one; on the main thread the
-handler that was there before is put back, so Ctrl-C keeps working after meshing.
+handlers that were there before (SIGINT, SIGTERM) are put back, so an interruption after
+meshing ends the run as the command line intends.
 """
 
 from __future__ import annotations
@@ -30,7 +31,12 @@ def gmsh_session() -> Iterator[None]:
     become :class:`GeometryError`."""
     main_thread = threading.current_thread() is threading.main_thread()
     with _GMSH_LOCK:
-        handler = signal.getsignal(signal.SIGINT) if main_thread else None
+        # gmsh installs its own handlers at the system level; Python's are put back after it
+        handlers = (
+            {sig: signal.getsignal(sig) for sig in (signal.SIGINT, signal.SIGTERM)}
+            if main_thread
+            else {}
+        )
         gmsh.initialize([], interruptible=main_thread)
         try:
             gmsh.option.setNumber("General.Terminal", 0)
@@ -42,5 +48,6 @@ def gmsh_session() -> Iterator[None]:
             raise GeometryError(f"gmsh could not build or mesh the section: {error}") from None
         finally:
             gmsh.finalize()
-            if main_thread and handler is not None:
-                signal.signal(signal.SIGINT, handler)
+            for sig, handler in handlers.items():
+                if handler is not None:
+                    signal.signal(sig, handler)
