@@ -35,6 +35,8 @@ def summary(assessment: Assessment, files: list[str]) -> dict:
         "peak_internal_difference_time_s": assessment.peak_internal_difference_time,
         "time_to_target_s": assessment.time_to_target,
         "verdict": _verdict(assessment),
+        "quench": _quench(assessment),
+        "freezing": _freezing(assessment),
         "final": {
             "mean_degC": float(solution.mean[-1]),
             "minimum_degC": float(solution.minimum[-1]),
@@ -130,6 +132,52 @@ def _verdict(assessment: Assessment) -> dict:
         "direction": verdict.direction,
         "advice": verdict.advice,
         "reasons": list(verdict.reasons),
+    }
+
+
+def _quench(assessment: Assessment) -> dict | None:
+    """The quench readings at the slowest point and the probes (None when not asked for);
+    rates are cooling rates when ``cooling``, heating rates otherwise."""
+    quench = assessment.quench
+    if quench is None:
+        return None
+    return {
+        "cooling": quench.cooling,
+        "times_to_degC": list(quench.times_to),
+        "cooling_range_degC": None if quench.cooling_range is None else list(quench.cooling_range),
+        "histories": {
+            name: {
+                "largest_rate_K_per_s": curve.largest_rate,
+                "largest_rate_temperature_degC": curve.largest_rate_temperature,
+                "largest_rate_time_s": curve.largest_rate_time,
+                "times_to_s": [
+                    {"temperature_degC": t, "time_s": curve.times_to[t]} for t in quench.times_to
+                ],
+                "range_time_s": curve.range_time,
+            }
+            for name, curve in quench.curves.items()
+        },
+    }
+
+
+def _freezing(assessment: Assessment) -> dict | None:
+    """The field's freezing time beside Plank's and Pham's (None when not asked for); errors
+    are (hand − field)/field."""
+    f = assessment.freezing
+    if f is None:
+        return None
+    return {
+        "end_temperature_degC": f.end_temperature,
+        "field_time_s": f.field_time,
+        "plank_s": f.plank,
+        "pham_s": f.pham,
+        "plank_error_fraction": f.error("plank"),
+        "pham_error_fraction": f.error("pham"),
+        "half_thickness_m": f.half_thickness,
+        "shape_number": f.shape_number,
+        "heat_transfer_coefficient_W_per_m2_K": f.heat_transfer_coefficient,
+        "medium_temperature_degC": f.medium_temperature,
+        "wording": f.wording,
     }
 
 
