@@ -1,0 +1,73 @@
+"""The surface temperatures a run passed through on one edge group: the part of a coefficient
+curve (h or heat flux against surface temperature) the run actually used."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..errors import AdvisorError
+
+
+@dataclass(frozen=True)
+class SurfaceBand:
+    """The lowest and highest temperature on an edge group at each output time.
+
+    Attributes
+    ----------
+    group : str
+        The edge group.
+    times : ndarray
+        The output times, s.
+    lowest, highest : ndarray
+        The lowest and highest nodal temperature on the group at those times, °C.
+    """
+
+    group: str
+    times: np.ndarray
+    lowest: np.ndarray
+    highest: np.ndarray
+
+    @property
+    def low(self) -> float:
+        """The lowest surface temperature over the run's output times, °C."""
+        return float(self.lowest.min())
+
+    @property
+    def high(self) -> float:
+        """The highest surface temperature over the run's output times, °C."""
+        return float(self.highest.max())
+
+
+def surface_band(solution, group: str) -> SurfaceBand:
+    """The temperatures of the nodes of edge ``group`` at every output time of ``solution``.
+
+    The band is read from the stored fields, so between output times the surface may have
+    passed somewhat beyond it (the initial field is always the first output).
+
+    Parameters
+    ----------
+    solution : fem.Solution
+        A finished run.
+    group : str
+        An edge group of the solution's section.
+
+    Returns
+    -------
+    SurfaceBand
+    """
+    mesh = solution.model.section.mesh
+    if group not in mesh.boundaries:
+        raise AdvisorError(
+            f"edge group {group!r} is not in the section; its edge groups are "
+            f"{sorted(mesh.boundaries)}"
+        )
+    nodes = np.unique(mesh.facets[:, mesh.boundaries[group]])
+    values = np.array([np.asarray(solution.fields[i])[nodes] for i in range(len(solution.fields))])
+    return SurfaceBand(
+        group,
+        np.asarray(solution.output_times, dtype=float),
+        values.min(axis=1),
+        values.max(axis=1),
+    )
