@@ -21,11 +21,14 @@ _LAZY = {
     "HeatFlux": ".conditions",
     "Insulated": ".conditions",
     "Radiation": ".conditions",
+    "SurfaceCurve": ".conditions",
+    "SurfaceTemperatureConvection": ".conditions",
     "check_exponential_parts": ".exponential_run",
     "FieldSeries": ".fields",
     "Material": ".materials",
     "PropertyRangeWarning": ".materials",
     "PropertyTable": ".materials",
+    "EnthalpyTable": ".enthalpy",
     "ThermalModel": ".model",
     "Constant": ".schedules",
     "Periodic": ".schedules",
@@ -70,6 +73,9 @@ __all__ = [
     "SolverStats",
     "Steps",
     "StopWhen",
+    "SurfaceCurve",
+    "SurfaceTemperatureConvection",
+    "EnthalpyTable",
     "ThermalModel",
 ]
 
@@ -83,7 +89,10 @@ if TYPE_CHECKING:
         HeatFlux,
         Insulated,
         Radiation,
+        SurfaceCurve,
+        SurfaceTemperatureConvection,
     )
+    from .enthalpy import EnthalpyTable
     from .events import StopWhen
     from .exponential_run import check_exponential_parts
     from .fields import FieldSeries

@@ -5,8 +5,8 @@ of radiation and c(T)): they need no pivoting, and SuperLU's symmetric mode keep
 ordering intact (with partial pivoting, minimum degree on AᵀA + A factorised ~100× and solved
 ~25× slower at 10k unknowns). The ordering is minimum degree on AᵀA + A for small problems and
 nested dissection of the mesh (:mod:`fem.ordering`, computed once per run) from
-``NESTED_DISSECTION_FROM`` unknowns. Newton tangents that k(T) makes unsymmetric pivot as usual,
-with COLAMD.
+``NESTED_DISSECTION_FROM`` unknowns. Newton tangents that k(T) makes unsymmetric keep the
+symmetric ordering with threshold pivoting below that size, COLAMD with partial pivoting above.
 """
 
 from __future__ import annotations
@@ -39,6 +39,8 @@ class Cost:
     solves: int = 0
     newton_iterations: int = 0
     max_newton_iterations: int = 0
+    damped_iterations: int = 0  # Newton updates shortened by the line search
+    iteration_seconds: float = 0.0  # Newton iterations of converged steps, factorisations in
 
     def iterated(self, iterations: int) -> None:
         """Count a step's Newton iterations (one solve each)."""
@@ -85,6 +87,17 @@ class LinearAlgebra:
                     options={"SymmetricMode": True},
                 ),
                 self._ordering,
+            )
+        elif free.size < NESTED_DISSECTION_FROM:
+            # Nearly symmetric (k(T) adds k'(T)·δ·∇T): the symmetric ordering, diagonal pivots
+            # unless one is below a tenth of its column, so pivoting happens only where needed.
+            # On freezing tangents at 10k unknowns: factorised 1.3-2× and solved 1.2-2× faster
+            # than COLAMD with partial pivoting, residuals alike (~1e-15).
+            factor = spla.splu(
+                matrix[free][:, free].tocsc(),
+                permc_spec="MMD_AT_PLUS_A",
+                diag_pivot_thresh=0.1,
+                options={"SymmetricMode": True},
             )
         else:
             factor = spla.splu(matrix[free][:, free].tocsc(), permc_spec="COLAMD")

@@ -8,6 +8,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .enthalpy import EnthalpyTable, smooth_fraction, smooth_fraction_slope
 from .errors import ModelError, shown
 from .temperatures import ABSOLUTE_ZERO
 
@@ -85,22 +86,28 @@ class PropertyTable:
         return (min(self.values), max(self.values))
 
 
+def _table_arrays(table: PropertyTable):
+    """The table as arrays with the running integral at its points, kept on the table (a
+    nonlinear step integrates it a few times per iteration)."""
+    arrays = table.__dict__.get("_arrays")
+    if arrays is None:
+        tt = np.asarray(table.temperatures)
+        vv = np.asarray(table.values)
+        cumulative = np.concatenate([[0.0], np.cumsum(0.5 * (vv[1:] + vv[:-1]) * np.diff(tt))])
+        arrays = (tt, vv, cumulative)
+        object.__setattr__(table, "_arrays", arrays)
+    return arrays
+
+
 def _clamped_integral(table: PropertyTable, t: np.ndarray) -> np.ndarray:
-    """∫ from the first table temperature to t of the clamped piecewise-linear table."""
-    tt = np.asarray(table.temperatures)
-    vv = np.asarray(table.values)
-    cumulative = np.concatenate([[0.0], np.cumsum(0.5 * (vv[1:] + vv[:-1]) * np.diff(tt))])
-    below = t < tt[0]
-    above = t > tt[-1]
+    """∫ from the first table temperature to t of the clamped piecewise-linear table: inside
+    it exact, beyond its ends the end value times the distance."""
+    tt, vv, cumulative = _table_arrays(table)
     tc = np.clip(t, tt[0], tt[-1])
     i = np.clip(np.searchsorted(tt, tc, side="right") - 1, 0, len(tt) - 2)
     vc = np.interp(tc, tt, vv)
     inside = cumulative[i] + 0.5 * (vv[i] + vc) * (tc - tt[i])
-    return (
-        inside
-        + np.where(below, vv[0] * (t - tt[0]), 0.0)
-        + np.where(above, vv[-1] * (t - tt[-1]), 0.0)
-    )
+    return inside + vv[0] * np.minimum(t - tt[0], 0.0) + vv[-1] * np.maximum(t - tt[-1], 0.0)
 
 
 Property = float | PropertyTable
@@ -136,6 +143,16 @@ class Material:
         A label for reports.
     source : str
         Where the values come from.
+    latent_heat : float
+        Latent heat of the phase change in J/kg (0: none), released between ``solidus`` and
+        ``liquidus`` by the smooth fraction of :func:`smooth_fraction` and added to the
+        enthalpy H(T) = ∫ρc dT + ρ·L·S(T).
+    solidus, liquidus : float, optional
+        Temperatures in °C where the phase change ends and begins (liquidus − solidus > 0; a
+        range of 0.5–2 K keeps a front sharp and Newton's method fast).
+    specific_enthalpy : EnthalpyTable, optional
+        The enthalpy directly (latent heat included), instead of ``specific_heat`` and
+        ``latent_heat``; see :meth:`from_enthalpy`.
 
     Examples
     --------
@@ -149,8 +166,43 @@ class Material:
     specific_heat: Property
     name: str = "material"
     source: str = ""
+    latent_heat: float = 0.0
+    solidus: float | None = None
+    liquidus: float | None = None
+    specific_enthalpy: EnthalpyTable | None = None
+
+    @classmethod
+    def from_enthalpy(
+        cls,
+        conductivity: Property,
+        density: float,
+        specific_enthalpy: EnthalpyTable,
+        name: str = "material",
+        source: str = "",
+    ) -> Material:
+        """A material whose heat storage is a table of specific enthalpy (J/kg) against
+        temperature (°C); ``specific_heat`` becomes its slope at the table's points (for
+        reports).
+
+        >>> water = EnthalpyTable((-5.0, -1.0, 0.0, 5.0), (0.0, 8.4e3, 3.4e5, 3.6e5))
+        >>> round(float(Material.from_enthalpy(0.6, 1000.0, water).enthalpy(0.0, -5.0)))
+        340000000
+        """
+        if not isinstance(specific_enthalpy, EnthalpyTable):
+            raise ModelError(
+                f"Material specific_enthalpy must be an EnthalpyTable, got {specific_enthalpy!r}"
+            )
+        return cls(
+            conductivity,
+            density,
+            specific_enthalpy.specific_heat_table(),
+            name,
+            source,
+            specific_enthalpy=specific_enthalpy,
+        )
 
     def __post_init__(self) -> None:
+        self._check_phase_change()
         object.__setattr__(
             self, "conductivity", _check_property(self.conductivity, "conductivity", "W/(m*K)")
         )
@@ -162,12 +214,69 @@ class Material:
             self, "specific_heat", _check_property(self.specific_heat, "specific_heat", "J/(kg*K)")
         )
 
+    def _check_phase_change(self) -> None:
+        latent = self.latent_heat
+        if not (isinstance(latent, int | float) and not isinstance(latent, bool)) or not (
+            math.isfinite(latent) and latent >= 0
+        ):
+            raise ModelError(
+                f"Material latent_heat must be a finite value >= 0 J/kg, got {latent!r}",
+                argument="latent_heat",
+            )
+        object.__setattr__(self, "latent_heat", float(latent))
+        bounds = (self.solidus, self.liquidus)
+        if latent == 0:
+            if bounds != (None, None):
+                raise ModelError(
+                    "Material solidus and liquidus need a latent_heat > 0 J/kg",
+                    argument="latent_heat",
+                )
+            return
+        for name, value in zip(("solidus", "liquidus"), bounds, strict=True):
+            if not isinstance(value, int | float) or isinstance(value, bool):
+                raise ModelError(
+                    f"Material with latent heat needs a {name} temperature in degC, got {value!r}",
+                    argument=name,
+                )
+            if not math.isfinite(value) or value <= ABSOLUTE_ZERO:
+                raise ModelError(
+                    f"Material {name} must be above {ABSOLUTE_ZERO:g} degC, got {value!r}",
+                    argument=name,
+                )
+        if not self.liquidus > self.solidus:
+            raise ModelError(
+                f"Material liquidus {self.liquidus!r} degC must lie above the solidus "
+                f"{self.solidus!r} degC (a freezing range of 0.5-2 K is typical; a range of 0 "
+                "would make the enthalpy jump)",
+                argument="liquidus",
+            )
+        if self.specific_enthalpy is not None:
+            raise ModelError(
+                "Material takes either latent_heat or specific_enthalpy (which includes it)",
+                argument="latent_heat",
+            )
+        object.__setattr__(self, "solidus", float(self.solidus))
+        object.__setattr__(self, "liquidus", float(self.liquidus))
+
     @property
     def is_constant(self) -> bool:
-        """True when no property depends on temperature."""
-        return not isinstance(self.conductivity, PropertyTable) and not isinstance(
-            self.specific_heat, PropertyTable
+        """True when no property depends on temperature (and there is no phase change)."""
+        return not isinstance(self.conductivity, PropertyTable) and self.constant_capacity
+
+    @property
+    def constant_capacity(self) -> bool:
+        """True when ρc is one number: no table, no latent heat, no enthalpy table."""
+        return (
+            isinstance(self.specific_heat, float)
+            and self.latent_heat == 0
+            and self.specific_enthalpy is None
         )
+
+    @property
+    def has_phase_change(self) -> bool:
+        """True when the material stores latent heat (given as such or in an enthalpy
+        table)."""
+        return self.latent_heat > 0 or self.specific_enthalpy is not None
 
     def conductivity_at(self, temperature):
         k = self.conductivity
@@ -186,22 +295,39 @@ class Material:
         )
 
     def heat_capacity_at(self, temperature):
-        """ρ·c(T) in J/(m³·K)."""
+        """ρ·dh/dT in J/(m³·K): ρ·c(T), with the latent heat's release ρ·L·S'(T)."""
+        if self.specific_enthalpy is not None:
+            return self.density * self.specific_enthalpy.slope(temperature)
         c = self.specific_heat
         values = (
             c(temperature)
             if isinstance(c, PropertyTable)
             else np.full_like(np.asarray(temperature, dtype=float), c)
         )
+        if self.latent_heat:
+            values = values + self.latent_heat * smooth_fraction_slope(
+                temperature, self.solidus, self.liquidus
+            )
         return self.density * values
 
     def enthalpy(self, temperature, reference: float):
-        """∫ ρ·c dT from ``reference`` to ``temperature`` (°C), J/m³."""
-        c = self.specific_heat
+        """H(T) − H(reference): ∫ ρ·c dT from ``reference`` to ``temperature`` (°C) with the
+        latent heat released between them, J/m³."""
         t = np.asarray(temperature, dtype=float)
+        if self.specific_enthalpy is not None:
+            table = self.specific_enthalpy
+            return self.density * (table(t) - table(reference))
+        c = self.specific_heat
         if isinstance(c, PropertyTable):
-            return self.density * c.integral(t, reference)
-        return self.density * c * (t - reference)
+            sensible = c.integral(t, reference)
+        else:
+            sensible = c * (t - reference)
+        if self.latent_heat:
+            fraction = smooth_fraction(t, self.solidus, self.liquidus)
+            sensible = sensible + self.latent_heat * (
+                fraction - smooth_fraction(reference, self.solidus, self.liquidus)
+            )
+        return self.density * sensible
 
     def _nominal(self, value) -> float:
         return float(np.mean(value.range)) if isinstance(value, PropertyTable) else value

@@ -15,10 +15,11 @@ from typing import ClassVar
 
 import numpy as np
 
+from .errors import SolverError
 from .events import Events, StopWatch
 from .integrators import StepFormula, StepResult, bdf2_formula, predict, theta_formula
 from .linear_step import LinearStep
-from .newton import NewtonStep
+from .newton import NewtonStep, NewtonStepError
 from .step_control import StepControl
 from .stepper import March, RunContext, Stepper
 
@@ -95,14 +96,18 @@ class _FormulaMarch:
                 startup,
                 self.stepper.max_step_ratio,
             )
-            formula, result = self._take(h, t1, startup)
+            try:
+                formula, result = self._take(h, t1, startup)
+            except NewtonStepError as failure:
+                self._retry(failure, h, t1)
+                continue
             if controls.adaptive and not startup and len(self.history) >= 3:
                 past = [state for _, state in reversed(self.history)]
                 times = (t1, *[t for t, _ in reversed(self.history)])
                 free = self.run.system.free_dofs
                 if not self.control.judge(formula, h, times, result.field, past, free):
                     continue
-            self.control.accepted()
+            self.control.accepted(t1)
             if self._accept(formula, h, t1, result, startup):
                 break
         return self._outcome()
@@ -119,11 +124,30 @@ class _FormulaMarch:
         formula = self.stepper.formula(startup, ratio)
         if startup and self.stepper.half_step_startup:
             half = self.solver.solve(formula, h / 2, t, t + h / 2, past[:1], past[0])
-            self._record(t + h / 2, formula, half)
-            self.steps += 1
             result = self.solver.solve(formula, h / 2, t + h / 2, t1, [half.field], half.field)
+            self._record(t + h / 2, formula, half)  # recorded once both halves converged
+            self.steps += 1
             return formula, result
         return formula, self.solver.solve(formula, h, t, t1, past[: formula.history], guess)
+
+    def _retry(self, failure: NewtonStepError, h: float, t1: float) -> None:
+        """Newton's method failed on the step of ``h`` s to ``t1``: halve it, or raise at the
+        step's floor, naming what to change."""
+        if self.control.retry(h, t1):
+            return
+        controls = self.controls
+        floor = self.control.floor()
+        end = self.control.subdivision_end or t1  # a fixed step: the one that was subdivided
+        bound = "min_step" if controls.adaptive else "time_step (substeps go down to 1/4096 of it)"
+        raise SolverError(
+            f"Newton's method did not converge on the step to t = {end:.6g} s even with the step "
+            f"cut to {h:.3g} s (from t = {self.time:.6g} s; the floor is {floor:.3g} s): the "
+            f"last change was {failure.change:.3g} K and the residual {failure.residual:.3g} W "
+            f"({failure.how}). Raise max_newton_iterations (now "
+            f"{controls.max_newton_iterations}) or newton_tolerance (now "
+            f"{controls.newton_tolerance:.3g} K) in [run], or lower {bound}; a very narrow "
+            "freezing range or a jump in a property table may also need smoothing"
+        )
 
     def _record(self, time: float, formula: StepFormula, result: StepResult) -> None:
         """Record a state, with the stored-energy increment the scheme's heat balance gives.
@@ -187,4 +211,6 @@ class _FormulaMarch:
             final_state=self.history[-1][1].copy(),
             stop_time=self.stop_time,
             recent_startup_steps=self.startup_done,
+            retried_steps=self.control.retried,
+            subdivided_steps=self.control.subdivided,
         )

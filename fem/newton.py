@@ -1,14 +1,23 @@
-"""One step of a multistep formula for a nonlinear model, by simplified Newton.
+"""One step of a multistep formula for a nonlinear model, by damped simplified Newton.
 
 The step's residual is a0·C(T1)/h + Σ a_j·C(T_j)/h + β·G(T1, t1) + (1 − β)·G(T0, t0). The
 factorised tangent is kept across iterations and steps (of the same size and formula) while it
-still shrinks the change by ``TANGENT_RATE`` or better; otherwise it is refactorised at the
-current iterate. A step then costs a few solves instead of a factorisation per iteration.
+still shrinks the change by ``TANGENT_RATE`` or better and the iterations it would still need
+cost less than a new factorisation (at the run's measured prices); otherwise it is
+refactorised at the current iterate. A step then costs a few solves instead of a
+factorisation per iteration.
+
+Each update is damped by a line search on the residual's norm (Armijo's test, step lengths
+halved): a full update that does not lower the residual is first retried with a fresh tangent,
+then shortened. Latent heat released over a narrow range, or a coefficient that jumps with the
+surface temperature, make the full update overshoot; the shortened one does not. When the
+iterations still fail, :class:`NewtonStepError` tells the march to retry the step smaller.
 """
 
 from __future__ import annotations
 
 import math
+import time as clock
 
 import numpy as np
 
@@ -17,14 +26,44 @@ from .integrators import StepFormula, StepResult
 from .stepper import RunContext
 
 TANGENT_RATE = 0.5  # a kept Newton tangent must shrink the change at least this much per iteration
+SUFFICIENT_DECREASE = 1e-4  # Armijo: the residual norm must fall by this fraction of the length
+SHORTEST_UPDATE = 1.0 / 64  # the shortest damped update, as a fraction of Newton's
+# Updates this short, this many times running, mean the iterations are stuck (a kink in a
+# table they circle around): the step is given up early and retried smaller.
+STALLED_LENGTH, STALLED_ITERATIONS = 1.0 / 8, 4
+
+
+class NewtonStepError(SolverError):
+    """Newton's method did not converge in one step (the march retries it smaller).
+
+    Attributes
+    ----------
+    time, step : float
+        End of the step and its size, s.
+    change : float
+        The last full Newton update's largest entry, K.
+    residual : float
+        The last residual's largest entry on the free degrees of freedom, W.
+    how : str
+        "stalled after n iterations" (the line search made no headway) or "not converged in
+        n iterations".
+    """
+
+    def __init__(
+        self, message: str, time: float, step: float, change: float, residual: float, how: str
+    ):
+        super().__init__(message)
+        self.time, self.step, self.change, self.residual = time, step, change, residual
+        self.how = how
 
 
 class NewtonStep:
-    """Solves nonlinear steps of a run (radiation, k(T), c(T))."""
+    """Solves nonlinear steps of a run (radiation, k(T), c(T), latent heat, h(T_s))."""
 
     def __init__(self, run: RunContext):
         self.run = run
-        # Capacity and radiation tangents are symmetric; k(T) adds k'(T)·δ·∇T, which is not.
+        # Capacity, radiation and h(T_s) tangents are symmetric; k(T) adds k'(T)·δ·∇T, which
+        # is not.
         self.symmetric = all(
             isinstance(m.conductivity, float) for m in run.system.model.materials.values()
         )
@@ -61,40 +100,108 @@ class NewtonStep:
         u = guess.copy()
         system.impose_fixed(u, inside1)
         self._iterate(u, residual, formula, step, t1)
-        r = residual(u)
+        outflow1 = system.net_outflow(u, inside1)
+        r = formula.a[0] * system.stored(u) / step + known + formula.beta * outflow1
         reactions = {name: float(r[d].sum()) for name, d in system.fixed_dofs.items()}
-        inflow = formula.beta * -float(system.net_outflow(u, inside1).sum())
+        inflow = formula.beta * -float(outflow1.sum())
         inflow += (1 - formula.beta) * inflow_old
         heat = step * (inflow + sum(reactions.values()))
         return StepResult(u, float(system.stored(u).sum()), heat, reactions)
 
+    def _factor(self, u: np.ndarray, formula: StepFormula, step: float, t1: float, key) -> None:
+        """Factorise the tangent at ``u`` and keep it under ``key``."""
+        system = self.run.system
+        jacobian = (formula.a[0] / step) * system.capacity_tangent(u) + formula.beta * (
+            system.outflow_tangent(u, t1 - 1e-9 * step)
+        )
+        self.tangent = (key, self.run.algebra.factor(jacobian, self.symmetric))
+
     def _iterate(self, u, residual, formula: StepFormula, step: float, t1: float) -> None:
-        """Newton's iterations on the free degrees of freedom of ``u`` (in place)."""
-        system, controls = self.run.system, self.run.controls
-        inside1 = t1 - 1e-9 * step
-        free = system.free_dofs
+        """Damped Newton iterations on the free degrees of freedom of ``u`` (in place), until
+        the update is below the tolerance (the energy balance of the step is then closed to
+        the tolerance's share)."""
+        controls, cost = self.run.controls, self.run.cost
+        free = self.run.system.free_dofs
+        started, factoring = clock.perf_counter(), cost.factorisation_seconds
         key = (float(f"{formula.a[0] / step:.12e}"), formula.beta)
-        refresh = self.tangent is None or self.tangent[0] != key
+        if self.tangent is None or self.tangent[0] != key:
+            self._factor(u, formula, step, t1, key)
+        fresh = True  # the kept tangent was factorised at the current iterate
         previous = math.inf
+        r = residual(u)
+        norm = float(np.linalg.norm(r[free]))
+        largest = math.inf
+        stalled = iteration = 0
         for iteration in range(1, controls.max_newton_iterations + 1):
-            r = residual(u)
-            if refresh:
-                jacobian = (formula.a[0] / step) * system.capacity_tangent(u) + formula.beta * (
-                    system.outflow_tangent(u, inside1)
-                )
-                self.tangent = (key, self.run.algebra.factor(jacobian, self.symmetric))
             change = self.tangent[1].solve(-r[free])
-            u[free] += change
             largest = float(np.abs(change).max(initial=0.0))
             if largest <= controls.newton_tolerance:
-                self.run.cost.iterated(iteration)
+                u[free] += change
+                cost.iterated(iteration)
+                spent = clock.perf_counter() - started
+                cost.iteration_seconds += spent - (cost.factorisation_seconds - factoring)
                 return
-            refresh = largest > TANGENT_RATE * previous
+            if not fresh and self._stale(largest, previous, controls.newton_tolerance):
+                self._factor(u, formula, step, t1, key)  # the kept tangent has gone stale
+                fresh = True
+                change = self.tangent[1].solve(-r[free])
+                largest = float(np.abs(change).max(initial=0.0))
+            length, trial, trial_norm = self._search(u, change, residual, norm, free)
+            if length < 1 and not fresh:  # try the exact tangent before damping
+                self._factor(u, formula, step, t1, key)
+                change = self.tangent[1].solve(-r[free])
+                largest = float(np.abs(change).max(initial=0.0))
+                length, trial, trial_norm = self._search(u, change, residual, norm, free)
+            if length < 1:
+                cost.damped_iterations += 1
+            u[free] += length * change
+            r, norm = trial, trial_norm
+            fresh = False
             previous = largest
-        raise SolverError(
-            f"Newton's method did not converge at t = {t1:.6g} s (step "
-            f"{step:.3g} s) in {controls.max_newton_iterations} iterations; the last change "
-            f"was {largest:.3g} K and the residual "
-            f"{float(np.abs(residual(u)[free]).max()):.3g} W. Try a smaller time step or a "
-            "looser newton_tolerance"
+            stalled = stalled + 1 if length <= STALLED_LENGTH else 0
+            if stalled >= STALLED_ITERATIONS:
+                break
+        cost.iterated(iteration)
+        residual_norm = float(np.abs(r[free]).max(initial=0.0))
+        how = "stalled after" if stalled >= STALLED_ITERATIONS else "not converged in"
+        how = f"{how} {iteration} iterations"
+        raise NewtonStepError(
+            f"Newton's method {how} at t = {t1:.6g} s (step {step:.3g} s); the last change "
+            f"was {largest:.3g} K and the residual {residual_norm:.3g} W",
+            t1,
+            step,
+            largest,
+            residual_norm,
+            how,
         )
+
+    def _stale(self, change: float, previous: float, tolerance: float) -> bool:
+        """Whether to refactorise a kept tangent that shrank the update from ``previous`` to
+        ``change`` K: when it shrinks it by less than ``TANGENT_RATE``, or when the iterations
+        it would still need (at that rate, to the tolerance) cost more than a factorisation at
+        this run's measured prices (a fresh tangent converges in about two)."""
+        rate = change / previous
+        if rate > TANGENT_RATE:
+            return True
+        if change <= tolerance or rate <= 0:
+            return False
+        cost = self.run.cost
+        iteration = cost.iteration_seconds / max(cost.newton_iterations, 1)
+        factorisation = cost.factorisation_seconds / max(cost.factorisations, 1)
+        remaining = math.log(tolerance / change) / math.log(rate)
+        return remaining * iteration > factorisation + 2 * iteration
+
+    def _search(self, u, change, residual, norm, free):
+        """The update's length (1, ½, ¼ … down to ``SHORTEST_UPDATE``) that lowers the
+        residual's norm enough, with the residual there and its norm."""
+        length = 1.0
+        while True:
+            trial_field = u.copy()
+            trial_field[free] += length * change
+            trial = residual(trial_field)
+            trial_norm = float(np.linalg.norm(trial[free]))
+            if trial_norm <= (1 - SUFFICIENT_DECREASE * length) * norm:
+                return length, trial, trial_norm
+            if length <= SHORTEST_UPDATE:
+                return length, trial, trial_norm  # no decrease found: take the shortest
+            length /= 2

@@ -49,6 +49,15 @@ class SolverStats:
     error_estimate : float
         Exponential steps: the largest error estimate in K at any node and record time (0
         for the other methods, whose local errors are controlled per step).
+    retried_steps : int
+        Steps whose Newton iterations failed and that were retried at half the size (each
+        halving counts once).
+    subdivided_steps : int
+        Fixed-step runs: steps that were taken as smaller substeps after Newton's method
+        failed on them (the substeps count in ``steps``).
+    damped_iterations : int
+        Newton updates the line search shortened because the full update did not lower the
+        residual.
     """
 
     method: str
@@ -69,6 +78,9 @@ class SolverStats:
     solves: int = 0
     krylov_dimension: int = 0
     error_estimate: float = 0.0
+    retried_steps: int = 0
+    subdivided_steps: int = 0
+    damped_iterations: int = 0
 
 
 @dataclass(frozen=True)

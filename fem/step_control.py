@@ -21,6 +21,7 @@ if TYPE_CHECKING:
     from .stepper import RunControls
 
 LADDER = 2.0  # adaptive steps take values initial_step · 2^k, so few factorisations are made
+SUBDIVISIONS = 12  # a fixed step whose Newton iterations fail is halved at most this often
 
 
 class StepControl:
@@ -31,6 +32,9 @@ class StepControl:
         self.step = controls.step
         self.ladder_base = controls.step
         self.rejected = 0
+        self.retried = 0  # steps retried smaller because Newton's method failed
+        self.subdivided = 0  # fixed steps taken as smaller substeps
+        self.subdivision_end: float | None = None  # fixed steps: end of the step subdivided
         self.retrying = False  # no stretching to the next event until a step succeeds
         self.anchor = 0.0  # the last event passed: steps are aligned from here
         intervals = np.diff((0.0, *controls.output_times))
@@ -92,11 +96,40 @@ class StepControl:
         self.step = proposal
         return True
 
-    def accepted(self) -> None:
-        """A step was taken: fixed steps return to the requested size."""
+    def accepted(self, time: float) -> None:
+        """A step was taken, ending at ``time`` s: fixed steps return to the requested size
+        once the subdivided step is complete."""
         self.retrying = False
-        if not self.controls.adaptive:
-            self.step = self.controls.step
+        if self.controls.adaptive:
+            return
+        end = self.subdivision_end
+        if end is not None and time < end - 1e-9 * self.controls.step:
+            return  # substeps continue to the end of the step that failed
+        self.subdivision_end = None
+        self.step = self.controls.step
+
+    def floor(self) -> float:
+        """The smallest step a failed Newton iteration may be retried with, s."""
+        if self.controls.adaptive:
+            return self.controls.min_step
+        return max(self.controls.min_step, self.controls.step / 2**SUBDIVISIONS)
+
+    def retry(self, step: float, end: float) -> bool:
+        """Newton's method failed on a step of ``step`` s ending at ``end`` s: halve it. False
+        when the half would fall below :meth:`floor`."""
+        half = step / 2
+        if half < self.floor() * (1 - 1e-9):
+            return False
+        self.retried += 1
+        self.retrying = True
+        if self.controls.adaptive:
+            self.step = self._on_ladder(half)
+            return True
+        if self.subdivision_end is None:
+            self.subdivided += 1
+            self.subdivision_end = end
+        self.step = half
+        return True
 
     def _on_ladder(self, step: float) -> float:
         base = self.ladder_base

@@ -120,6 +120,8 @@ class March:
     recent_startup_steps: int = 0  # start-up steps since the last restart (the ringing check)
     krylov_dimension: int = 0
     error_estimate: float = 0.0
+    retried_steps: int = 0  # steps retried smaller after Newton's method failed
+    subdivided_steps: int = 0  # fixed steps taken as substeps
 
 
 class Stepper(ABC):

@@ -251,4 +251,7 @@ def _stats(
         solves=cost.solves,
         krylov_dimension=march.krylov_dimension,
         error_estimate=march.error_estimate,
+        retried_steps=march.retried_steps,
+        subdivided_steps=march.subdivided_steps,
+        damped_iterations=cost.damped_iterations,
     )

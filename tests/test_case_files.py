@@ -22,7 +22,7 @@ import pytest
 
 import fem
 from advisor import assess
-from advisor.casefile.case import CaseError, load_case
+from advisor.casefile.case import CaseError, case_from_toml, load_case
 from advisor.casefile.starters import SCENARIOS, starter_text
 from advisor.casefile.units import UnitError, quantity
 from advisor.cli import EXIT_OK, EXIT_USAGE, main
@@ -176,6 +176,101 @@ MALFORMED = [
     row("unknown_method.toml", "run.method", "did you mean 'crank-nicolson'", 34),
     row("exponential_with_radiation.toml", "run.method", "needs a linear model", 35),
     row("exponential_with_linear_ambient.toml", "run.method", "is PiecewiseLinear", 34),
+    # curves of surface temperature, phase change, Newton settings
+    row(
+        "curve_temperatures_misspelt.toml",
+        "boundaries.quenched.convection.coefficient.temperatures",
+        "did you mean 'surface_temperatures'",
+        23,
+    ),
+    row(
+        "coefficient_table_of_unknown_form.toml",
+        "boundaries.quenched.convection.coefficient",
+        "or a table of surface temperature {surface_temperatures",
+        23,
+    ),
+    row(
+        "curve_lengths_differ.toml",
+        "boundaries.quenched.convection.coefficient.values",
+        "as many values, got 5 and 4",
+        23,
+    ),
+    row(
+        "curve_temperatures_not_increasing.toml",
+        "boundaries.quenched.convection.coefficient.surface_temperatures",
+        "must increase strictly",
+        23,
+    ),
+    row(
+        "curve_values_in_degC.toml",
+        "boundaries.quenched.convection.coefficient.values",
+        "'degC' is a different kind of unit",
+        23,
+    ),
+    row(
+        "curve_heat_flux_a_number.toml",
+        "boundaries.quenched.convection.heat_flux",
+        "use flux = ... on the group",
+        23,
+    ),
+    row(
+        "curve_coefficient_and_heat_flux.toml",
+        "boundaries.quenched.convection.coefficient",
+        "not both",
+        23,
+    ),
+    row(
+        "curve_heat_flux_towards_hotter_side.toml",
+        "boundaries.quenched.convection.heat_flux",
+        "flows towards the hotter side",
+        23,
+    ),
+    row(
+        "curve_stages_not_from_zero.toml",
+        "boundaries.quenched.convection.stages",
+        "must start at 0 s",
+        23,
+    ),
+    row(
+        "ambient_table_of_unknown_form.toml",
+        "boundaries.quenched.convection.ambient",
+        "expected a number or a schedule of time",
+        23,
+    ),
+    row(
+        "latent_heat_without_range.toml",
+        "material.latent_heat",
+        "solidus and liquidus, or freezing_point and freezing_range",
+        18,
+    ),
+    row("solidus_without_latent_heat.toml", "material.solidus", "needs latent_heat", 18),
+    row("liquidus_below_solidus.toml", "material.liquidus", "must lie above the solidus", 20),
+    row(
+        "latent_heat_in_kelvin.toml",
+        "material.latent_heat",
+        "'K' is a different kind of unit",
+        18,
+    ),
+    row("freezing_range_zero.toml", "material.freezing_range", "must be > 0 K", 20),
+    row(
+        "enthalpy_with_specific_heat.toml",
+        "material.specific_heat",
+        "give either enthalpy",
+        17,
+    ),
+    row(
+        "enthalpy_not_increasing.toml",
+        "material.enthalpy.values",
+        "must increase strictly",
+        17,
+    ),
+    row("newton_tolerance_negative.toml", "run.newton_tolerance", "must be > 0 K", 34),
+    row(
+        "max_newton_iterations_fraction.toml",
+        "run.max_newton_iterations",
+        "must be a whole number >= 1",
+        34,
+    ),
     # not TOML at all
     row("toml_syntax_error.toml", None, "not valid TOML", 10),
     row("duplicate_key.toml", None, "not valid TOML", 11),
@@ -458,3 +553,98 @@ def test_exponential_steps_from_a_case_agree_with_small_crank_nicolson_steps(tmp
     core = np.interp(exponential.times, stepped.times, stepped.probes["core"])
     later = exponential.times >= 5.0  # interpolation between 0.25 s steps needs a smooth curve
     np.testing.assert_allclose(exponential.probes["core"][later], core[later], atol=0.05)
+
+
+# ---------------------------------------------------------------------------------------------
+# curves of surface temperature, phase change, Newton settings
+# ---------------------------------------------------------------------------------------------
+
+CURVE_CASE = """
+title = "Bar quenched in water"
+
+[section]
+mesh_size = "5 mm"
+
+[[section.shape]]
+kind = "rectangle"
+width = "15 mm"
+height = "20 mm"
+edges = {{ left = "symmetry", bottom = "symmetry", right = "quenched", top = "quenched" }}
+
+[material]
+conductivity = "30 W/(m*K)"
+density = "7850 kg/m^3"
+specific_heat = "600 J/(kg*K)"
+{phase_change}
+
+[boundaries.symmetry]
+insulated = "symmetry"
+
+[boundaries.quenched.convection]
+ambient = "60 degC"
+{curve}
+
+[initial]
+temperature = "850 degC"
+
+[run]
+end_time = "2 min"
+newton_tolerance = "0.01 mK"
+max_newton_iterations = 40
+"""
+
+
+def test_curves_of_surface_temperature_are_read_with_their_units():
+    # Units converted by hand: 1.2 kW/(m^2 K) = 1200 W/(m^2 K), 0.3 MW/m^2 = 3e5 W/m^2.
+    coefficient = (
+        'coefficient = { surface_temperatures = ["60 degC", "500 degC", "900 degC"], '
+        'values = ["1.2 kW/(m^2*K)", "3 kW/(m^2*K)", "300 W/(m^2*K)"] }'
+    )
+    case = load_case_text(CURVE_CASE.format(phase_change="", curve=coefficient))
+    (kind,) = case.boundaries["quenched"]
+    assert isinstance(kind, fem.SurfaceTemperatureConvection)
+    assert kind.curve == ((0.0, fem.SurfaceCurve((60.0, 500.0, 900.0), (1200.0, 3000.0, 300.0))),)
+    assert case.run_options["newton_tolerance"] == pytest.approx(1e-5)
+    assert case.run_options["max_newton_iterations"] == 40
+
+    stages = """
+[[boundaries.quenched.convection.stages]]
+from = "0 s"
+heat_flux = { surface_temperatures = ["60 degC", "900 degC"], values = ["0 W/m^2", "0.3 MW/m^2"] }
+[[boundaries.quenched.convection.stages]]
+from = "0.5 min"
+coefficient = { surface_temperatures = ["60 degC", "900 degC"], values = [800, 400] }
+"""
+    case = load_case_text(CURVE_CASE.format(phase_change="", curve=stages))
+    (kind,) = case.boundaries["quenched"]
+    assert kind.curve == (
+        (0.0, fem.SurfaceCurve((60.0, 900.0), (0.0, 3e5), "heat_flux")),
+        (30.0, fem.SurfaceCurve((60.0, 900.0), (800.0, 400.0))),
+    )
+
+
+def test_latent_heat_and_enthalpy_tables_are_read():
+    curve = 'coefficient = "500 W/(m^2*K)"'
+    # freezing_point and freezing_range: the change begins at the point, ends the range below.
+    phase = 'latent_heat = "270 kJ/kg"\nfreezing_point = "1450 degC"\nfreezing_range = "50 K"'
+    material = load_case_text(CURVE_CASE.format(phase_change=phase, curve=curve)).materials["*"]
+    assert (material.latent_heat, material.solidus, material.liquidus) == (2.7e5, 1400.0, 1450.0)
+    phase = 'latent_heat = "270 kJ/kg"\nsolidus = "1400 degC"\nliquidus = "1450 degC"'
+    again = load_case_text(CURVE_CASE.format(phase_change=phase, curve=curve)).materials["*"]
+    assert again == material
+
+    text = CURVE_CASE.format(phase_change="", curve=curve).replace(
+        'specific_heat = "600 J/(kg*K)"',
+        'enthalpy = { temperatures = ["0 degC", "1400 degC", "1450 degC", "1600 degC"], '
+        'values = ["0 kJ/kg", "840 kJ/kg", "1.14 MJ/kg", "1.23 MJ/kg"] }',
+    )
+    material = load_case_text(text).materials["*"]
+    table = material.specific_enthalpy
+    assert table.temperatures == (0.0, 1400.0, 1450.0, 1600.0)
+    assert table.values == pytest.approx((0.0, 8.4e5, 1.14e6, 1.23e6))
+    # H(1450) − H(1400) = ρ·(1.14 − 0.84) MJ/kg, as the table says.
+    assert material.enthalpy(1450.0, 1400.0) == pytest.approx(7850.0 * 3e5, rel=1e-12)
+
+
+def load_case_text(text: str):
+    return case_from_toml(text)

@@ -7,14 +7,36 @@ from __future__ import annotations
 
 import math
 
-from fem import ModelError, Periodic, Sinusoid
+from fem import (
+    ModelError,
+    Periodic,
+    Sinusoid,
+    SurfaceCurve,
+    SurfaceTemperatureConvection,
+)
 from fem.conditions import conditions as checked_combination
 from fem.temperatures import check_temperature
 from geometries import AXIS_GROUP
 
 from .reader import MISSING, Table, suggest
-from .schema import CONDITIONS, INSULATION, SINUSOID_FIELDS, TABLE_SCHEDULES, ConditionKind, Field
+from .schema import (
+    CONDITIONS,
+    INSULATION,
+    SINUSOID_FIELDS,
+    SURFACE_CURVES,
+    TABLE_SCHEDULES,
+    ConditionKind,
+    Field,
+)
 from .validation import build, raise_at
+
+CURVE_KEYS = ("surface_temperatures", "values")
+SCHEDULE_KEYS = ("steps", "linear", "sinusoid")
+SCHEDULE_FORMS = (
+    "a number or a schedule of time ({steps = [[t, v], ...]}, {linear = [[t, v], ...]} or "
+    "{sinusoid = {...}})"
+)
+CURVE_FORM = "a table of surface temperature {surface_temperatures = [...], values = [...]}"
 
 
 def read_boundaries(root: Table, groups) -> dict[str, tuple]:
@@ -43,7 +65,9 @@ def read_boundaries(root: Table, groups) -> dict[str, tuple]:
 def _read_group(spec: Table, group: str) -> tuple:
     """The conditions of one edge group, in the schema's order."""
     found = [
-        _read_condition(spec, name, kind) for name, kind in CONDITIONS.items() if spec.has(name)
+        _read_convection(spec, kind) if name == "convection" else _read_condition(spec, name, kind)
+        for name, kind in CONDITIONS.items()
+        if spec.has(name)
     ]
     spec.done()
     if not found:
@@ -57,6 +81,7 @@ def _read_group(spec: Table, group: str) -> tuple:
         message = str(error)
         for name, kind in CONDITIONS.items():  # the library's class names → the case's keys
             message = message.replace(kind.condition.__name__, name)
+        message = message.replace(SurfaceTemperatureConvection.__name__, "convection")
         raise_at(spec, ModelError(message), {}, None)
 
 
@@ -69,6 +94,88 @@ def _read_condition(spec: Table, name: str, kind: ConditionKind):
     if not kind.single:
         table.done()
     return condition
+
+
+def _read_convection(spec: Table, kind: ConditionKind):
+    """``convection``: with a coefficient of time (the schema's row), or with a curve of
+    surface temperature (``coefficient`` or ``heat_flux`` as {surface_temperatures, values}),
+    or with ``[[...convection.stages]]``, each a ``from`` time and a curve."""
+    raw = spec.raw("convection")
+    if not isinstance(raw, dict):
+        spec.fail("convection", f"expected a table (coefficient, ambient), got {raw!r}")
+    coefficient = raw.get("coefficient")
+    curved = "stages" in raw or "heat_flux" in raw
+    curved = curved or (
+        isinstance(coefficient, dict) and any(k in coefficient for k in CURVE_KEYS)
+    )
+    if not curved:
+        return _read_condition(spec, "convection", kind)
+    table = spec.table("convection")
+    ambient = schedule(table, "ambient", "temperature")
+    if table.has("stages"):
+        if table.has("coefficient") or table.has("heat_flux"):
+            table.fail("stages", "give either stages or one curve (coefficient or heat_flux)")
+        stages = []
+        for stage in table.tables("stages"):
+            stages.append((stage.get("from", "time"), _curve(stage)))
+            stage.done()
+        curve, curve_key = tuple(stages), "stages"
+    else:
+        curve = _curve(table)
+        curve_key = "coefficient" if table.has("coefficient") else "heat_flux"
+    condition = build(
+        table,
+        SurfaceTemperatureConvection,
+        curve,
+        ambient,
+        keys={"curve": curve_key},
+        default=curve_key,
+    )
+    table.done()
+    return condition
+
+
+def _curve(table: Table) -> SurfaceCurve:
+    """``coefficient`` or ``heat_flux`` = {surface_temperatures = [...], values = [...]}."""
+    given = [key for key in SURFACE_CURVES if table.has(key)]
+    if len(given) != 1:
+        table.fail(
+            "coefficient",
+            "give one curve of surface temperature: coefficient = {surface_temperatures = "
+            "[...], values = [...]} or heat_flux = {...} (the heat flux leaving the surface)"
+            + (", not both" if given else ""),
+        )
+    key = given[0]
+    raw = table.raw(key)
+    if not isinstance(raw, dict) or not any(k in raw for k in CURVE_KEYS):
+        hint = ""
+        if key == "heat_flux":
+            hint = "; for a heat flux whatever the temperature, use flux = ... on the group"
+        table.fail(
+            key,
+            "expected a table of surface temperature {surface_temperatures = [...], "
+            f"values = [...]}}, got {raw!r}{hint}",
+        )
+    curve = Table(raw, table.key(key), table.context)
+    temperatures = _values(curve, "surface_temperatures", "temperature")
+    values = _values(curve, "values", SURFACE_CURVES[key])
+    curve.done()
+    return build(
+        curve,
+        SurfaceCurve,
+        temperatures,
+        values,
+        key,
+        keys={"surface_temperatures": "surface_temperatures", "values": "values"},
+        default="values",
+    )
+
+
+def _values(table: Table, key: str, kind: str) -> tuple[float, ...]:
+    entries = table.raw(key)
+    if not isinstance(entries, list) or not entries:
+        table.fail(key, f"expected a list of values, got {entries!r}")
+    return tuple(table.quantity(key, entry, kind) for entry in entries)
 
 
 def _field_value(table: Table, field: Field):
@@ -89,6 +196,17 @@ def schedule(table: Table, name: str, kind: str):
     raw = table.raw(name)
     if not isinstance(raw, dict):
         return table.get(name, kind)
+    if not any(key in raw for key in SCHEDULE_KEYS):
+        if any(key in raw for key in CURVE_KEYS):
+            table.fail(
+                name,
+                "a table of surface temperature is taken only by convection's coefficient "
+                "and heat_flux",
+            )
+        forms = SCHEDULE_FORMS
+        if kind == "heat_transfer_coefficient":
+            forms = forms.replace("a number or", "a number,") + " or " + CURVE_FORM
+        table.fail(name, f"expected {forms}, got a table with keys {sorted(raw)}")
     spec = Table(raw, table.key(name), table.context)
     result = _sinusoid(spec, kind) if spec.has("sinusoid") else _time_table(spec, kind)
     spec.done()

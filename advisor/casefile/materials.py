@@ -3,11 +3,13 @@ library by name, or properties given as constants or tables of temperature."""
 
 from __future__ import annotations
 
-from fem import Material, PropertyTable, solids
+from fem import EnthalpyTable, Material, PropertyTable, solids
 
 from .reader import Table, suggest
-from .schema import MATERIAL_PROPERTIES
+from .schema import MATERIAL_PROPERTIES, PHASE_CHANGE
 from .validation import build
+
+RANGE_KEYS = (("solidus", "liquidus"), ("freezing_point", "freezing_range"))
 
 WHOLE_SECTION = "*"  # the key of the one material of the whole section
 
@@ -55,11 +57,71 @@ def _read_material(spec: Table) -> Material:
                 + " (see `soakwise materials`)",
             )
         return solids.MATERIALS[name]
+    if spec.has("enthalpy"):
+        return _enthalpy_material(spec)
     values = {key: _property(spec, key, kind) for key, kind in MATERIAL_PROPERTIES.items()}
     return build(
         spec,
         Material,
         **values,
+        **_phase_change(spec),
+        name=spec.text("name", "material"),
+        source=spec.text("source", ""),
+        default="conductivity",
+        keys={"solidus": _range_key(spec, 0), "liquidus": _range_key(spec, 1)},
+    )
+
+
+def _phase_change(spec: Table) -> dict:
+    """``latent_heat`` with ``solidus`` and ``liquidus``, or with ``freezing_point`` and
+    ``freezing_range`` (solidus = freezing point − range, liquidus = freezing point)."""
+    given = {key: spec.get(key, kind, None) for key, kind in PHASE_CHANGE.items()}
+    pairs = [pair for pair in RANGE_KEYS if any(given[key] is not None for key in pair)]
+    if given["latent_heat"] is None:
+        if pairs:
+            spec.fail(pairs[0][0], "needs latent_heat (the heat released over the range)")
+        return {}
+    if len(pairs) != 1 or any(given[key] is None for key in pairs[0]):
+        spec.fail(
+            "latent_heat",
+            "needs the range it is released over: solidus and liquidus, or freezing_point and "
+            "freezing_range (one pair, both keys)",
+        )
+    if pairs[0][0] == "solidus":
+        return {k: given[k] for k in ("latent_heat", "solidus", "liquidus")}
+    point, width = given["freezing_point"], given["freezing_range"]
+    if not width > 0:
+        spec.fail("freezing_range", f"must be > 0 K (0.5-2 K is typical), got {width:g} K")
+    return {"latent_heat": given["latent_heat"], "solidus": point - width, "liquidus": point}
+
+
+def _range_key(spec: Table, index: int) -> str:
+    """The key a library error about the solidus (0) or liquidus (1) points at."""
+    if spec.has("freezing_point"):
+        return ("freezing_range", "freezing_point")[index]
+    return ("solidus", "liquidus")[index]
+
+
+def _enthalpy_material(spec: Table) -> Material:
+    """``enthalpy = {temperatures = [...], values = [...]}`` (J/kg, latent heat included)
+    instead of ``specific_heat`` and ``latent_heat``."""
+    for key in ("specific_heat", *PHASE_CHANGE):
+        if spec.has(key):
+            spec.fail(key, "give either enthalpy (which includes the latent heat) or " + key)
+    raw = spec.raw("enthalpy")
+    if not isinstance(raw, dict):
+        spec.fail("enthalpy", f"expected {{temperatures = [...], values = [...]}}, got {raw!r}")
+    table = Table(raw, spec.key("enthalpy"), spec.context)
+    temperatures = _list(table, "temperatures", "temperature")
+    values = _list(table, "values", "specific_energy")
+    table.done()
+    enthalpy = build(table, EnthalpyTable, temperatures, values, default="values")
+    return build(
+        spec,
+        Material.from_enthalpy,
+        _property(spec, "conductivity", "conductivity"),
+        _property(spec, "density", "density"),
+        enthalpy,
         name=spec.text("name", "material"),
         source=spec.text("source", ""),
         default="conductivity",

@@ -29,6 +29,9 @@ def read_run(root: Table, parts: dict) -> tuple[float, dict, int]:
         value = run.get(key, kind, None)
         if value is not None:
             options[key] = value
+    iterations = run.raw("max_newton_iterations", None)
+    if iterations is not None:  # a whole number: the library's check says so if it is not
+        options["max_newton_iterations"] = iterations
     stop = run.table("stop", None)
     if stop is not None:
         options["stop"] = StopWhen(stop.text("quantity"), temperature(stop, "target"))

@@ -187,6 +187,10 @@ CONDITIONS: dict[str, ConditionKind] = {
     "insulated": ConditionKind(Insulated, (Field("insulated", "reason", "insulation"),), True),
 }
 
+# convection's curves of surface temperature: key → the kind of its values (the curve's quantity
+# is the key: SurfaceCurve(..., quantity="coefficient" | "heat_flux"))
+SURFACE_CURVES = {"coefficient": "heat_transfer_coefficient", "heat_flux": "heat_flux"}
+
 # insulated = <value> → the Insulated reason
 INSULATION = {True: "insulated", "insulated": "insulated", "symmetry": "symmetry"}
 
@@ -199,6 +203,15 @@ MATERIAL_PROPERTIES = {
     "density": "density",
     "specific_heat": "specific_heat",
 }
+# Phase change: latent heat with a solidus and liquidus, or a freezing point and range (the
+# phase change begins at the freezing point and ends the range below it).
+PHASE_CHANGE = {
+    "latent_heat": "specific_energy",
+    "solidus": "temperature",
+    "liquidus": "temperature",
+    "freezing_point": "temperature",
+    "freezing_range": "temperature_difference",
+}
 
 # [run]: options that are quantities, and their kinds (passed to fem.solve under these names)
 RUN_QUANTITIES = {
@@ -207,6 +220,7 @@ RUN_QUANTITIES = {
     "tolerance": "temperature_difference",
     "min_step": "time",
     "max_step": "time",
+    "newton_tolerance": "temperature_difference",
 }
 # The library's run arguments → [run] keys, where they differ.
 RUN_KEYS = {"stop": "stop.quantity", "stop.quantity": "stop.quantity"}

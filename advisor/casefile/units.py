@@ -24,6 +24,7 @@ KINDS = {
     "density": ("kg/m^3", "a density such as '7850 kg/m^3'"),
     "specific_heat": ("J/(kg*K)", "a specific heat such as '480 J/(kg*K)'"),
     "heat_flux": ("W/m^2", "a heat flux such as '2 kW/m^2'"),
+    "specific_energy": ("J/kg", "a latent heat such as '334 kJ/kg'"),
     "power_density": ("W/m^3", "a heat generation such as '5 MW/m^3'"),
     "angle": ("degree", "an angle such as '30 deg'"),
     "number": ("", "a plain number"),

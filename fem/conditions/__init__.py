@@ -15,11 +15,13 @@ from .base import KINDS, Condition, Linearised, SurfaceEdge, conditions, registe
 # isort: off
 from .convection import Convection
 from .radiation import STEFAN_BOLTZMANN, Radiation
+from .surface_convection import SurfaceTemperatureConvection
 from .flux import HeatFlux
 from .fixed import FixedTemperature
 from .insulated import Insulated
 
 # isort: on
+from .surface_curve import SurfaceCurve
 
 for _module in iter_modules(__path__):
     import_module(f".{_module.name}", __name__)
@@ -37,7 +39,9 @@ __all__ = [
     "Insulated",
     "Linearised",
     "Radiation",
+    "SurfaceCurve",
     "SurfaceEdge",
+    "SurfaceTemperatureConvection",
     "conditions",
     "register",
 ]

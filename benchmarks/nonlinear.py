@@ -1,0 +1,140 @@
+"""The cost of a nonlinear step against a linear step of the same size on the same mesh.
+
+Three nonlinear cases, each beside its linear twin (same section, same fixed steps):
+
+- ``conductivity``: the benchmark square (:mod:`benchmarks.models`) with k(T) falling from 40
+  to 28 W/(m·K) over 20–500 °C, against constant k;
+- ``latent``: the square as a water-like food block (invented values) at 5 °C cooled by air
+  at −30 °C, with 280 kJ/kg of latent heat released over 1 K and frozen and unfrozen k and c
+  as tables of temperature, against the unfrozen constants;
+- ``surface``: the square quenched from 850 °C with h following the surface temperature
+  through a film-to-nucleate jump of 10× over 50 K, against a constant h.
+
+Each run is ``fem.solve`` with fixed Crank–Nicolson steps; the cost per step is the run's
+factorisation and stepping time over its steps. Run from the repository root::
+
+    python -m benchmarks.nonlinear --nodes 10k --steps 200
+
+It prints a table and writes ``benchmarks/results-nonlinear.json``.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import time
+from pathlib import Path
+
+from fem import (
+    Convection,
+    Insulated,
+    Material,
+    PropertyTable,
+    SurfaceCurve,
+    SurfaceTemperatureConvection,
+    ThermalModel,
+    solve,
+)
+
+from . import models
+from .cli import count
+
+OUTPUT = Path(__file__).resolve().parent / "results-nonlinear.json"
+FOOD = {"conductivity": 0.5, "density": 1050.0, "specific_heat": 3700.0}  # unfrozen
+EDGES = (-60.0, -1.5, -0.5, 60.0)  # degC: frozen below -1.5, unfrozen above -0.5
+QUENCH = SurfaceCurve(
+    (60.0, 300.0, 500.0, 550.0, 900.0), (1200.0, 4000.0, 3000.0, 300.0, 300.0)
+)  # W/(m^2 K): film above 550 degC, nucleate peak at 300 degC
+
+
+def _model(section, material, condition, initial: float) -> ThermalModel:
+    return ThermalModel(
+        section,
+        material,
+        {"symmetry": Insulated("symmetry"), "cooled": condition},
+        initial_temperature=initial,
+    )
+
+
+def cases(section) -> dict[str, tuple[ThermalModel, ThermalModel, float]]:
+    """name → (nonlinear model, its linear twin, time step in s)."""
+    steel = models.MATERIAL
+    varying = Material(
+        PropertyTable((20.0, 500.0), (40.0, 28.0)), steel.density, steel.specific_heat
+    )
+    plunge = Convection(models.HEAT_TRANSFER, models.AMBIENT)
+    frozen = Material(
+        PropertyTable(EDGES, (1.6, 1.6, 0.5, 0.5)),
+        FOOD["density"],
+        PropertyTable(EDGES, (1900.0, 1900.0, 3700.0, 3700.0)),
+        latent_heat=2.8e5,
+        solidus=-1.5,
+        liquidus=-0.5,
+    )
+    air = Convection(25.0, -30.0)
+    return {
+        "conductivity": (
+            _model(section, varying, plunge, models.INITIAL),
+            _model(section, steel, plunge, models.INITIAL),
+            10.0,
+        ),
+        "latent": (
+            _model(section, frozen, air, 5.0),
+            _model(section, Material(**FOOD), air, 5.0),
+            60.0,
+        ),
+        "surface": (
+            _model(section, steel, SurfaceTemperatureConvection(QUENCH, 60.0), 850.0),
+            _model(section, steel, Convection(3000.0, 60.0), 850.0),
+            1.0,
+        ),
+    }
+
+
+def per_step(model: ThermalModel, time_step: float, steps: int) -> dict:
+    """One fixed-step run: seconds per step and what it did."""
+    started = time.perf_counter()
+    solution = solve(
+        model, time_step * steps, time_step=time_step, output_interval=time_step * steps
+    )
+    wall = time.perf_counter() - started
+    stats = solution.stats
+    return {
+        "seconds_per_step": (stats.factorisation_seconds + stats.stepping_seconds) / stats.steps,
+        "wall_seconds": wall,
+        "steps": stats.steps,
+        "factorisations": stats.factorisations,
+        "newton_iterations": stats.newton_iterations,
+        "subdivided_steps": stats.subdivided_steps,
+        "damped_iterations": stats.damped_iterations,
+        "energy_balance_error": solution.checks.energy_balance_error,
+    }
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = argparse.ArgumentParser(prog="python -m benchmarks.nonlinear", description=__doc__)
+    parser.add_argument("--nodes", type=count, default=10_000, help="P1 nodes (10k)")
+    parser.add_argument("--steps", type=int, default=200, help="fixed steps per run (200)")
+    parser.add_argument("--only", default="", help="comma-separated cases")
+    args = parser.parse_args(argv)
+    section = models.mesh("square", models.size_for("square", nodes=args.nodes))
+    rows = {}
+    for name, (nonlinear, linear, step) in cases(section).items():
+        if args.only and name not in args.only.split(","):
+            continue
+        twin, run = per_step(linear, step, args.steps), per_step(nonlinear, step, args.steps)
+        ratio = run["seconds_per_step"] / twin["seconds_per_step"]
+        rows[name] = {"time_step": step, "linear": twin, "nonlinear": run, "ratio": ratio}
+        print(
+            f"{name:13s} nodes {section.mesh.p.shape[1]:7d}  step {step:5g} s  linear "
+            f"{1e3 * twin['seconds_per_step']:7.2f} ms  nonlinear "
+            f"{1e3 * run['seconds_per_step']:7.2f} ms  ratio {ratio:5.2f}  iterations/step "
+            f"{run['newton_iterations'] / run['steps']:4.2f}  factorisations "
+            f"{run['factorisations']}  subdivided {run['subdivided_steps']}"
+        )
+    OUTPUT.write_text(json.dumps({"nodes": args.nodes, "cases": rows}, indent=2))
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())
