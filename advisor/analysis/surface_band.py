@@ -1,11 +1,14 @@
 """The surface temperatures a run passed through on one edge group: the part of a coefficient
-curve (h or heat flux against surface temperature) the run actually used."""
+curve (h or heat flux against surface temperature) the run actually used; and which edge groups
+carry such a curve."""
 
 from __future__ import annotations
 
 from dataclasses import dataclass
 
 import numpy as np
+
+from fem.conditions import SurfaceTemperatureConvection
 
 from ..errors import AdvisorError
 
@@ -71,3 +74,19 @@ def surface_band(solution, group: str) -> SurfaceBand:
         values.min(axis=1),
         values.max(axis=1),
     )
+
+
+def curve_conditions(model) -> list[tuple[tuple[str, ...], SurfaceTemperatureConvection]]:
+    """Every distinct coefficient of ``model`` that follows the surface temperature, with the
+    edge groups that carry it (in the model's order)."""
+    found: list[tuple[list[str], SurfaceTemperatureConvection]] = []
+    for group, conditions in model.boundaries.items():
+        for condition in conditions:
+            if not isinstance(condition, SurfaceTemperatureConvection):
+                continue
+            same = next((entry for entry in found if entry[1] == condition), None)
+            if same is None:
+                found.append(([group], condition))
+            else:
+                same[0].append(group)
+    return [(tuple(groups), condition) for groups, condition in found]

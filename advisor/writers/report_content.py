@@ -10,12 +10,13 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from ..analysis.assessment import Assessment
+from ..analysis.surface_band import curve_conditions
 from ..caution import CAUTION
 from .plot_style import clock
 from .process_plots import PROCESS_PLOTS
 from .report_document import HEADINGS, Bullets, Callout, Paragraph, Picture, Report, part
 from .report_inputs import inputs_part
-from .report_process import freezing_part, quench_part
+from .report_process import curves_part, freezing_part, quench_part
 from .report_results import (
     biot_part,
     checks_part,
@@ -43,6 +44,8 @@ def build_report(
         parts.append(quench_part(assessment, _process_picture("cooling_rates", files)))
     if assessment.freezing is not None:
         parts.append(freezing_part(assessment))
+    if curve_conditions(assessment.solution.model):
+        parts.append(curves_part(assessment, _process_picture("surface_curves", files)))
     parts += [
         part("histories", histories),
         inputs_part(assessment),

@@ -76,6 +76,7 @@ HEADINGS = {
     "target": "When each estimate reaches the target",
     "quench": "Cooling rates and times through temperatures",
     "freezing": "Freezing time: the field beside Plank and Pham",
+    "curves": "The surface curves used and the temperatures passed through",
     "histories": "How the run went",
     "inputs": "What was modelled",
     "biot": "Biot numbers and what each one measures",
@@ -88,7 +89,7 @@ HEADINGS = {
 
 
 # Parts present only when the assessment carries their readings (or the model their curves).
-PROCESS_PARTS = ("quench", "freezing")
+PROCESS_PARTS = ("quench", "freezing", "curves")
 
 
 def part(anchor: str, blocks: tuple[Block, ...] | list[Block]) -> Part:

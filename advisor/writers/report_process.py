@@ -1,10 +1,13 @@
 """The report's parts on the process readings an assessment carries on request: the quench
 readings (rates against temperature, the largest rate, times to temperatures and through a
-range) and the freezing time of the field beside Plank's and Pham's."""
+range), the freezing time of the field beside Plank's and Pham's, and the curves of surface
+temperature a model's coefficients followed with the surface temperatures the run passed
+through."""
 
 from __future__ import annotations
 
 from ..analysis.assessment import Assessment
+from ..analysis.surface_band import curve_conditions, surface_band
 from .report_document import Block, Facts, Paragraph, Part, Picture, Table, part
 from .report_words import duration, millimetres, number, quantity_words
 
@@ -94,6 +97,34 @@ def freezing_part(a: Assessment) -> Part:
             ),
         ),
     )
+
+
+def curves_part(a: Assessment, picture: Picture | None = None) -> Part:
+    """Each coefficient that follows the surface temperature, in words, with the band of
+    surface temperatures its edge groups passed through, and the plot of the curves."""
+    solution = a.solution
+    end = float(solution.times[-1])
+    rows = []
+    for groups, condition in curve_conditions(solution.model):
+        for group in groups:
+            band = surface_band(solution, group)
+            rows.append((group, condition.describe(end), f"{band.low:.4g} to {band.high:.4g} °C"))
+    blocks: list[Block] = [
+        Paragraph(
+            "Where a coefficient follows the surface temperature, the run used only the part "
+            "of its curve between the lowest and highest surface temperatures of its edge "
+            f"groups, read here from the {len(solution.output_times)} stored fields; between "
+            "output times the surface may have gone a little beyond them. Beyond a table's "
+            "ends its end value carries on (a heat-flux table: its end's q/(T_s − T∞))."
+        ),
+        Table(
+            ("edge group", "the curve", "surface temperatures over the run"),
+            tuple(rows),
+        ),
+    ]
+    if picture is not None:
+        blocks.append(picture)
+    return part("curves", blocks)
 
 
 def _which_way(error: float) -> str:

@@ -14,6 +14,7 @@ from fem import RunChecks, SolverStats, ThermalModel
 from fem.schedules import schedule_data as _schedule
 
 from ..analysis.assessment import Assessment
+from ..analysis.surface_band import curve_conditions, surface_band
 from ..caution import CAUTION
 from .atomic import write_text
 from .version import soakwise_version
@@ -37,6 +38,7 @@ def summary(assessment: Assessment, files: list[str]) -> dict:
         "verdict": _verdict(assessment),
         "quench": _quench(assessment),
         "freezing": _freezing(assessment),
+        "surface_curves": _surface_curves(assessment),
         "final": {
             "mean_degC": float(solution.mean[-1]),
             "minimum_degC": float(solution.minimum[-1]),
@@ -178,6 +180,27 @@ def _freezing(assessment: Assessment) -> dict | None:
         "heat_transfer_coefficient_W_per_m2_K": f.heat_transfer_coefficient,
         "medium_temperature_degC": f.medium_temperature,
         "wording": f.wording,
+    }
+
+
+def _surface_curves(assessment: Assessment) -> dict | None:
+    """For each edge group whose coefficient follows the surface temperature, the surface
+    temperatures the run passed through (the stored fields at the output times); None
+    without such a group. The curves themselves are under ``inputs.boundaries``."""
+    solution = assessment.solution
+    groups = [g for groups, _ in curve_conditions(solution.model) for g in groups]
+    if not groups:
+        return None
+    bands = {group: surface_band(solution, group) for group in groups}
+    return {
+        group: {
+            "lowest_degC": band.low,
+            "highest_degC": band.high,
+            "output_times_s": band.times,
+            "lowest_at_outputs_degC": band.lowest,
+            "highest_at_outputs_degC": band.highest,
+        }
+        for group, band in bands.items()
     }
 
 
