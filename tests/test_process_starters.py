@@ -117,6 +117,9 @@ def test_the_freezing_report_sets_the_field_beside_plank_and_pham(frozen):
     assert HEADINGS["freezing"] in page.headings and HEADINGS["curves"] not in page.headings
     text = " ".join(" ".join(page.text).split())
     assert " ".join(f.wording.split()) in text
-    written = json.loads((out / "summary.json").read_text(encoding="utf-8"))["freezing"]
+    summary = json.loads((out / "summary.json").read_text(encoding="utf-8"))
+    written, stats = summary["freezing"], assessment.solution.stats
     assert written["field_time_s"] == f.field_time and written["plank_s"] == f.plank
+    for key in ("retried_steps", "subdivided_steps", "damped_iterations"):
+        assert summary["solver"][key] == getattr(stats, key)
     assert assessment.solution.checks.energy_balance_error < 1e-6
