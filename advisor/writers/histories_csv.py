@@ -17,6 +17,7 @@ import numpy as np
 
 from ..analysis.assessment import Assessment
 from .atomic import write_text
+from .report_words import quantity_words
 
 
 def history_columns(assessment: Assessment) -> dict[str, np.ndarray]:
@@ -41,6 +42,10 @@ def history_columns(assessment: Assessment) -> dict[str, np.ndarray]:
         columns[f"probe {name} [degC]"] = history
     for name, history in assessment.model_temperatures.items():
         columns[f"lumped {name} [degC]"] = history
+    if assessment.quench is not None:
+        words = "cooling rate" if assessment.quench.cooling else "heating rate"
+        for name, curve in assessment.quench.curves.items():
+            columns[f"{words} {quantity_words(name)} [K/s]"] = curve.rates
     for name, history in solution.heat_flow.items():
         columns[f"heat flow {name} [{watts}]"] = history
     columns[f"generated heat [{watts}]"] = solution.generated

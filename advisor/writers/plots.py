@@ -19,6 +19,7 @@ from .history_plots import (
     lumped_error_figure,
 )
 from .plot_style import FORMATS, save_figure
+from .process_plots import process_plots
 
 # The plots :func:`write_plots` writes: file stem -> (title, what it shows). The report uses
 # them as headings and captions.
@@ -62,9 +63,12 @@ BUILDERS = {
 def write_plots(
     assessment: Assessment, folder: Path, formats: Sequence[str] = FORMATS
 ) -> list[Path]:
-    """Write every plot of :data:`PLOTS` into ``folder`` in each of ``formats``; return the
-    paths in the order of :data:`PLOTS`, formats within each."""
+    """Write every plot of :data:`PLOTS` into ``folder`` in each of ``formats``, then the
+    process plots the assessment has (:data:`.process_plots.PROCESS_PLOTS`: cooling rates,
+    surface curves); return the paths in that order, formats within each."""
     paths = []
     for stem, build in BUILDERS.items():
         paths += save_figure(build(assessment), Path(folder) / stem, formats)
+    for stem, figure in process_plots(assessment).items():
+        paths += save_figure(figure, Path(folder) / stem, formats)
     return paths

@@ -10,10 +10,13 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from ..analysis.assessment import Assessment
+from ..analysis.surface_band import curve_conditions
 from ..caution import CAUTION
 from .plot_style import clock
+from .process_plots import PROCESS_PLOTS
 from .report_document import HEADINGS, Bullets, Callout, Paragraph, Picture, Report, part
 from .report_inputs import inputs_part
+from .report_process import curves_part, freezing_part, quench_part
 from .report_results import (
     biot_part,
     checks_part,
@@ -36,9 +39,14 @@ def build_report(
     """The report's content for ``assessment``, with ``pictures`` under the histories and
     ``files`` (paths relative to the results folder) listed at the end."""
     histories = tuple(pictures) if pictures else (Paragraph("No plots were written."),)
-    parts = [
-        verdict_part(assessment),
-        target_part(assessment),
+    parts = [verdict_part(assessment), target_part(assessment)]
+    if assessment.quench is not None:
+        parts.append(quench_part(assessment, _process_picture("cooling_rates", files)))
+    if assessment.freezing is not None:
+        parts.append(freezing_part(assessment))
+    if curve_conditions(assessment.solution.model):
+        parts.append(curves_part(assessment, _process_picture("surface_curves", files)))
+    parts += [
         part("histories", histories),
         inputs_part(assessment),
         biot_part(assessment),
@@ -55,6 +63,16 @@ def build_report(
         lede=_lede(assessment),
         parts=tuple(parts),
     )
+
+
+def _process_picture(stem: str, files: Sequence[str]) -> Picture | None:
+    """The process plot ``stem`` (:data:`.process_plots.PROCESS_PLOTS`) as a picture, when
+    its PNG is among ``files``."""
+    title, caption, _ = PROCESS_PLOTS[stem]
+    for name in files:
+        if name == f"{stem}.png" or name.endswith(f"/{stem}.png"):
+            return Picture(name, title, caption)
+    return None
 
 
 def _lede(assessment: Assessment) -> str:

@@ -74,6 +74,9 @@ class Report:
 HEADINGS = {
     "verdict": "Can the lumped estimate be trusted here?",
     "target": "When each estimate reaches the target",
+    "quench": "Cooling rates and times through temperatures",
+    "freezing": "Freezing time: the field beside Plank and Pham",
+    "curves": "The surface curves used and the temperatures passed through",
     "histories": "How the run went",
     "inputs": "What was modelled",
     "biot": "Biot numbers and what each one measures",
@@ -83,6 +86,10 @@ HEADINGS = {
     "files": "Files in this results folder",
     "caution": "Before relying on these figures",
 }
+
+
+# Parts present only when the assessment carries their readings (or the model their curves).
+PROCESS_PARTS = ("quench", "freezing", "curves")
 
 
 def part(anchor: str, blocks: tuple[Block, ...] | list[Block]) -> Part:

@@ -232,5 +232,16 @@ def _stepping(stats) -> str:
     return (
         f"{stats.method}, {'adaptive' if stats.adaptive else 'fixed'} step "
         f"{stats.smallest_step:.4g} to {stats.largest_step:.4g} s, {stats.steps} steps "
-        f"({stats.rejected_steps} rejected, {stats.startup_steps} start-up)"
+        f"({stats.rejected_steps} rejected, {stats.startup_steps} start-up)" + _retries(stats)
     )
+
+
+def _retries(stats) -> str:
+    """Nonlinear steps retried smaller, subdivided or damped, in words (empty when none)."""
+    counts = (
+        (stats.retried_steps, "retried at half the size"),
+        (stats.subdivided_steps, "taken in substeps"),
+        (stats.damped_iterations, "Newton updates shortened by the line search"),
+    )
+    words = [f"{n} {what}" for n, what in counts if n]
+    return f"; {', '.join(words)}" if words else ""

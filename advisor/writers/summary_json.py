@@ -14,6 +14,7 @@ from fem import RunChecks, SolverStats, ThermalModel
 from fem.schedules import schedule_data as _schedule
 
 from ..analysis.assessment import Assessment
+from ..analysis.surface_band import curve_conditions, surface_band
 from ..caution import CAUTION
 from .atomic import write_text
 from .version import soakwise_version
@@ -35,6 +36,9 @@ def summary(assessment: Assessment, files: list[str]) -> dict:
         "peak_internal_difference_time_s": assessment.peak_internal_difference_time,
         "time_to_target_s": assessment.time_to_target,
         "verdict": _verdict(assessment),
+        "quench": _quench(assessment),
+        "freezing": _freezing(assessment),
+        "surface_curves": _surface_curves(assessment),
         "final": {
             "mean_degC": float(solution.mean[-1]),
             "minimum_degC": float(solution.minimum[-1]),
@@ -133,6 +137,73 @@ def _verdict(assessment: Assessment) -> dict:
     }
 
 
+def _quench(assessment: Assessment) -> dict | None:
+    """The quench readings at the slowest point and the probes (None when not asked for);
+    rates are cooling rates when ``cooling``, heating rates otherwise."""
+    quench = assessment.quench
+    if quench is None:
+        return None
+    return {
+        "cooling": quench.cooling,
+        "times_to_degC": list(quench.times_to),
+        "cooling_range_degC": None if quench.cooling_range is None else list(quench.cooling_range),
+        "histories": {
+            name: {
+                "largest_rate_K_per_s": curve.largest_rate,
+                "largest_rate_temperature_degC": curve.largest_rate_temperature,
+                "largest_rate_time_s": curve.largest_rate_time,
+                "times_to_s": [
+                    {"temperature_degC": t, "time_s": curve.times_to[t]} for t in quench.times_to
+                ],
+                "range_time_s": curve.range_time,
+            }
+            for name, curve in quench.curves.items()
+        },
+    }
+
+
+def _freezing(assessment: Assessment) -> dict | None:
+    """The field's freezing time beside Plank's and Pham's (None when not asked for); errors
+    are (hand − field)/field."""
+    f = assessment.freezing
+    if f is None:
+        return None
+    return {
+        "end_temperature_degC": f.end_temperature,
+        "field_time_s": f.field_time,
+        "plank_s": f.plank,
+        "pham_s": f.pham,
+        "plank_error_fraction": f.error("plank"),
+        "pham_error_fraction": f.error("pham"),
+        "half_thickness_m": f.half_thickness,
+        "shape_number": f.shape_number,
+        "heat_transfer_coefficient_W_per_m2_K": f.heat_transfer_coefficient,
+        "medium_temperature_degC": f.medium_temperature,
+        "wording": f.wording,
+    }
+
+
+def _surface_curves(assessment: Assessment) -> dict | None:
+    """For each edge group whose coefficient follows the surface temperature, the surface
+    temperatures the run passed through (the stored fields at the output times); None
+    without such a group. The curves themselves are under ``inputs.boundaries``."""
+    solution = assessment.solution
+    groups = [g for groups, _ in curve_conditions(solution.model) for g in groups]
+    if not groups:
+        return None
+    bands = {group: surface_band(solution, group) for group in groups}
+    return {
+        group: {
+            "lowest_degC": band.low,
+            "highest_degC": band.high,
+            "output_times_s": band.times,
+            "lowest_at_outputs_degC": band.lowest,
+            "highest_at_outputs_degC": band.highest,
+        }
+        for group, band in bands.items()
+    }
+
+
 def _checks(checks: RunChecks) -> dict:
     """The run's own checks."""
     return {
@@ -155,6 +226,9 @@ def _solver(stats: SolverStats) -> dict:
         "smallest_step_s": stats.smallest_step,
         "largest_step_s": stats.largest_step,
         "newton_iterations": stats.newton_iterations,
+        "retried_steps": stats.retried_steps,
+        "subdivided_steps": stats.subdivided_steps,
+        "damped_iterations": stats.damped_iterations,
         "factorisations": stats.factorisations,
         "triangular_solves": stats.solves,
         "krylov_dimension": stats.krylov_dimension,

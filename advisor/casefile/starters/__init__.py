@@ -13,6 +13,8 @@ SCENARIOS = {
     "heated-conductor": "a copper bus bar heated by its current in still air",
     "coated-plate": "a coated steel plate in hot gas: two materials on one mesh",
     "cyclic-ambient": "a concrete column in a daily temperature cycle",
+    "quench-probe": "an alloy probe quenched in a water-like quenchant: a boiling curve",
+    "freezing": "a food cylinder frozen in cold air: latent heat, Plank and Pham",
 }
 
 
