@@ -11,6 +11,8 @@ Layout::
     plots/lumped_error.png|svg   lumped error against the tolerance band
     plots/field_snapshots.png|svg        the field at a few output times
     plots/energy.png|svg         stored energy against heat taken in
+    plots/cooling_rates.png|svg  cooling rate against temperature (when quench readings are asked)
+    plots/surface_curves.png|svg the curves of surface temperature used (when a case has them)
     animation.gif                the field over time on one colour scale
     animation.mp4                the same as an MP4 film (with imageio-ffmpeg, the ``mp4`` extra)
     fields/legend.json           region and edge group names by id
