@@ -160,11 +160,18 @@ def _context(findings, quantity) -> list[str]:
     """The Biot number, the slowest mode and (when judged on something else) the time to
     target: the figures that explain the rating."""
     bi, mode = findings["biot"][0], findings["mode"]
+    if bi.high < COMMON_LIMIT:
+        against = f"below the common-practice limit of {COMMON_LIMIT} throughout"
+    elif bi.value < COMMON_LIMIT:
+        against = (
+            f"below the common-practice limit of {COMMON_LIMIT} at the start, above it "
+            "during the run"
+        )
+    else:
+        against = f"not below the common-practice limit of {COMMON_LIMIT}"
     reasons = [
         f"Biot number (V/A_s) = {bi.value:.3g} (over the run {bi.low:.3g} to "
-        f"{bi.high:.3g}): "
-        + ("below" if bi.high < COMMON_LIMIT else "not below")
-        + f" the common-practice limit of {COMMON_LIMIT}",
+        f"{bi.high:.3g}): {against}",
         f"slowest-mode ratio {mode.ratio:.3g}: the part's last temperature difference decays "
         f"at {100 * mode.ratio:.3g} % of the lumped rate (a lumped model would need h = "
         f"{mode.equivalent_coefficient:.4g} W/(m^2*K))",
