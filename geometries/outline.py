@@ -79,23 +79,32 @@ def _signed_area(points: np.ndarray) -> float:
 
 
 def _self_intersection(points: np.ndarray) -> tuple[float, float] | None:
-    """A point where two non-adjacent edges of the closed polyline cross, if any."""
+    """A point where two non-adjacent edges of the closed polyline cross, if any (the first
+    in edge order). All pairs of a block of edges are tested at once."""
     a = points
-    b = np.roll(points, -1, axis=0)
+    d = np.roll(points, -1, axis=0) - a
     n = len(a)
-    d = b - a
-    for i in range(n):
-        j = np.arange(i + 2, n if i > 0 else n - 1)
-        if len(j) == 0:
-            continue
+    block = max(1, 200_000 // max(n, 1))  # pairs tested per array operation, bounded
+    for start in range(0, n, block):
+        i = np.arange(start, min(start + block, n))[:, np.newaxis]
+        j = np.arange(n)[np.newaxis, :]
+        # non-adjacent pairs j > i + 1, and not the closing pair (first edge, last edge)
+        pair = (j > i + 1) & ~((i == 0) & (j == n - 1))
         denom = d[i, 0] * d[j, 1] - d[i, 1] * d[j, 0]
-        ok = np.abs(denom) > 1e-300
         r = a[j] - a[i]
         with np.errstate(divide="ignore", invalid="ignore"):
-            s = (r[:, 0] * d[j, 1] - r[:, 1] * d[j, 0]) / denom
-            t = (r[:, 0] * d[i, 1] - r[:, 1] * d[i, 0]) / denom
-        hit = ok & (s > 1e-9) & (s < 1 - 1e-9) & (t > 1e-9) & (t < 1 - 1e-9)
+            s = (r[..., 0] * d[j, 1] - r[..., 1] * d[j, 0]) / denom
+            t = (r[..., 0] * d[i, 1] - r[..., 1] * d[i, 0]) / denom
+        hit = (
+            pair
+            & (np.abs(denom) > 1e-300)
+            & (s > 1e-9)
+            & (s < 1 - 1e-9)
+            & (t > 1e-9)
+            & (t < 1 - 1e-9)
+        )
         if np.any(hit):
-            k = int(np.flatnonzero(hit)[0])
-            return tuple(a[i] + s[k] * d[i])  # type: ignore[return-value]
+            row, col = np.argwhere(hit)[0]
+            edge = int(i[row, 0])
+            return tuple(a[edge] + s[row, col] * d[edge])  # type: ignore[return-value]
     return None
