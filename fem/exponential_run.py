@@ -12,15 +12,15 @@ from __future__ import annotations
 
 import math
 from collections.abc import Iterator
-from dataclasses import fields, is_dataclass
 
 import numpy as np
 
+from .conditions import Condition, conditions
 from .errors import ModelError, SolverError
 from .events import StopWatch
 from .exponential import KrylovExponential, krylov_exponential
 from .model import ThermalModel
-from .schedules import Schedule, as_schedule
+from .schedules import as_schedule
 from .stepper import March, RunContext, Stepper
 
 SHIFT_FRACTION = 1 / 32  # γ ≈ this × the interval (rounded to a power of two seconds)
@@ -62,7 +62,7 @@ def check_exponential_parts(materials, boundaries, heat_sources) -> None:
     named += [
         (group, what, schedule)
         for group, condition in _each(boundaries)
-        for what, schedule in _schedules(condition)
+        for what, schedule in condition.named_schedules().items()
     ]
     for where, what, schedule in named:
         if not schedule.is_stepwise:
@@ -74,19 +74,10 @@ def check_exponential_parts(materials, boundaries, heat_sources) -> None:
             )
 
 
-def _each(boundaries) -> Iterator[tuple[str, object]]:
+def _each(boundaries) -> Iterator[tuple[str, Condition]]:
     for group, value in boundaries.items():
-        for condition in value if isinstance(value, tuple | list) else (value,):
+        for condition in conditions(value, group):
             yield group, condition
-
-
-def _schedules(condition) -> Iterator[tuple[str, Schedule]]:
-    """A condition's schedules of time, by field name (the coefficient, the ambient, ...)."""
-    names = [f.name for f in fields(condition)] if is_dataclass(condition) else vars(condition)
-    for name in names:
-        value = getattr(condition, name)
-        if isinstance(value, Schedule):
-            yield name, value
 
 
 class Exponential(Stepper):

@@ -70,7 +70,8 @@ class _FormulaMarch:
     def __init__(self, stepper: FormulaStepper, run: RunContext):
         controls = run.controls
         self.stepper, self.run, self.controls = stepper, run, controls
-        self.solver = LinearStep(run) if run.system.model.is_linear else NewtonStep(run)
+        self.linear = run.system.model.is_linear
+        self.solver = LinearStep(run) if self.linear else NewtonStep(run)
         self.events = Events(run.breakpoints, controls.output_times, controls.end_time)
         self.control = StepControl(controls)
         self.watch = (
@@ -117,7 +118,7 @@ class _FormulaMarch:
         t = self.time
         past = [state for _, state in reversed(self.history)]
         guess = past[0]
-        if not self.run.system.model.is_linear and len(self.history) >= 3:
+        if not self.linear and len(self.history) >= 3:
             times = (t1, *[tt for tt, _ in reversed(self.history)])
             guess = predict(times, past)  # Newton starts from the trend
         ratio = None if self.previous_step is None else h / self.previous_step

@@ -296,8 +296,14 @@ class ConductionSystem:
     def impose_fixed(self, temperature: np.ndarray, time: float) -> None:
         """Set the fixed-temperature degrees of freedom of ``temperature`` to their values at
         ``time`` (in place)."""
-        for name, c in self.model.fixed.items():
-            temperature[self.fixed_dofs[name]] = c.held_temperature(time)
+        for dofs, condition in self._held:
+            temperature[dofs] = condition.held_temperature(time)
+
+    @cached_property
+    def _held(self) -> tuple[tuple[np.ndarray, object], ...]:
+        """(degrees of freedom, condition) of every held group, found once per system rather
+        than every step."""
+        return tuple((self.fixed_dofs[name], c) for name, c in self.model.fixed.items())
 
     def generated(self, time: float) -> float:
         """Heat generated in the part (W)."""

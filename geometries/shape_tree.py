@@ -12,6 +12,7 @@ from __future__ import annotations
 import math
 from collections.abc import Mapping
 from dataclasses import dataclass
+from typing import ClassVar
 
 import numpy as np
 
@@ -119,30 +120,38 @@ def _shapes(shapes, what: str) -> tuple[Shape, ...]:
 
 
 @dataclass(frozen=True)
-class Union(Shape):
-    """All of the shapes as one region (the first shape's unless ``region`` is given)."""
+class _Combination(Shape):
+    """Shapes combined into one region (the first shape's unless ``region`` is given); the
+    kinds differ only in how gmsh combines them."""
 
     shapes: tuple[Shape, ...]
     region: str | None = None
+    what: ClassVar[str] = "a combination"  # in messages
 
     def __post_init__(self) -> None:
-        object.__setattr__(self, "shapes", _shapes(self.shapes, "Union"))
+        object.__setattr__(self, "shapes", _shapes(self.shapes, type(self).__name__))
         if len(self.shapes) < 2:
-            raise GeometryError("a union needs at least two shapes")
+            raise GeometryError(f"{self.what} needs at least two shapes")
         if self.region is None:
             object.__setattr__(self, "region", self.shapes[0].region)
 
-    def expanded(self) -> Union:
+    def expanded(self) -> _Combination:
         return self
 
     def edges(self):
         return tuple(e for s in self.shapes for e in s.edges())
 
     def placed(self, placement):
-        return Union(tuple(s.placed(placement) for s in self.shapes), self.region)
+        return type(self)(tuple(s.placed(placement) for s in self.shapes), self.region)
 
     def symmetry_multiplier(self, axisymmetric: bool = False) -> int:
         return 1
+
+
+class Union(_Combination):
+    """All of the shapes as one region (the first shape's unless ``region`` is given)."""
+
+    what = "a union"
 
 
 @dataclass(frozen=True)
@@ -178,31 +187,10 @@ class Difference(Shape):
         return self.base.symmetry_multiplier(axisymmetric)
 
 
-@dataclass(frozen=True)
-class Intersection(Shape):
+class Intersection(_Combination):
     """The part common to all the shapes."""
 
-    shapes: tuple[Shape, ...]
-    region: str | None = None
-
-    def __post_init__(self) -> None:
-        object.__setattr__(self, "shapes", _shapes(self.shapes, "Intersection"))
-        if len(self.shapes) < 2:
-            raise GeometryError("an intersection needs at least two shapes")
-        if self.region is None:
-            object.__setattr__(self, "region", self.shapes[0].region)
-
-    def expanded(self) -> Intersection:
-        return self
-
-    def edges(self):
-        return tuple(e for s in self.shapes for e in s.edges())
-
-    def placed(self, placement):
-        return Intersection(tuple(s.placed(placement) for s in self.shapes), self.region)
-
-    def symmetry_multiplier(self, axisymmetric: bool = False) -> int:
-        return 1
+    what = "an intersection"
 
 
 @dataclass(frozen=True)

@@ -15,7 +15,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from fem import ConductionSystem, ThermalModel, assemble
-from fem.modes import slowest_eigenpair
+from fem.modes import Eigenpair, slowest_eigenpair
 
 from ..errors import AdvisorError
 from .lumped import exchange_conductance, heat_capacity, mean_initial
@@ -47,10 +47,13 @@ class SlowestMode:
     core_to_mean: float
 
 
-def slowest_mode(model: ThermalModel, system: ConductionSystem | None = None) -> SlowestMode:
+def slowest_mode(
+    model: ThermalModel, system: ConductionSystem | None = None, pair: Eigenpair | None = None
+) -> SlowestMode:
     """The first generalised eigenvalue of the model's operator at t = 0, every condition
     linearised at the initial mean temperature (radiation by its secant coefficient), against
-    the lumped model's rate. ``system``: the model's assembled system, if there is one.
+    the lumped model's rate. ``system``: the model's assembled system, if there is one;
+    ``pair``: that eigenpair, if already found.
 
     Examples
     --------
@@ -67,7 +70,8 @@ def slowest_mode(model: ThermalModel, system: ConductionSystem | None = None) ->
         raise AdvisorError("a part that exchanges no heat has no decaying mode")
     system = assemble(model) if system is None else system.for_model(model)
     t0 = mean_initial(model)
-    pair = slowest_eigenpair(system, t0, 0.0)
+    if pair is None:
+        pair = slowest_eigenpair(system, t0, 0.0)
     shape = np.abs(pair.shape)
     weights = system.volume_weights[pair.dofs]
     core_to_mean = float(shape.max() / (weights @ shape / weights.sum()))

@@ -19,7 +19,7 @@ import numpy as np
 
 from fem import PropertyTable, ThermalModel, assemble
 from fem.assembly import initial_field
-from fem.modes import slowest_eigenpair
+from fem.modes import Eigenpair, slowest_eigenpair
 from fem.system import ConductionSystem
 
 from .assessment import check_request, correction
@@ -86,14 +86,15 @@ def quick_check(model: ThermalModel, *, target: float | None = None) -> QuickChe
     _, scale, _ = correction(model, biot)
     corrected = LumpedModel.of(model, scale=scale, name="corrected")
     system = assemble(model)
-    mode = slowest_mode(model, system)
+    pair = slowest_eigenpair(system, lumped.initial_temperature, 0.0)  # one solve serves both
+    mode = slowest_mode(model, system, pair)
 
     times: dict[str, float | None] = {}
     if target is not None:
         horizon = 20 * lumped.time_constant
         times["classical"] = lumped.time_to(target, horizon)
         times["corrected"] = corrected.time_to(target, horizon)
-        times["slowest (modal estimate)"] = _modal_time(system, lumped, target)
+        times["slowest (modal estimate)"] = _modal_time(system, lumped, target, pair)
 
     heating = drive < 0
     bi = biot[0]
@@ -118,10 +119,11 @@ def quick_check(model: ThermalModel, *, target: float | None = None) -> QuickChe
     return QuickCheck(biot, lumped, corrected, mode, target, times, direction, reasons)
 
 
-def _modal_time(system: ConductionSystem, lumped: LumpedModel, target: float) -> float | None:
+def _modal_time(
+    system: ConductionSystem, lumped: LumpedModel, target: float, pair: Eigenpair
+) -> float | None:
     """When the slowest point of a·φ₁·exp(−λ₁t) reaches ``target`` °C, s (None if the mode's
     slowest point starts nearer the equilibrium than the target)."""
-    pair = slowest_eigenpair(system, lumped.initial_temperature, 0.0)
     dofs, shape = pair.dofs, pair.shape
     capacity = system.capacity[dofs][:, dofs]
     start = initial_field(system)[dofs] - lumped.equilibrium

@@ -111,9 +111,15 @@ class Condition:
     units: ClassVar[dict[str, str]] = {}
 
     # -- time -------------------------------------------------------------------------------
+    def named_schedules(self) -> dict[str, Schedule]:
+        """Every schedule of time the condition holds, by field name."""
+        fields = dataclasses.fields(self)
+        values = {f.name: getattr(self, f.name) for f in fields}
+        return {name: v for name, v in values.items() if hasattr(v, "breakpoints")}
+
     def schedules(self) -> tuple[Schedule, ...]:
         """Every schedule of time the condition holds."""
-        return tuple(v for v in self._values() if hasattr(v, "breakpoints"))
+        return tuple(self.named_schedules().values())
 
     def breakpoints(self, end_time: float) -> set[float]:
         """Times in (0, ``end_time``] s where one of its schedules jumps or kinks."""
@@ -205,9 +211,6 @@ class Condition:
             key = field.name + self.units.get(field.name, "")
             entry[key] = value if isinstance(value, str) else schedule_data(value)
         return entry
-
-    def _values(self) -> list:
-        return [getattr(self, f.name) for f in dataclasses.fields(self)]
 
 
 def schedule_field(value, what: str, argument: str) -> Schedule:
