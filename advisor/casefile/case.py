@@ -14,7 +14,7 @@ import sys
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from fem import ThermalModel
+from fem import ThermalModel, bind_correlations
 from geometries import Section, SectionMesh
 
 from .conditions import read_boundaries, read_initial, read_probes, read_sources
@@ -101,7 +101,7 @@ class Case:
         return ThermalModel(
             section_mesh,
             material,
-            self.boundaries,
+            bind_correlations(self.boundaries, section_mesh, self.initial),
             self.initial,
             probes=self.probes,
             element_order=self.element_order,

@@ -184,6 +184,8 @@ def _field_value(table: Table, field: Field):
         if isinstance(value, bool | str) and value in INSULATION:
             return INSULATION[value]
         table.fail(field.key, f'expected true or "symmetry", got {value!r}')
+    if field.kind == "name":
+        return table.text(field.key, field.default)
     if field.schedule:
         return schedule(table, field.key, field.kind)
     return table.get(field.key, field.kind, field.default)

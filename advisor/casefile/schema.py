@@ -12,6 +12,7 @@ from dataclasses import dataclass
 
 from fem import (
     Convection,
+    CorrelationConvection,
     FixedTemperature,
     HeatFlux,
     Insulated,
@@ -185,6 +186,19 @@ CONDITIONS: dict[str, ConditionKind] = {
         FixedTemperature, (Field("fixed", "temperature", "temperature", schedule=True),), True
     ),
     "insulated": ConditionKind(Insulated, (Field("insulated", "reason", "insulation"),), True),
+    # h from a flow correlation at the film temperature (fem.flow_correlations)
+    "correlation": ConditionKind(
+        CorrelationConvection,
+        (
+            Field("kind", "correlation", "name"),
+            Field("fluid", "fluid", "name", "air"),
+            Field("fluid_temperature", "fluid_temperature", "temperature"),
+            Field("velocity", "velocity", "velocity", None),
+            Field("length", "length", "length", None),
+            Field("nozzle", "nozzle", "length", None),
+            Field("nozzle_distance", "nozzle_distance", "length", None),
+        ),
+    ),
 }
 
 # convection's curves of surface temperature: key → the kind of its values (the curve's quantity

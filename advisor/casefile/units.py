@@ -27,6 +27,7 @@ KINDS = {
     "specific_energy": ("J/kg", "a latent heat such as '334 kJ/kg'"),
     "power_density": ("W/m^3", "a heat generation such as '5 MW/m^3'"),
     "angle": ("degree", "an angle such as '30 deg'"),
+    "velocity": ("m/s", "a speed such as '3 m/s'"),
     "number": ("", "a plain number"),
 }
 

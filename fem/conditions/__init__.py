@@ -16,11 +16,13 @@ from .base import KINDS, Condition, Linearised, SurfaceEdge, conditions, registe
 from .convection import Convection
 from .radiation import STEFAN_BOLTZMANN, Radiation
 from .surface_convection import SurfaceTemperatureConvection
+from .correlation import CorrelationConvection
 from .flux import HeatFlux
 from .fixed import FixedTemperature
 from .insulated import Insulated
 
 # isort: on
+from .correlation_binding import bind_correlations
 from .surface_curve import SurfaceCurve
 
 for _module in iter_modules(__path__):
@@ -34,6 +36,7 @@ __all__ = [
     "BoundaryCondition",
     "Condition",
     "Convection",
+    "CorrelationConvection",
     "FixedTemperature",
     "HeatFlux",
     "Insulated",
@@ -42,6 +45,7 @@ __all__ = [
     "SurfaceCurve",
     "SurfaceEdge",
     "SurfaceTemperatureConvection",
+    "bind_correlations",
     "conditions",
     "register",
 ]

@@ -1,0 +1,122 @@
+"""A correlation's characteristic length from the section, and the surface temperatures a run
+can reach from its initial and fluid temperatures: what :class:`CorrelationConvection` needs
+before it builds its table."""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..errors import ModelError
+from .correlation import CorrelationConvection
+
+ROUND_TOLERANCE = 0.02  # an edge group is round when its box's sides agree within 2 %
+RANGE_MARGIN = 0.05  # the table reaches 5 % of the span beyond the initial and fluid extremes
+SMALLEST_SPAN = 50.0  # K: a part starting at the fluid's temperature still gets a table
+
+# Which length a correlation takes from its edge group: "diameter", "length" or "half".
+DERIVED = {
+    "natural-horizontal-cylinder": "diameter",
+    "forced-cylinder": "diameter",
+    "natural-vertical-plate": "length",
+    "forced-plate": "length",
+    "forced-plate-turbulent": "length",
+    "natural-plate-facing-up": "half",
+    "natural-plate-facing-down": "half",
+    "jet-round-nozzle": "half",
+    "jet-slot-nozzle": "half",
+}
+_WORDS = {
+    "length": "the edge group's length",
+    "half": "half the edge group's length",
+}
+
+
+def bind_correlations(boundaries: dict, section_mesh, initial) -> dict:
+    """``boundaries`` with every :class:`CorrelationConvection` given its length (derived from
+    its edge group where not given) and the surface range of the run.
+
+    Parameters
+    ----------
+    boundaries : dict of str to condition or tuple of conditions
+        The conditions of each edge group.
+    section_mesh : geometries.SectionMesh
+        The meshed section.
+    initial : float or dict of str to float
+        The initial temperature, °C (one, or one per region).
+
+    Returns
+    -------
+    dict
+        The same mapping, correlation conditions replaced by bound ones.
+    """
+    correlations = [
+        c
+        for value in boundaries.values()
+        for c in (value if isinstance(value, tuple | list) else (value,))
+        if isinstance(c, CorrelationConvection)
+    ]
+    if not correlations:
+        return boundaries
+    surface_range = _surface_range(initial, [c.fluid_temperature for c in correlations])
+    bound = {}
+    for group, value in boundaries.items():
+        items = value if isinstance(value, tuple | list) else (value,)
+        bound[group] = tuple(
+            _bind(item, group, section_mesh, surface_range)
+            if isinstance(item, CorrelationConvection)
+            else item
+            for item in items
+        )
+    return bound
+
+
+def _bind(condition: CorrelationConvection, group: str, section_mesh, surface_range):
+    if condition.length is not None:
+        return condition.with_section(None, "", surface_range)
+    length, origin = derived_length(condition.correlation, group, section_mesh)
+    return condition.with_section(length, origin, surface_range)
+
+
+def derived_length(correlation: str, group: str, section_mesh) -> tuple[float, str]:
+    """The characteristic length of ``correlation`` on edge ``group``, m, and how it was found:
+    a cylinder's diameter from the bounding box of a round group; a plate's length (its
+    height, or its length along the flow) from the group's length; a horizontal strip's
+    area/perimeter, and a jet's averaging radius or half-width, as half the group's length."""
+    mesh = section_mesh.mesh
+    if group not in mesh.boundaries:
+        raise ModelError(f"edge group {group!r} is not in the section", argument="length")
+    rule = DERIVED[correlation]
+    if rule != "diameter":
+        total = float(section_mesh.facts.edge_lengths[group])
+        return (total if rule == "length" else total / 2), _WORDS[rule] + ", derived"
+    nodes = np.unique(mesh.facets[:, mesh.boundaries[group]])
+    points = mesh.p[:, nodes]
+    width, height = np.ptp(points[0]), np.ptp(points[1])
+    if abs(width - height) > ROUND_TOLERANCE * max(width, height):
+        raise ModelError(
+            f"the {correlation} correlation on edge group {group!r} needs a diameter; the "
+            f"group is not round (its box is {width * 1e3:.4g} x {height * 1e3:.4g} mm): give "
+            "length",
+            argument="length",
+        )
+    return 0.5 * (width + height), "the diameter of the round edge group's bounding box, derived"
+
+
+def _surface_range(initial, fluid_temperatures) -> tuple[float, float]:
+    """The lowest and highest temperature of the initial state and the fluids, widened a
+    little (sources or other conditions may carry the surface somewhat beyond)."""
+    values = list(initial.values()) if isinstance(initial, dict) else [initial]
+    try:
+        known = [float(np.min(v)) for v in values] + [float(np.max(v)) for v in values]
+    except (TypeError, ValueError):
+        raise ModelError(
+            "a correlation's surface range needs initial temperatures as numbers; give "
+            "surface_range",
+            argument="surface_range",
+        ) from None
+    span = max(known + fluid_temperatures) - min(known + fluid_temperatures)
+    margin = max(RANGE_MARGIN * span, SMALLEST_SPAN if span < 1.0 else 0.0)
+    # a surface goes beyond the fluid's temperature only by what the part starts beyond it
+    low = min([v - margin for v in known] + fluid_temperatures)
+    high = max([v + margin for v in known] + fluid_temperatures)
+    return low, high
