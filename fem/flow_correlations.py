@@ -205,10 +205,12 @@ def check_correlation(name: str, geometry: FlowGeometry) -> Correlation:
     correlation = CORRELATIONS[name]
     for key in ("length", *correlation.needs):
         value = getattr(geometry, key)
+        words = key.replace("_", " ")
+        if value is None:
+            raise ModelError(f"the correlation {name!r} needs a {words}", argument=key)
         if not (isinstance(value, int | float) and math.isfinite(value) and value > 0):
             raise ModelError(
-                f"the correlation {name!r} needs a {key.replace('_', ' ')} > 0, got {value!r}",
-                argument=key,
+                f"the correlation {name!r} needs a {words} > 0, got {value!r}", argument=key
             )
     for key in set(_JET) - set(correlation.needs):
         if getattr(geometry, key) is not None and key != "velocity":

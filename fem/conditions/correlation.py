@@ -16,7 +16,13 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import ModelError
-from ..flow_correlations import CORRELATIONS, CoefficientTable, FlowGeometry, coefficient_table
+from ..flow_correlations import (
+    CORRELATIONS,
+    CoefficientTable,
+    FlowGeometry,
+    check_correlation,
+    coefficient_table,
+)
 from ..fluid_properties import FLUIDS
 from ..temperatures import check_temperature
 from .base import register, temperature_field
@@ -98,6 +104,8 @@ class CorrelationConvection(SurfaceTemperatureConvection):
                 f"unknown fluid {self.fluid!r}; known: {sorted(FLUIDS)}", argument="fluid"
             )
         check_temperature(self.fluid_temperature, "fluid_temperature", "fluid_temperature")
+        placeholder = 1.0 if self.length is None else self.length  # derived later
+        check_correlation(self.correlation, dataclasses.replace(self.geometry, length=placeholder))
         object.__setattr__(
             self,
             "ambient",

@@ -13,21 +13,24 @@ ROUND_TOLERANCE = 0.02  # an edge group is round when its box's sides agree with
 RANGE_MARGIN = 0.05  # the table reaches 5 % of the span beyond the initial and fluid extremes
 SMALLEST_SPAN = 50.0  # K: a part starting at the fluid's temperature still gets a table
 
-# Which length a correlation takes from its edge group: "diameter", "length" or "half".
+# Which length a correlation takes from its edge group's bounding box (x across, y up).
 DERIVED = {
     "natural-horizontal-cylinder": "diameter",
     "forced-cylinder": "diameter",
-    "natural-vertical-plate": "length",
-    "forced-plate": "length",
-    "forced-plate-turbulent": "length",
-    "natural-plate-facing-up": "half",
-    "natural-plate-facing-down": "half",
-    "jet-round-nozzle": "half",
-    "jet-slot-nozzle": "half",
+    "natural-vertical-plate": "height",
+    "forced-plate": "longer",
+    "forced-plate-turbulent": "longer",
+    "natural-plate-facing-up": "half-width",
+    "natural-plate-facing-down": "half-width",
+    "jet-round-nozzle": "half-longer",
+    "jet-slot-nozzle": "half-longer",
 }
 _WORDS = {
-    "length": "the edge group's length",
-    "half": "half the edge group's length",
+    "diameter": "the diameter of the round edge group's bounding box",
+    "height": "the edge group's height",
+    "longer": "the longer side of the edge group's bounding box",
+    "half-width": "half the edge group's width (area/perimeter of a long strip)",
+    "half-longer": "half the longer side of the edge group's bounding box",
 }
 
 
@@ -71,35 +74,51 @@ def bind_correlations(boundaries: dict, section_mesh, initial) -> dict:
 
 
 def _bind(condition: CorrelationConvection, group: str, section_mesh, surface_range):
-    if condition.length is not None:
-        return condition.with_section(None, "", surface_range)
-    length, origin = derived_length(condition.correlation, group, section_mesh)
-    return condition.with_section(length, origin, surface_range)
+    try:
+        if condition.length is not None:
+            return condition.with_section(None, "", surface_range)
+        length, origin = derived_length(condition.correlation, group, section_mesh)
+        return condition.with_section(length, origin, surface_range)
+    except ModelError as error:
+        raise ModelError(
+            f"edge group {group!r}, the {condition.correlation} correlation: {error}",
+            argument=error.argument,
+        ) from None
 
 
 def derived_length(correlation: str, group: str, section_mesh) -> tuple[float, str]:
-    """The characteristic length of ``correlation`` on edge ``group``, m, and how it was found:
-    a cylinder's diameter from the bounding box of a round group; a plate's length (its
-    height, or its length along the flow) from the group's length; a horizontal strip's
-    area/perimeter, and a jet's averaging radius or half-width, as half the group's length."""
+    """The characteristic length of ``correlation`` on edge ``group``, m, and how it was found,
+    from the group's bounding box: a cylinder's diameter (a round group: its sides agree); a
+    vertical plate's height; a plate's length along the flow as the longer side; a horizontal
+    strip's area/perimeter as half its width; a jet's averaging radius or half-width as half
+    the longer side."""
     mesh = section_mesh.mesh
     if group not in mesh.boundaries:
         raise ModelError(f"edge group {group!r} is not in the section", argument="length")
-    rule = DERIVED[correlation]
-    if rule != "diameter":
-        total = float(section_mesh.facts.edge_lengths[group])
-        return (total if rule == "length" else total / 2), _WORDS[rule] + ", derived"
     nodes = np.unique(mesh.facets[:, mesh.boundaries[group]])
-    points = mesh.p[:, nodes]
-    width, height = np.ptp(points[0]), np.ptp(points[1])
-    if abs(width - height) > ROUND_TOLERANCE * max(width, height):
+    width, height = (float(np.ptp(mesh.p[axis, nodes])) for axis in (0, 1))
+    rule = DERIVED[correlation]
+    lengths = {
+        "diameter": 0.5 * (width + height),
+        "height": height,
+        "longer": max(width, height),
+        "half-width": 0.5 * width,
+        "half-longer": 0.5 * max(width, height),
+    }
+    if rule == "diameter" and abs(width - height) > ROUND_TOLERANCE * max(width, height):
         raise ModelError(
             f"the {correlation} correlation on edge group {group!r} needs a diameter; the "
             f"group is not round (its box is {width * 1e3:.4g} x {height * 1e3:.4g} mm): give "
             "length",
             argument="length",
         )
-    return 0.5 * (width + height), "the diameter of the round edge group's bounding box, derived"
+    if not lengths[rule] > 0:
+        raise ModelError(
+            f"the {correlation} correlation on edge group {group!r}: {_WORDS[rule]} is 0 "
+            f"(its box is {width * 1e3:.4g} x {height * 1e3:.4g} mm): give length",
+            argument="length",
+        )
+    return lengths[rule], _WORDS[rule] + ", derived"
 
 
 def _surface_range(initial, fluid_temperatures) -> tuple[float, float]:
