@@ -138,3 +138,26 @@ def test_without_the_extra_the_error_names_it(monkeypatch):
         CorrelationConvection(
             "natural-horizontal-cylinder", "air", 20.0, length=0.1, surface_range=(20, 90)
         )
+
+
+def test_report_table_follows_the_band_passed_through():
+    """The report's rows run from the hottest to the coolest surface temperature of the run,
+    and h there is the correlation's (the table's value, read here from the condition's own
+    table by numpy's interpolation)."""
+    import numpy as np
+
+    from advisor.writers.report_correlations import correlation_blocks
+    from fem import solve
+
+    case = case_from_toml(ROUND.format(kind="natural-horizontal-cylinder", extra=""))
+    solution = solve(case.model(), 120.0, output_times=[60.0, 120.0])
+    (table,) = correlation_blocks(solution)
+    temperatures = [float(row[1].split()[0]) for row in table.rows]
+    coefficients = [float(row[4].split()[0]) for row in table.rows]
+    assert temperatures[0] == pytest.approx(300.0, abs=0.01)  # the initial surface
+    assert temperatures[-1] < temperatures[0]
+    condition = bound_condition(solution.model, "outside")
+    expected = np.interp(temperatures, condition.table.surface_temperatures,
+                         condition.table.coefficients)  # fmt: skip
+    assert np.allclose(coefficients, expected, rtol=2e-3)  # 3 significant digits shown
+    assert all(row[2].startswith("Ra = ") for row in table.rows)

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 from ..analysis.assessment import Assessment
 from ..analysis.surface_band import curve_conditions, surface_band
+from .report_correlations import correlation_blocks
 from .report_document import Block, Facts, Paragraph, Part, Picture, Table, part
 from .report_words import duration, millimetres, number, quantity_words
 
@@ -122,6 +123,7 @@ def curves_part(a: Assessment, picture: Picture | None = None) -> Part:
             tuple(rows),
         ),
     ]
+    blocks.extend(correlation_blocks(solution))
     if picture is not None:
         blocks.append(picture)
     return part("curves", blocks)

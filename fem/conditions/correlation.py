@@ -29,8 +29,6 @@ from .base import register, temperature_field
 from .surface_convection import SurfaceTemperatureConvection
 from .surface_curve import SurfaceCurve
 
-REPORTED_POINTS = 4  # surface temperatures the description shows Re or Ra, Nu and h at
-
 
 @dataclass(frozen=True)
 class TableFunction:
@@ -196,14 +194,12 @@ class CorrelationConvection(SurfaceTemperatureConvection):
             return words + " (length from the section when the model is built)"
         origin = f" ({self.length_origin})" if self.length_origin else ""
         words += f", length {self.length * 1e3:.4g} mm{origin}"
-        far = max(self.surface_range, key=lambda t: abs(t - self.fluid_temperature))
-        fractions = np.linspace(0.1, 1.0, REPORTED_POINTS)  # from near the fluid to the far end
-        points = self.fluid_temperature + (far - self.fluid_temperature) * fractions
-        shown = "; ".join(
-            f"{t:.4g} °C: {self.table.group} {g:.3g}, Nu {nu:.3g}, h {h:.3g} W/(m²·K)"
-            for t, g, nu, h in self.rows(points)
+        low, high = self.surface_range
+        h = self.table.coefficients
+        return (
+            f"{words}; h {min(h):.3g}-{max(h):.3g} W/(m²·K) over surface temperatures "
+            f"{low:.4g}-{high:.4g} °C{self._outside_words()}"
         )
-        return f"{words}; {shown}{self._outside_words()}"
 
     def _outside_words(self) -> str:
         """A note when the table leaves the range of Re or Ra its source states."""
