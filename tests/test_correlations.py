@@ -243,3 +243,14 @@ def test_small_part_cooling_in_still_air_against_an_ode():
     assert error < 0.001, error
     assert h_of(hot) / h_of(60.0) > 1.3  # h changed over the run: the update mattered
     assert math.isfinite(solution.checks.energy_balance_error)
+
+
+@pytest.mark.parametrize(
+    "name", ["fem.fluid_properties", "fem.flow_correlations", "fem.conditions.correlation"]
+)
+def test_docstring_examples(name):
+    import doctest
+    import importlib
+
+    result = doctest.testmod(importlib.import_module(name), optionflags=doctest.ELLIPSIS)
+    assert result.attempted > 0 and result.failed == 0
