@@ -8,6 +8,7 @@ import numpy as np
 from .events import reached
 from .model import ThermalModel
 from .scales import temperature_span
+from .solids import run_range_warnings
 from .solution import RunChecks
 from .stepper import RunControls, Stepper
 
@@ -39,6 +40,8 @@ def check_run(
     warnings: list[str] = []
     balance = _energy_balance(model, controls, stepper, histories, initial_capacity, warnings)
     excursion = _excursion(model, controls, stepper, histories, warnings)
+    lowest, highest = float(histories["minimum"].min()), float(histories["maximum"].max())
+    warnings.extend(run_range_warnings(model.materials, lowest, highest))  # once per run
     ratio = smallest_step / surface_diffusion_time
     if ratio > 1.0 and startup_steps == 0 and stepper.rings_without_startup:
         warnings.append(
