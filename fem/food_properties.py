@@ -9,7 +9,8 @@ volumes, its specific heat by mass fractions and its conductivity by volume frac
 parallel model). Below the initial freezing point T_f the ice fraction is
 x_ice = (x_w − x_b)(1 − T_f/T) (Tchigeov's equation in the form of the ASHRAE Handbook —
 Refrigeration, ch. 19), with bound water x_b = 0.4·x_protein (Schwartzberg 1976). All
-coefficients written from memory of the equations as the ASHRAE Handbook reproduces them.
+coefficients written from memory of the equations as the ASHRAE Handbook reproduces them
+(water's specific heat in two ranges, as there).
 """
 
 from __future__ import annotations
@@ -32,7 +33,7 @@ COMPONENTS = {
     "water": (
         (5.7109e-1, 1.7625e-3, -6.7036e-6),
         (9.9718e2, 3.1439e-3, -3.7574e-3),
-        (4.1762, -9.0864e-5, 5.4731e-6),
+        (4.1289, -9.0864e-5, 5.4731e-6),  # 0 to 150 °C; below 0: SUPERCOOLED_WATER
     ),
     "ice": (
         (2.2196, -6.2489e-3, 1.0154e-4),
@@ -66,15 +67,26 @@ COMPONENTS = {
     ),
 }
 SOLIDS = ("protein", "fat", "carbohydrate", "fibre", "ash")
+# the unfrozen water's specific heat from −40 to 0 °C, kJ/(kg·K) (ASHRAE's form, from memory)
+SUPERCOOLED_WATER = (4.1289, -5.3062e-3, 9.9516e-4)
 
 
 def component(name: str, quantity: str, temperature):
     """k (W/(m·K)), ρ (kg/m³) or c (J/(kg·K)) of one component at ``temperature`` °C."""
     index = ("conductivity", "density", "specific_heat").index(quantity)
-    a0, a1, a2 = COMPONENTS[name][index]
     t = np.asarray(temperature, dtype=float)
+    a0, a1, a2 = COMPONENTS[name][index]
     value = a0 + a1 * t + a2 * t * t
+    if name == "water" and quantity == "specific_heat":
+        b0, b1, b2 = SUPERCOOLED_WATER
+        value = np.where(t < 0, b0 + b1 * t + b2 * t * t, value)
     return value * 1e3 if quantity == "specific_heat" else value
+
+
+def _integral(coefficients, low, high):
+    """∫ (a0 + a1·T + a2·T²) dT from ``low`` to ``high`` °C, in J/kg (c in kJ/(kg·K))."""
+    a0, a1, a2 = coefficients
+    return 1e3 * (a0 * (high - low) + a1 / 2 * (high**2 - low**2) + a2 / 3 * (high**3 - low**3))
 
 
 @dataclass(frozen=True)
@@ -154,12 +166,12 @@ class Composition:
         fractions = self._fractions(t)
         total = 0.0
         for name, x in fractions.items():
-            a0, a1, a2 = COMPONENTS[name][2]
             origin = 0.0 if name in ("water", "ice") else reference
-            integral = 1e3 * (
-                a0 * (t - origin) + a1 / 2 * (t**2 - origin**2) + a2 / 3 * (t**3 - origin**3)
-            )
-            total = total + x * (integral + (LATENT_HEAT if name == "water" else 0.0))
+            integral = _integral(COMPONENTS[name][2], origin, t)
+            if name == "water":  # the supercooled branch below 0 °C, and the latent heat
+                below = _integral(SUPERCOOLED_WATER, origin, t)
+                integral = np.where(t < 0, below, integral) + LATENT_HEAT
+            total = total + x * integral
         return total
 
     def material(self, name: str, source: str, low: float = -40.0, high: float = 90.0):
