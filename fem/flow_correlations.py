@@ -223,6 +223,28 @@ def check_correlation(name: str, geometry: FlowGeometry) -> Correlation:
     return correlation
 
 
+# Martin (1977)'s stated ranges of the jets' geometry (from memory): name → ((ratio, low,
+# high), ...), the ratios of the averaging radius or half-width and of the nozzle's distance
+# to the nozzle diameter or slot width.
+JET_RANGES = {
+    "jet-round-nozzle": (("r/D", 2.5, 7.5), ("H/D", 2.0, 12.0)),
+    "jet-slot-nozzle": (("x/S", 2.0, 25.0), ("H/S", 2.0, 10.0)),
+}
+
+
+def geometry_notes(name: str, geometry: FlowGeometry) -> list[str]:
+    """The jet's geometry ratios that lie outside the source's stated ranges, in words."""
+    notes = []
+    for (ratio, low, high), value in zip(
+        JET_RANGES.get(name, ()),
+        (geometry.length, geometry.nozzle_distance),
+        strict=False,
+    ):
+        if geometry.nozzle and not low <= value / geometry.nozzle <= high:
+            notes.append(f"{ratio} = {value / geometry.nozzle:.3g} (stated {low:g}-{high:g})")
+    return notes
+
+
 @dataclass(frozen=True)
 class CoefficientTable:
     """A correlation evaluated over surface temperatures (tuples, so that it compares and

@@ -254,3 +254,17 @@ def test_docstring_examples(name):
 
     result = doctest.testmod(importlib.import_module(name), optionflags=doctest.ELLIPSIS)
     assert result.attempted > 0 and result.failed == 0
+
+
+def test_description_notes_where_the_source_does_not_reach():
+    """Martin (1977) states 2.5 <= r/D <= 7.5 for the round nozzle (from memory): r/D = 12 is
+    noted in the description, r/D = 5 is not."""
+
+    def words(radius):
+        return CorrelationConvection(
+            "jet-round-nozzle", "air", 20.0, length=radius, velocity=30.0, nozzle=0.005,
+            nozzle_distance=0.03, surface_range=(20.0, 200.0),
+        ).describe(60.0)  # fmt: skip
+
+    assert "r/D = 12" in words(0.06)
+    assert "outside" not in words(0.025)

@@ -22,6 +22,7 @@ from ..flow_correlations import (
     FlowGeometry,
     check_correlation,
     coefficient_table,
+    geometry_notes,
 )
 from ..fluid_properties import FLUIDS
 from ..temperatures import check_temperature
@@ -205,12 +206,14 @@ class CorrelationConvection(SurfaceTemperatureConvection):
         """A note when the table leaves the range of Re or Ra its source states."""
         low, high = CORRELATIONS[self.correlation].valid
         groups = np.asarray(self.table.groups)
-        if np.all((groups >= low) & (groups <= high)):
-            return ""
-        return (
-            f" (outside the correlation's stated range {self.table.group} {low:.3g}-{high:.3g} "
-            f"at part of the run: {groups.min():.3g}-{groups.max():.3g})"
-        )
+        notes = geometry_notes(self.correlation, self.geometry)
+        if not np.all((groups >= low) & (groups <= high)):
+            notes.insert(
+                0,
+                f"{self.table.group} {groups.min():.3g}-{groups.max():.3g} "
+                f"(stated {low:.3g}-{high:.3g})",
+            )
+        return f" (outside the correlation's stated range: {'; '.join(notes)})" if notes else ""
 
     def summary(self) -> dict:
         entry = {
