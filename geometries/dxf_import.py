@@ -193,7 +193,7 @@ def _loops_and_pieces(document, entities: list, group_by: str) -> tuple[list, li
     for entity in entities:
         kind = entity.dxftype()
         group = _group(document, entity, group_by)
-        origin = f"{kind} {entity.dxf.handle} on layer {entity.dxf.layer!r}"
+        origin = f"{kind} (handle {entity.dxf.handle}) on layer {entity.dxf.layer!r}"
         _check_plane(entity, origin)
         if kind == "LINE":
             start, end = (
@@ -213,7 +213,7 @@ def _loops_and_pieces(document, entities: list, group_by: str) -> tuple[list, li
         else:
             advice = ADVICE.get(kind, "draw the outline with lines, arcs, polylines or circles")
             raise GeometryError(
-                f"{origin}: a {kind} entity is not read; {advice}", argument="layers"
+                f"{origin}: {kind} entities are not read; {advice}", argument="layers"
             )
     return loops, pieces
 
