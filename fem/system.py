@@ -183,12 +183,9 @@ class ConductionSystem:
         capacity = sp.csr_matrix((self.size, self.size))
         for region, basis in self.region_bases.items():
             material = self.model.materials[region]
-            if isinstance(material.conductivity, float):
-                stiffness = stiffness + asm(
-                    forms.conduction,
-                    basis,
-                    conductivity=material.conductivity,
-                    axisymmetric=self.axisymmetric,
+            if isinstance(material.conductivity, float):  # an orthotropic one's tensor too
+                stiffness = stiffness + forms.conduction_matrix(
+                    basis, material.conduction_at(), self.axisymmetric
                 )
             if material.constant_capacity:
                 capacity = capacity + asm(
