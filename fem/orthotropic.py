@@ -107,7 +107,8 @@ class Orthotropic:
         """One line for reports."""
         return (
             f"orthotropic: k1 = {self.first:.4g}, k2 = {self.second:.4g} W/(m·K), direction 1 "
-            f"at {self.angle:.4g}° from x (r)"
+            f"at {self.angle:.4g}° from x (r); Biot numbers and lumped models use the smaller, "
+            f"{self.smallest:.4g} W/(m·K)"
         )
 
 

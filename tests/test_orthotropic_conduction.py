@@ -297,3 +297,80 @@ def test_the_docstring_examples_run():
 
     result = doctest.testmod(fem.orthotropic)
     assert result.attempted > 0 and result.failed == 0
+
+
+# -- the case file -----------------------------------------------------------------------------
+
+CASE = """
+[section]
+mesh_size = "2 mm"
+[[section.shape]]
+kind = "rectangle"
+width = "20 mm"
+height = "20 mm"
+edges = { left = "outline", right = "outline", top = "outline", bottom = "outline" }
+[material]
+conductivity = CONDUCTIVITY
+density = "4000 kg/m^3"
+specific_heat = "1000 J/(kg*K)"
+[boundaries.outline]
+convection = { coefficient = "1000 W/(m^2*K)", ambient = "0 degC" }
+[initial]
+temperature = "100 degC"
+[run]
+end_time = "1 min"
+"""
+
+
+def _case(tmp_path, conductivity: str):
+    from advisor.casefile import load_case
+
+    path = tmp_path / "case.toml"
+    path.write_text(CASE.replace("CONDUCTIVITY", conductivity))
+    return load_case(path)
+
+
+def test_case_file_takes_principal_values_or_a_tensor(tmp_path):
+    principal = _case(tmp_path, '{ principal = ["40 W/(m*K)", "4 W/(m*K)"], angle = "30 deg" }')
+    material = next(iter(principal.materials.values()))
+    assert material.orthotropic == Orthotropic(40.0, 4.0, 30.0)
+    assert material.conductivity == 4.0
+    tensor = Orthotropic(40.0, 4.0, 30.0).tensor()
+    rows = ", ".join(
+        "[" + ", ".join(f'"{v!r} W/(m*K)"' for v in row) + "]" for row in tensor.tolist()
+    )
+    given = _case(tmp_path, f"{{ tensor = [{rows}] }}")
+    back = next(iter(given.materials.values())).orthotropic
+    assert (back.first, back.second, back.angle) == pytest.approx((40.0, 4.0, 30.0))
+
+
+@pytest.mark.parametrize(
+    ("conductivity", "message"),
+    [
+        (
+            '{ principal = ["40 W/(m*K)"] }',
+            r"line 10: material\.conductivity\.principal: expected two conductivities",
+        ),
+        (
+            '{ principal = ["40 W/(m*K)", "0 W/(m*K)"] }',
+            r"material\.conductivity\.principal: conductivities must be > 0",
+        ),
+        (
+            '{ principal = ["40 W/(m*K)", "4 W/(m*K)"], angle = "3 m" }',
+            r"material\.conductivity\.angle: expected an angle",
+        ),
+        (
+            '{ tensor = [["1 W/(m*K)", "2 W/(m*K)"], ["2 W/(m*K)", "1 W/(m*K)"]] }',
+            r"material\.conductivity\.tensor: .*positive definite",
+        ),
+        (
+            '{ principal = ["40 W/(m*K)", "4 W/(m*K)"], angel = "3 deg" }',
+            r"material\.conductivity\.angel",
+        ),
+    ],
+)
+def test_case_file_errors_name_the_key(tmp_path, conductivity, message):
+    from advisor.casefile import CaseError
+
+    with pytest.raises(CaseError, match=message):
+        _case(tmp_path, conductivity)
