@@ -377,12 +377,25 @@ class Material:
         """k in W/(m·K) (the mid-range value for a table)."""
         return self._nominal(self.conductivity)
 
+    def conduction_coefficients(self, temperature):
+        """k (W/(m·K)) at ``temperature`` (°C, an array), or (k_xx, k_xy, k_yy) for an
+        orthotropic material: what the conduction residual takes at the quadrature points."""
+        if self.orthotropic is not None:
+            return self.orthotropic.components_at(temperature)
+        return self.conductivity_at(temperature)
+
+    def conduction_slopes(self, temperature):
+        """dk/dT (W/(m·K²)) at ``temperature``, or d(k_xx, k_xy, k_yy)/dT when orthotropic."""
+        if self.orthotropic is not None:
+            return self.orthotropic.component_slopes(temperature)
+        return self.conductivity_slope(temperature)
+
     def conduction_at(self, temperature: float | None = None):
         """What the conduction term is assembled with: k in W/(m·K) (at ``temperature`` °C,
         or the mid-range value for a table when None), or the (2, 2) tensor of an orthotropic
         material."""
         if self.orthotropic is not None:
-            return self.orthotropic.tensor()
+            return self.orthotropic.tensor(temperature)
         if temperature is None:
             return self.nominal_conductivity
         return float(self.conductivity_at(temperature))

@@ -248,7 +248,7 @@ class ConductionSystem:
                     continue
                 t = operator.interpolate(temperature)
                 total = total + operator.conduction_tangent(
-                    material.conductivity_at(t), material.conductivity_slope(t), temperature
+                    material.conduction_coefficients(t), material.conduction_slopes(t), temperature
                 )
         for edge, condition in self.flowing():
             tangent = condition.outflow_tangent(edge, temperature, time)
@@ -268,7 +268,7 @@ class ConductionSystem:
             if isinstance(material.conductivity, float):
                 continue
             t = operator.interpolate(temperature)
-            conductivity = material.conductivity_at(t)
+            conductivity = material.conduction_coefficients(t)  # k, or K's entries
             total += operator.conduction(conductivity, temperature)
         return total
 

@@ -242,6 +242,59 @@ def test_axisymmetric_cylinder_with_radial_and_axial_conductivities():
     assert solution.checks.energy_balance_error < 1e-8
 
 
+def test_temperature_dependent_principal_values_at_steady_state():
+    """Principal values k₁(T) = κ₁(1 + βT), k₂(T) = κ₂(1 + βT) (tables, linear in T) on the
+    square turned by 30°, direction 1 along its turned x side, one face held at T_h, the
+    opposite at T_c, the other two insulated. With U = ∫(1 + βT) dT = T + βT²/2 (Kirchhoff's
+    transformation, Carslaw & Jaeger 2nd ed. §1.7, from memory) the steady equation becomes
+    ∇·(K₀∇U) = 0 with U linear across the faces, so T(ξ) = (√(1 + 2βU(ξ)) − 1)/β exactly and
+    the heat flow per metre is κ₁·(U_h − U_c). In the x, y frame K has k_xy(T) ≠ 0, so the
+    whole tensor path (residual and tangent with K'(T)) is used. A run of 30 slow diffusion
+    times leaves exp(−π²/4·30) of the start; the tables' linear interpolation is exact for a
+    linear k, so what remains is the O(h²) error of P1 for the nonlinear T(ξ) (β·ΔT ≈ 1 makes
+    its curvature mild) and the quadrature of k(T): 2e-4 of T_h − T_c (3.4e-5 measured) and
+    1e-4 of the heat flow (round-off measured) are the tolerances."""
+    from fem import FixedTemperature, PropertyTable
+
+    beta, hot, cold = 0.004, 300.0, 20.0  # 1/K, °C (invented)
+    temperatures = (-100.0, 1000.0)  # wide: Newton's first iterates overshoot the range
+    first = PropertyTable(temperatures, tuple(ALONG * (1 + beta * t) for t in temperatures))
+    second = PropertyTable(temperatures, tuple(ACROSS * (1 + beta * t) for t in temperatures))
+    material = Material(Orthotropic(first, second, angle=30.0), DENSITY, SPECIFIC_HEAT)
+    square = Rectangle(
+        2 * HALF,
+        2 * HALF,
+        corner=(-HALF, -HALF),
+        edge_names={"left": "hot", "right": "cold", "top": "sides", "bottom": "sides"},
+    ).rotated(30.0)
+    model = ThermalModel(
+        square.mesh(MESH_SIZE),
+        material,
+        boundaries={
+            "hot": FixedTemperature(hot),
+            "cold": FixedTemperature(cold),
+            "sides": Insulated("insulated"),
+        },
+        initial_temperature=cold,
+        probes=probes(30.0),
+    )
+    end = 30 * SLOW_TIME * (1 + beta * cold)  # the slowest diffusion is at the lowest k
+    solution = solve(model, end, time_step=end / 300)
+
+    def kirchhoff(t):
+        return t + beta * t * t / 2
+
+    for name, (xi, _) in LOCAL_POINTS.items():
+        u = kirchhoff(hot) + (kirchhoff(cold) - kirchhoff(hot)) * (xi + 1) / 2
+        exact = (math.sqrt(1 + 2 * beta * u) - 1) / beta
+        error = abs(solution.probes[name][-1] - exact) / (hot - cold)
+        assert error < 2e-4, f"{name}: {solution.probes[name][-1]:.4f} against {exact:.4f} degC"
+    flow = ALONG * (kirchhoff(hot) - kirchhoff(cold))  # W per metre of depth
+    assert solution.heat_flow["hot"][-1] == pytest.approx(flow, rel=1e-4)
+    assert solution.heat_flow["cold"][-1] == pytest.approx(-flow, rel=1e-4)
+    assert solution.stats.newton_iterations > solution.stats.steps  # it is nonlinear
+
+
 # -- the value object and the scalar it stands for -------------------------------------------
 
 
@@ -299,6 +352,38 @@ def test_the_docstring_examples_run():
     assert result.attempted > 0 and result.failed == 0
 
 
+def test_the_lower_principal_value_of_crossing_tables():
+    # Both tables are piecewise linear, so the lower of them is piecewise linear with corners
+    # at their points and where they cross: compared on a fine grid with numpy's minimum.
+    from fem import PropertyTable
+
+    first = PropertyTable((0.0, 500.0, 1000.0), (30.0, 10.0, 12.0))
+    second = PropertyTable((0.0, 1000.0), (15.0, 25.0))
+    lower = Orthotropic(first, second).smallest
+    grid = np.linspace(0.0, 1000.0, 2001)
+    expected = np.minimum(np.interp(grid, first.temperatures, first.values), 15.0 + grid / 100)
+    assert np.allclose(lower(grid), expected, rtol=1e-12, atol=1e-12)
+
+
+def test_heat_flux_of_a_linear_field_is_minus_k_times_the_gradient():
+    """A linear field T = g·x has ∇T = g on every triangle, so the recovered flux is −K·g
+    exactly, K written out from the principal values here."""
+    from fem.heat_flux import vertex_heat_flux
+
+    model = turned_bar().model
+    gradient = np.array([300.0, -200.0])  # K/m
+    x, y = model.section.mesh.p
+    flux = vertex_heat_flux(model, gradient[0] * x + gradient[1] * y)
+    c, s = math.cos(math.radians(30)), math.sin(math.radians(30))
+    tensor = np.array(
+        [
+            [ALONG * c * c + ACROSS * s * s, (ALONG - ACROSS) * c * s],
+            [(ALONG - ACROSS) * c * s, ALONG * s * s + ACROSS * c * c],
+        ]
+    )
+    assert np.allclose(flux[:, :2], -(tensor @ gradient), rtol=1e-9)
+
+
 # -- the case file -----------------------------------------------------------------------------
 
 CASE = """
@@ -342,6 +427,11 @@ def test_case_file_takes_principal_values_or_a_tensor(tmp_path):
     given = _case(tmp_path, f"{{ tensor = [{rows}] }}")
     back = next(iter(given.materials.values())).orthotropic
     assert (back.first, back.second, back.angle) == pytest.approx((40.0, 4.0, 30.0))
+    table = '{ temperatures = ["0 degC", "400 degC"], values = ["40 W/(m*K)", "30 W/(m*K)"] }'
+    tabled = _case(tmp_path, f'{{ principal = [{table}, "4 W/(m*K)"], angle = "90 deg" }}')
+    material = next(iter(tabled.materials.values()))
+    assert material.orthotropic.first(200.0) == pytest.approx(35.0)
+    assert material.conductivity(200.0) == pytest.approx(4.0)  # the lower at every T
 
 
 @pytest.mark.parametrize(

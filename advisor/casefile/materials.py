@@ -159,11 +159,22 @@ def _orthotropic(table: Table) -> Orthotropic:
     values = table.raw("principal")
     if not (isinstance(values, list) and len(values) == 2):
         table.fail("principal", f"expected two conductivities [k1, k2], got {values!r}")
-    first, second = (_conductivity(table, "principal", value) for value in values)
+    first, second = (_principal(table, value) for value in values)
     angle = table.get("angle", "angle", 0.0)
     table.done()
     keys = {"first": "principal", "second": "principal"}
     return build(table, Orthotropic, first, second, angle, keys=keys)
+
+
+def _principal(table: Table, value):
+    """A principal value: a conductivity, or {temperatures = [...], values = [...]}."""
+    if not isinstance(value, dict):
+        return _conductivity(table, "principal", value)
+    entries = Table(value, table.key("principal"), table.context)
+    temperatures = _list(entries, "temperatures", "temperature")
+    values = _list(entries, "values", "conductivity")
+    entries.done()
+    return build(entries, PropertyTable, temperatures, values, default="values")
 
 
 def _conductivity(table: Table, key: str, value, signed: bool = False) -> float:
