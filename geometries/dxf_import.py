@@ -14,6 +14,8 @@ import math
 from collections.abc import Iterable
 from pathlib import Path
 
+import numpy as np
+
 from .dxf_loops import Loop, Piece, check_loops, join_pieces, shape_of
 from .errors import GeometryError
 from .primitives import EdgeArc, EdgeEllipse
@@ -161,29 +163,27 @@ def _units(document, units: str | None) -> str:
 
 
 def _chosen(document, layers: Iterable[str] | None) -> list:
-    """The model space's entities on ``layers`` (all when None), ignoring annotations."""
-    space = document.modelspace()
-    present = sorted({e.dxf.layer for e in space if e.dxftype() not in IGNORED})
-    if layers is not None:
-        if isinstance(layers, str):
-            layers = [layers]
-        wanted = {str(name) for name in layers}
-        entities = [e for e in space if e.dxf.layer in wanted and e.dxftype() not in IGNORED]
-    else:
-        entities = [e for e in space if e.dxftype() not in IGNORED]
-    if not entities:
-        chosen = "the drawing" if layers is None else f"the layers {sorted(wanted)}"
-        close = [
-            difflib.get_close_matches(name, present, n=1)
-            for name in (sorted(wanted) if layers is not None else [])
-        ]
+    """The model space's entities on ``layers`` (all when None), ignoring annotations; every
+    layer asked for must hold some."""
+    drawn = [e for e in document.modelspace() if e.dxftype() not in IGNORED]
+    present = sorted({e.dxf.layer for e in drawn})
+    if layers is None:
+        if not drawn:
+            raise GeometryError(
+                "the drawing has no lines, arcs, polylines or circles", argument="layers"
+            )
+        return drawn
+    wanted = [layers] if isinstance(layers, str) else [str(name) for name in layers]
+    empty = [name for name in wanted if name not in present]
+    if empty:
+        close = [difflib.get_close_matches(name, present, n=1) for name in empty]
         hint = "; did you mean " + ", ".join(repr(c[0]) for c in close if c) + "?"
         raise GeometryError(
-            f"no lines, arcs, polylines or circles on {chosen}; the drawing's layers with "
-            f"entities: {present or 'none'}" + (hint if any(close) else ""),
+            f"no lines, arcs, polylines or circles on the layers {empty}; the drawing's "
+            f"layers with entities: {present or 'none'}" + (hint if any(close) else ""),
             argument="layers",
         )
-    return entities
+    return [e for e in drawn if e.dxf.layer in set(wanted)]
 
 
 def _loops_and_pieces(document, entities: list, group_by: str) -> tuple[list, list]:
@@ -309,8 +309,6 @@ def _ellipse(entity, group: str, origin: str) -> Loop:
 
 def _extent(loops: list[Loop], pieces: list[Piece]) -> float:
     """The larger side of the box around everything read, in drawing units."""
-    import numpy as np
-
     points = [loop.polyline() for loop in loops] + [p.sample(3) for p in pieces]
     stacked = np.vstack(points)
     return float(np.ptp(stacked, axis=0).max()) or 1.0

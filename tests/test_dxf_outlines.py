@@ -214,6 +214,9 @@ def test_no_entities_on_the_chosen_layers_lists_the_layers(tmp_path):
 
     with pytest.raises(GeometryError, match=r"no lines.*\['outline'\].*\['0', 'sketch'\]"):
         read_dxf(_saved(tmp_path, draw), layers=["outline"])
+    # a misspelt layer beside a right one is refused too, with a suggestion
+    with pytest.raises(GeometryError, match=r"\['sketchs'\].*did you mean 'sketch'\?"):
+        read_dxf(_saved(tmp_path, draw), layers=["0", "sketchs"])
 
 
 def test_a_spline_is_refused_with_advice(tmp_path):
