@@ -97,10 +97,10 @@ ARCS = {
 }
 
 
-def chord_bounds(longest_edge: float) -> tuple[float, dict[str, float]]:
+def chord_bounds(longest_edge: float, arcs_by_group=None) -> tuple[float, dict[str, float]]:
     """The sagitta-formula bounds (module docstring) on the area and each group's length."""
     area, lengths = 0.0, {}
-    for group, arcs in ARCS.items():
+    for group, arcs in (arcs_by_group or ARCS).items():
         lengths[group] = 0.0
         for radius, sweep in arcs:
             theta = 2 * math.asin(min(longest_edge / (2 * radius), 1.0))
@@ -160,6 +160,26 @@ def test_colours_name_the_edge_groups(tmp_path):
     drawing.saveas(path)
     shape = read_dxf(path, units="m", group_by="colour")
     assert sorted(e.group for e in shape.edges()) == ["colour_1"] * 3 + ["colour_5"]
+
+
+def test_a_part_inside_a_hole_is_a_part_again(tmp_path):
+    """A square with a round hole, a round core inside the hole and a separate round wire:
+    loops alternate part, hole, part by nesting depth. Area: 40² − π·10² + π·4² + π·5² mm²,
+    within the sagitta bound of the three circles' chords."""
+    drawing = ezdxf.new()
+    drawing.header["$INSUNITS"] = 4
+    space = drawing.modelspace()
+    space.add_lwpolyline([(0, 0), (40, 0), (40, 40), (0, 40)], close=True, dxfattribs=_layer("a"))
+    space.add_circle((20, 20), 10, dxfattribs=_layer("hole"))
+    space.add_circle((20, 20), 4, dxfattribs=_layer("core"))
+    space.add_circle((60, 20), 5, dxfattribs=_layer("wire"))
+    drawing.saveas(tmp_path / "nested.dxf")
+    mesh = Section(read_dxf(tmp_path / "nested.dxf")).mesh(MESH_SIZE)
+    assert set(mesh.edge_groups) == {"a", "hole", "core", "wire"}
+    circles = {g: [(r * MM, 2 * math.pi)] for g, r in (("hole", 10), ("core", 4), ("wire", 5))}
+    bound, _ = chord_bounds(longest_boundary_edge(mesh), circles)
+    area = (40**2 - math.pi * 10**2 + math.pi * 4**2 + math.pi * 5**2) * MM**2
+    assert abs(mesh.facts.area - area) <= bound
 
 
 # -- malformed drawings ---------------------------------------------------------------------
