@@ -182,6 +182,28 @@ def test_a_part_inside_a_hole_is_a_part_again(tmp_path):
     assert abs(mesh.facts.area - area) <= bound
 
 
+def test_entities_seen_from_below_are_mirrored(tmp_path):
+    """Entities with extrusion (0, 0, −1) have their object x axis along −x (the DXF
+    reference's arbitrary-axis rule, from memory): a circle at object (10, 0) lies at
+    (−10, 0), and two half arcs about object (0, 5) close a circle about (0, 5)."""
+    drawing = ezdxf.new()
+    drawing.header["$INSUNITS"] = 4
+    space = drawing.modelspace()
+    below = {"extrusion": (0, 0, -1)}
+    space.add_circle((10, 0), 3, dxfattribs=below)
+    space.add_arc((0, 5), 2, 0, 180, dxfattribs=below)
+    space.add_arc((0, 5), 2, 180, 360, dxfattribs=below)
+    drawing.saveas(tmp_path / "below.dxf")
+    shape = read_dxf(tmp_path / "below.dxf")
+    arcs = list(shape.edges())
+    assert sorted((round(a.centre[0] / MM, 9), round(a.centre[1] / MM, 9)) for a in arcs) == [
+        (-10.0, 0.0),
+        (0.0, 5.0),
+        (0.0, 5.0),
+    ]
+    assert sum(a.sweep for a in arcs if not a.full) == pytest.approx(-2 * math.pi)
+
+
 # -- malformed drawings ---------------------------------------------------------------------
 
 
