@@ -30,6 +30,7 @@ _LAZY = {
     "Material": ".materials",
     "PropertyRangeWarning": ".materials",
     "PropertyTable": ".materials",
+    "Orthotropic": ".orthotropic",
     "EnthalpyTable": ".enthalpy",
     "ThermalModel": ".model",
     "Constant": ".schedules",
@@ -63,6 +64,7 @@ __all__ = [
     "Insulated",
     "Material",
     "ModelError",
+    "Orthotropic",
     "Periodic",
     "PiecewiseLinear",
     "PropertyRangeWarning",
@@ -103,6 +105,7 @@ if TYPE_CHECKING:
     from .fields import FieldSeries
     from .materials import Material, PropertyRangeWarning, PropertyTable
     from .model import ThermalModel
+    from .orthotropic import Orthotropic
     from .schedules import Constant, Periodic, PiecewiseLinear, Sinusoid, Steps
     from .solution import RunChecks, Solution, SolverStats
     from .system import ConductionSystem

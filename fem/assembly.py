@@ -72,12 +72,7 @@ def _matrices(model: ThermalModel, region_bases: dict[str, Basis]):
             volumetric_heat_capacity=float(material.volumetric_heat_capacity),
             axisymmetric=axisymmetric,
         )
-        s = asm(
-            forms.conduction,
-            region_basis,
-            conductivity=material.nominal_conductivity,
-            axisymmetric=axisymmetric,
-        )
+        s = forms.conduction_matrix(region_basis, material.conduction_at(), axisymmetric)
         capacity = c if capacity is None else capacity + c
         stiffness = s if stiffness is None else stiffness + s
     return capacity.tocsr(), stiffness.tocsr()

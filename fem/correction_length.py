@@ -183,12 +183,8 @@ def _matrices(model: ThermalModel, basis: Basis, element, temperature: float):
         material = model.materials[region]
         whole = len(cells) == mesh.t.shape[1]
         region_basis = basis if whole else Basis(mesh, element, elements=cells)
-        k = asm(
-            forms.conduction,
-            region_basis,
-            conductivity=float(material.conductivity_at(temperature)),
-            axisymmetric=axisymmetric,
-        )
+        conduction = material.conduction_at(temperature)  # k, or an orthotropic tensor
+        k = forms.conduction_matrix(region_basis, conduction, axisymmetric)
         c = asm(
             forms.heat_capacity,
             region_basis,

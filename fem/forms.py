@@ -13,7 +13,7 @@ that depend on temperature.
 """
 
 import numpy as np
-from skfem import BilinearForm, LinearForm
+from skfem import BilinearForm, LinearForm, asm
 from skfem.helpers import dot, grad
 
 
@@ -32,6 +32,33 @@ def heat_capacity(u, v, w):
 def conduction(u, v, w):
     """Stiffness entries ∫ k ∇φ_j·∇φ_i dV; ``w.conductivity`` in W/(m·K)."""
     return w.conductivity * dot(grad(u), grad(v)) * _measure(w)
+
+
+@BilinearForm
+def conduction_tensor(u, v, w):
+    """Stiffness entries ∫ (K ∇φ_j)·∇φ_i dV of an orthotropic region; K = [[k_xx, k_xy],
+    [k_xy, k_yy]] from ``w.k_xx``, ``w.k_xy``, ``w.k_yy`` in W/(m·K) (x is r in an
+    axisymmetric section, where the same form holds: ∇·q = (1/r)∂(r q_r)/∂r + ∂q_z/∂z)."""
+    du, dv = grad(u), grad(v)
+    flux_x = w.k_xx * du[0] + w.k_xy * du[1]
+    flux_y = w.k_xy * du[0] + w.k_yy * du[1]
+    return (flux_x * dv[0] + flux_y * dv[1]) * _measure(w)
+
+
+def conduction_matrix(basis, conductivity, axisymmetric: bool):
+    """The stiffness of one region for a ``conductivity`` k (W/(m·K)) or, orthotropic, its
+    (2, 2) tensor: the isotropic form stays the one for a number."""
+    if np.ndim(conductivity) == 0:
+        return asm(conduction, basis, conductivity=float(conductivity), axisymmetric=axisymmetric)
+    k = np.asarray(conductivity, dtype=float)
+    return asm(
+        conduction_tensor,
+        basis,
+        k_xx=float(k[0, 0]),
+        k_xy=float(k[0, 1]),
+        k_yy=float(k[1, 1]),
+        axisymmetric=axisymmetric,
+    )
 
 
 @BilinearForm

@@ -14,6 +14,7 @@ import numpy as np
 from scipy import sparse
 
 from .materials import Material, PropertyTable
+from .orthotropic import Orthotropic
 
 if TYPE_CHECKING:
     from .model import ThermalModel
@@ -64,12 +65,15 @@ class HeatFluxRecovery:
         self._area = 0.5 * np.abs(self._det)
         self._constant_k = np.full(t.shape[1], np.nan)
         self._tabulated: list[tuple[np.ndarray, Material]] = []
+        self._tensors: list[tuple[np.ndarray, Orthotropic]] = []
         for name, material in model.materials.items():
             cells = np.asarray(section.regions[name], dtype=np.intp)
             if isinstance(material.conductivity, PropertyTable):
                 self._tabulated.append((cells, material))
             else:
                 self._constant_k[cells] = material.conductivity
+            if material.orthotropic is not None:  # q = −K∇T with the whole tensor
+                self._tensors.append((cells, material.orthotropic))
 
     def element(self, field: np.ndarray) -> np.ndarray:
         """Heat flux −k∇T in W/m² on every triangle, shape (n_triangles, 2).
@@ -138,7 +142,13 @@ class HeatFluxRecovery:
         minus_k = -self._conductivity(corner)
         gradient_x = (self._d2y * a - self._d1y * b) / self._det
         gradient_y = (self._d1x * b - self._d2x * a) / self._det
-        return minus_k * gradient_x, minus_k * gradient_y
+        flux_x, flux_y = minus_k * gradient_x, minus_k * gradient_y
+        for cells, orthotropic in self._tensors:  # K at the triangles' mean temperatures
+            k_xx, k_xy, k_yy = orthotropic.components_at(corner[:, cells].mean(axis=0))
+            gx, gy = gradient_x[cells], gradient_y[cells]
+            flux_x[cells] = -(k_xx * gx + k_xy * gy)
+            flux_y[cells] = -(k_xy * gx + k_yy * gy)
+        return flux_x, flux_y
 
 
 def vertex_heat_flux(model: ThermalModel, field: np.ndarray) -> np.ndarray:

@@ -10,6 +10,7 @@ import numpy as np
 
 from .enthalpy import EnthalpyTable, smooth_fraction, smooth_fraction_slope
 from .errors import ModelError, shown
+from .orthotropic import Orthotropic
 from .temperatures import ABSOLUTE_ZERO
 
 
@@ -133,8 +134,15 @@ class Material:
 
     Parameters
     ----------
-    conductivity : float or PropertyTable
-        Thermal conductivity k in W/(m·K); > 0.
+    conductivity : float, PropertyTable or Orthotropic
+        Thermal conductivity k in W/(m·K); > 0. An :class:`Orthotropic` value (two principal
+        values and an angle) is kept in ``orthotropic``, and ``conductivity`` becomes its
+        smaller principal value: the one that every scalar use of a conductivity takes
+        (Biot numbers, the lumped models, the correction length's quotation, the diffusion
+        time of the surface elements). The smaller value gives the largest Biot number and the
+        slowest diffusion, the cautious side of each of those judgements, as the lowest
+        conductivity of several regions already does. The field itself is solved with the
+        whole tensor.
     density : float
         Density ρ in kg/m³; > 0 (constant: mass does not change with temperature here).
     specific_heat : float or PropertyTable
@@ -153,12 +161,17 @@ class Material:
     specific_enthalpy : EnthalpyTable, optional
         The enthalpy directly (latent heat included), instead of ``specific_heat`` and
         ``latent_heat``; see :meth:`from_enthalpy`.
+    orthotropic : Orthotropic, optional
+        The principal conductivities and their direction (set from ``conductivity``).
 
     Examples
     --------
     >>> steel = Material(conductivity=45.0, density=7850.0, specific_heat=475.0)
     >>> round(steel.diffusivity * 1e6, 2)  # mm²/s
     12.07
+    >>> laminate = Material(Orthotropic(20.0, 0.5, angle=30.0), 1900.0, 1100.0)
+    >>> laminate.conductivity, laminate.orthotropic.first
+    (0.5, 20.0)
     """
 
     conductivity: Property
@@ -170,6 +183,7 @@ class Material:
     solidus: float | None = None
     liquidus: float | None = None
     specific_enthalpy: EnthalpyTable | None = None
+    orthotropic: Orthotropic | None = None
 
     @classmethod
     def from_enthalpy(
@@ -203,6 +217,7 @@ class Material:
 
     def __post_init__(self) -> None:
         self._check_phase_change()
+        self._take_orthotropic()
         object.__setattr__(
             self, "conductivity", _check_property(self.conductivity, "conductivity", "W/(m*K)")
         )
@@ -213,6 +228,26 @@ class Material:
         object.__setattr__(
             self, "specific_heat", _check_property(self.specific_heat, "specific_heat", "J/(kg*K)")
         )
+
+    def _take_orthotropic(self) -> None:
+        """An orthotropic conductivity moves to ``orthotropic``; ``conductivity`` becomes its
+        smaller principal value (see the class's parameters)."""
+        if isinstance(self.conductivity, Orthotropic):
+            if self.orthotropic is not None and self.orthotropic != self.conductivity:
+                raise ModelError(
+                    "Material takes the orthotropic conductivity once, as conductivity or as "
+                    "orthotropic",
+                    argument="conductivity",
+                )
+            object.__setattr__(self, "orthotropic", self.conductivity)
+        if self.orthotropic is None:
+            return
+        if not isinstance(self.orthotropic, Orthotropic):
+            raise ModelError(
+                f"Material orthotropic must be an Orthotropic, got {self.orthotropic!r}",
+                argument="conductivity",
+            )
+        object.__setattr__(self, "conductivity", self.orthotropic.smallest)
 
     def _check_phase_change(self) -> None:
         latent = self.latent_heat
@@ -341,6 +376,29 @@ class Material:
     def nominal_conductivity(self) -> float:
         """k in W/(m·K) (the mid-range value for a table)."""
         return self._nominal(self.conductivity)
+
+    def conduction_coefficients(self, temperature):
+        """k (W/(m·K)) at ``temperature`` (°C, an array), or (k_xx, k_xy, k_yy) for an
+        orthotropic material: what the conduction residual takes at the quadrature points."""
+        if self.orthotropic is not None:
+            return self.orthotropic.components_at(temperature)
+        return self.conductivity_at(temperature)
+
+    def conduction_slopes(self, temperature):
+        """dk/dT (W/(m·K²)) at ``temperature``, or d(k_xx, k_xy, k_yy)/dT when orthotropic."""
+        if self.orthotropic is not None:
+            return self.orthotropic.component_slopes(temperature)
+        return self.conductivity_slope(temperature)
+
+    def conduction_at(self, temperature: float | None = None):
+        """What the conduction term is assembled with: k in W/(m·K) (at ``temperature`` °C,
+        or the mid-range value for a table when None), or the (2, 2) tensor of an orthotropic
+        material."""
+        if self.orthotropic is not None:
+            return self.orthotropic.tensor(temperature)
+        if temperature is None:
+            return self.nominal_conductivity
+        return float(self.conductivity_at(temperature))
 
     @property
     def diffusivity(self) -> float:

@@ -140,14 +140,25 @@ class QuadratureOperator:
             weighted = weighted.reshape(self.shape) @ np.ones(self.shape[1])
         return np.concatenate((weighted, weighted))
 
-    def conduction(self, conductivity: np.ndarray, field: np.ndarray) -> np.ndarray:
-        """∫ k ∇T·∇φ_i for ``conductivity`` k at the quadrature points and nodal ``field``."""
+    def conduction(self, conductivity, field: np.ndarray) -> np.ndarray:
+        """∫ k ∇T·∇φ_i for ``conductivity`` k at the quadrature points and nodal ``field``;
+        with k a tuple (k_xx, k_xy, k_yy) of an orthotropic region, ∫ (K ∇T)·∇φ_i."""
+        if isinstance(conductivity, tuple):
+            k_xx, k_xy, k_yy = (self._weighted(k) for k in conductivity)
+            m = len(k_xx) // 2  # rows of one direction (points, or elements)
+            k_xx, k_xy, k_yy = k_xx[:m], k_xy[:m], k_yy[:m]
+            gradient = self.gradient @ field
+            g_x, g_y = gradient[:m], gradient[m:]
+            flux = np.concatenate((k_xx * g_x + k_xy * g_y, k_xy * g_x + k_yy * g_y))
+            return self.gradient_transposed @ flux
         return self.gradient_transposed @ (self._weighted(conductivity) * (self.gradient @ field))
 
     def conduction_tangent(
         self, conductivity: np.ndarray, slope: np.ndarray, field: np.ndarray
     ) -> sp.csr_matrix:
         """∫ (k ∇δ + k'(T) δ ∇T)·∇φ_i: the derivative of :meth:`conduction` for k(T)."""
+        if isinstance(conductivity, tuple):
+            return self._tensor_tangent(conductivity, slope, field)
         grads, phi = self._grads, self._phi
         conducting = (self.weights * conductivity).reshape(self.shape)
         entries = np.einsum("idep,jdep,ep->eij", grads, grads, conducting, optimize=True)
@@ -155,6 +166,27 @@ class QuadratureOperator:
         along = np.einsum("idep,dep->iep", grads, gradient, optimize=True)  # ∇φ_i·∇T
         sloping = (self.weights * slope).reshape(self.shape)
         entries += np.einsum("iep,jep,ep->eij", along, phi, sloping, optimize=True)
+        return self._assembled(entries)
+
+    def _tensor_tangent(self, components, slopes, field: np.ndarray) -> sp.csr_matrix:
+        """∫ (K ∇δ + K'(T) δ ∇T)·∇φ_i, K = [[k_xx, k_xy], [k_xy, k_yy]]: the derivative of
+        :meth:`conduction` for an orthotropic K(T)."""
+        grads, phi = self._grads, self._phi
+        k_xx, k_xy, k_yy = ((self.weights * k).reshape(self.shape) for k in components)
+        tensor = ((k_xx, k_xy), (k_xy, k_yy))
+        entries = sum(
+            np.einsum("iep,jep,ep->eij", grads[:, a], grads[:, b], tensor[a][b], optimize=True)
+            for a in range(2)
+            for b in range(2)
+        )
+        gradient = np.einsum("idep,ie->dep", grads, field[self._dofs], optimize=True)  # ∇T
+        s_xx, s_xy, s_yy = (np.reshape(s, self.shape) for s in slopes)
+        flux = np.array(
+            [s_xx * gradient[0] + s_xy * gradient[1], s_xy * gradient[0] + s_yy * gradient[1]]
+        )  # K'(T) ∇T
+        along = np.einsum("idep,dep->iep", grads, flux, optimize=True)  # ∇φ_i·K'∇T
+        weights = self.weights.reshape(self.shape)
+        entries = entries + np.einsum("iep,jep,ep->eij", along, phi, weights, optimize=True)
         return self._assembled(entries)
 
 

@@ -183,12 +183,9 @@ class ConductionSystem:
         capacity = sp.csr_matrix((self.size, self.size))
         for region, basis in self.region_bases.items():
             material = self.model.materials[region]
-            if isinstance(material.conductivity, float):
-                stiffness = stiffness + asm(
-                    forms.conduction,
-                    basis,
-                    conductivity=material.conductivity,
-                    axisymmetric=self.axisymmetric,
+            if isinstance(material.conductivity, float):  # an orthotropic one's tensor too
+                stiffness = stiffness + forms.conduction_matrix(
+                    basis, material.conduction_at(), self.axisymmetric
                 )
             if material.constant_capacity:
                 capacity = capacity + asm(
@@ -251,7 +248,7 @@ class ConductionSystem:
                     continue
                 t = operator.interpolate(temperature)
                 total = total + operator.conduction_tangent(
-                    material.conductivity_at(t), material.conductivity_slope(t), temperature
+                    material.conduction_coefficients(t), material.conduction_slopes(t), temperature
                 )
         for edge, condition in self.flowing():
             tangent = condition.outflow_tangent(edge, temperature, time)
@@ -271,7 +268,7 @@ class ConductionSystem:
             if isinstance(material.conductivity, float):
                 continue
             t = operator.interpolate(temperature)
-            conductivity = material.conductivity_at(t)
+            conductivity = material.conduction_coefficients(t)  # k, or K's entries
             total += operator.conduction(conductivity, temperature)
         return total
 

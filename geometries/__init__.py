@@ -29,6 +29,7 @@ from .shapes import Annulus, Circle, Ellipse, Polygon, Rectangle
 # Public functions whose modules load heavy libraries, imported on first access.
 _LAZY = {
     "mesh_section": ".meshing",
+    "read_dxf": ".dxf_import",
     "read_section_mesh": ".mesh_import",
     "section_mesh_from_arrays": ".mesh_arrays",
 }
@@ -73,6 +74,7 @@ __all__ = [
     "check_mesh_options",
     "mesh_section",
     "profiles",
+    "read_dxf",
     "read_section_mesh",
     "section_mesh_from_arrays",
 ]

@@ -3,7 +3,7 @@ library by name, or properties given as constants or tables of temperature."""
 
 from __future__ import annotations
 
-from fem import EnthalpyTable, Material, PropertyTable, solids
+from fem import EnthalpyTable, Material, Orthotropic, PropertyTable, solids
 
 from .reader import Table, suggest
 from .schema import MATERIAL_PROPERTIES, PHASE_CHANGE
@@ -134,10 +134,55 @@ def _property(spec: Table, key: str, kind: str):
     if not isinstance(raw, dict):
         return spec.get(key, kind)
     table = Table(raw, spec.key(key), spec.context)
+    if key == "conductivity" and ("principal" in raw or "tensor" in raw):
+        return _orthotropic(table)
     temperatures = _list(table, "temperatures", "temperature")
     values = _list(table, "values", kind)
     table.done()
     return build(spec, PropertyTable, temperatures, values, default=key)
+
+
+def _orthotropic(table: Table) -> Orthotropic:
+    """``{principal = [k1, k2], angle = ...}`` (the angle of direction 1 from x, or r) or
+    ``{tensor = [[k_xx, k_xy], [k_xy, k_yy]]}``."""
+    if "tensor" in table.data:
+        rows = table.raw("tensor")
+        if not (isinstance(rows, list) and len(rows) == 2):
+            table.fail("tensor", f"expected [[k_xx, k_xy], [k_xy, k_yy]], got {rows!r}")
+        tensor = []
+        for row in rows:
+            if not (isinstance(row, list) and len(row) == 2):
+                table.fail("tensor", f"expected [[k_xx, k_xy], [k_xy, k_yy]], got {rows!r}")
+            tensor.append([_conductivity(table, "tensor", value, signed=True) for value in row])
+        table.done()
+        return build(table, Orthotropic.from_tensor, tensor, default="tensor")
+    values = table.raw("principal")
+    if not (isinstance(values, list) and len(values) == 2):
+        table.fail("principal", f"expected two conductivities [k1, k2], got {values!r}")
+    first, second = (_principal(table, value) for value in values)
+    angle = table.get("angle", "angle", 0.0)
+    table.done()
+    keys = {"first": "principal", "second": "principal"}
+    return build(table, Orthotropic, first, second, angle, keys=keys)
+
+
+def _principal(table: Table, value):
+    """A principal value: a conductivity, or {temperatures = [...], values = [...]}."""
+    if not isinstance(value, dict):
+        return _conductivity(table, "principal", value)
+    entries = Table(value, table.key("principal"), table.context)
+    temperatures = _list(entries, "temperatures", "temperature")
+    values = _list(entries, "values", "conductivity")
+    entries.done()
+    return build(entries, PropertyTable, temperatures, values, default="values")
+
+
+def _conductivity(table: Table, key: str, value, signed: bool = False) -> float:
+    """One conductivity of an orthotropic table (an off-diagonal tensor entry may be < 0)."""
+    number = table.quantity(key, value, "conductivity")
+    if not signed and not number > 0:
+        table.fail(key, f"conductivities must be > 0 W/(m*K), got {value!r}")
+    return number
 
 
 def _list(table: Table, key: str, kind: str) -> tuple[float, ...]:

@@ -18,6 +18,7 @@ from geometries import (
     SectionMesh,
     Union,
     check_mesh_options,
+    read_dxf,
     read_section_mesh,
 )
 
@@ -55,7 +56,10 @@ def read_section(table: Table) -> SectionPlan:
     axisymmetric = table.flag("axisymmetric", False)
     mesh_options = _mesh_options(table)
     file_table = table.table("file", None)
-    if file_table is not None:
+    drawing = None
+    if file_table is not None and _is_drawing(file_table):
+        drawing = _drawing(file_table)
+    elif file_table is not None:
         imported = _imported(file_table, axisymmetric)
         table.read.update({"shape", "cut", "refine", "name_edges"})
         return SectionPlan(
@@ -65,7 +69,7 @@ def read_section(table: Table) -> SectionPlan:
             frozenset(imported.edge_groups),
             frozenset(imported.regions),
         )
-    shape = _combined(table)
+    shape = _combined(table, drawing)
     for cut in table.tables("cut"):
         shape = build(
             cut,
@@ -120,17 +124,51 @@ def _imported(file_table: Table, axisymmetric: bool) -> SectionMesh:
     )
 
 
-def _combined(table: Table):
+def _is_drawing(file_table: Table) -> bool:
+    path = file_table.raw("path", None)
+    return isinstance(path, str) and path.lower().endswith(".dxf")
+
+
+def _drawing(file_table: Table):
+    """``[section.file]`` naming a ``.dxf`` drawing: its outlines as the first shape."""
+    drawing_file = file_table.context.folder / file_table.text("path")
+    units = file_table.text("units", None, MESH_FILE_UNITS)
+    layers = file_table.raw("layers", None)
+    if layers is not None and not (
+        isinstance(layers, list) and layers and all(isinstance(x, str) for x in layers)
+    ):
+        file_table.fail("layers", f"expected a list of layer names, got {layers!r}")
+    group_by = file_table.text("edge_groups_from", "layer", ("layer", "colour"))
+    region = file_table.text("region", "solid")
+    tolerance = file_table.get("join_tolerance", "length", None)
+    file_table.done()
+    keys = {"group_by": "edge_groups_from", "tolerance": "join_tolerance"}
+    return build(
+        file_table,
+        read_dxf,
+        drawing_file,
+        units=units,
+        layers=layers,
+        group_by=group_by,
+        region=region,
+        tolerance=tolerance,
+        keys=keys,
+        default="path",
+    )
+
+
+def _combined(table: Table, drawing=None):
     """The shapes in order, each added to, subtracted from or intersected with the ones
-    before; a shape of another region makes a composite of regions."""
+    before (the drawing's outlines first, if any); a shape of another region makes a
+    composite of regions."""
     specs = table.tables("shape")
-    if not specs:
+    if not specs and drawing is None:
         table.fail(
             "shape",
             "is missing: give at least one [[section.shape]] (or a "
             "[section.file] to import a mesh)",
         )
-    shape = None
+    shape = drawing
     for spec in specs:
         piece = read_shape(spec)
         later = shape is not None

@@ -80,7 +80,9 @@ def _materials_table(a: Assessment) -> Table:
                 region,
                 f"{region_areas[region] * 1e6:.5g} mm²",
                 material.name,
-                property_text(material.conductivity, "W/(m·K)"),
+                material.orthotropic.describe()
+                if material.orthotropic
+                else property_text(material.conductivity, "W/(m·K)"),
                 property_text(material.density, "kg/m³"),
                 property_text(material.specific_heat, "J/(kg·K)"),
                 material.source or "—",
