@@ -310,3 +310,43 @@ def probe_sides(model) -> dict[str, tuple[str, str]]:
         if side is not None:
             found[probe] = (names[side[0]], side[0][0])
     return found
+
+
+@dataclass(frozen=True)
+class LargestJump:
+    """The largest temperature jump across one interface over a run.
+
+    Attributes
+    ----------
+    interface : Interface
+    jump : float
+        T(first region) − T(second region) where and when it was largest in size, K.
+    time : float
+        When, s.
+    heat_flow : float
+        The heat crossing from the first region to the second at that time, W (planar: W/m).
+    largest_heat_flow : float
+        The largest heat flow across the interface over the run in size, W (planar: W/m).
+    """
+
+    interface: Interface
+    jump: float
+    time: float
+    heat_flow: float
+    largest_heat_flow: float
+
+
+def largest_jumps(solution) -> dict[str, LargestJump]:
+    """The largest jump across each interface of a :class:`fem.Solution`, and when."""
+    found = {}
+    for name, jumps in solution.interface_jump.items():
+        flows = solution.interface_heat_flow[name]
+        at = int(np.argmax(np.abs(jumps)))
+        found[name] = LargestJump(
+            solution.model.interfaces[name],
+            float(jumps[at]),
+            float(solution.times[at]),
+            float(flows[at]),
+            float(flows[int(np.argmax(np.abs(flows)))]),
+        )
+    return found
