@@ -258,7 +258,7 @@ def _terms(model, element, basis, name: str, interface: Interface) -> InterfaceT
     for facets in (sides.first_facets, sides.second_facets):
         facet_basis = FacetBasis(mesh, element, facets=facets)
         operators.append(QuadratureOperator(facet_basis, axisymmetric))
-        points.append(np.asarray(facet_basis.global_coordinates().value))
+        points.append(np.asarray(facet_basis.global_coordinates()))
     order = _matching_rows(points[0], points[1], float(np.ptp(section.vertices, axis=1).max()))
     difference = (operators[0].values - operators[1].values[order]).tocsr()
     pairs = sides.node_pairs
