@@ -72,6 +72,7 @@ def _interface(spec: Table, regions: tuple[str, str]) -> Interface:
             "give conductance or resistance, not both (the resistance is 1/conductance)",
         )
     if not given:
+        spec.done()  # a misspelt key is the likelier mistake: name it first
         spec.fail(
             "conductance",
             "is missing: give conductance (e.g. '5000 W/(m^2*K)') or resistance "
