@@ -11,6 +11,7 @@ Mass Transfer, 6th ed., §3.1.4, from memory).
 from __future__ import annotations
 
 import json
+import pickle
 from pathlib import Path
 
 import numpy as np
@@ -18,6 +19,7 @@ import pytest
 
 from advisor.casefile.case import CaseError, case_from_toml
 from advisor.pipeline import run_case, write_results
+from fem.interface_mesh import SplitSectionMesh
 
 CASE = """\
 title = "Two bonded layers"
@@ -234,3 +236,24 @@ def test_mistakes_name_the_key_path_and_line(text, key_path, phrase, line):
     where = "bond.toml" + (f", line {line}" if line else "")
     assert message.startswith(f"{where}: {key_path}: "), message
     assert phrase in message, message
+
+
+def test_results_with_interfaces_pickle_whole(written):
+    results, _ = written
+    again = pickle.loads(pickle.dumps(results))
+    solution = again.assessment.solution
+    assert isinstance(solution.model.section, SplitSectionMesh)
+    assert np.array_equal(
+        solution.interface_jump["bond"], results.assessment.solution.interface_jump["bond"]
+    )
+
+
+def test_an_override_changes_the_resistance():
+    resistance = 5e-4  # m²·K/W
+    case = case_from_toml(
+        CASE, "bond.toml", {"interfaces.bond.resistance": f"{resistance} m^2*K/W"}
+    )
+    assert case.interfaces["bond"].resistance == pytest.approx(resistance)
+    solution = run_case(case).assessment.solution
+    q = 100.0 / (1 / H_HOT + L1 / K1 + resistance + L2 / K2 + 1 / H_COLD)
+    assert solution.interface_jump["bond"][-1] == pytest.approx(q * resistance, rel=1e-6)

@@ -27,6 +27,7 @@ from fem import (
     Interface,
     Material,
     ModelError,
+    PropertyTable,
     ThermalModel,
     assemble,
     solve,
@@ -429,3 +430,39 @@ def test_an_interface_needs_one_positive_value(kwargs, wanted):
 def test_resistance_and_conductance_are_reciprocal():
     assert Interface(("a", "b"), resistance=2e-4).conductance == pytest.approx(5000.0)
     assert Interface(("a", "b"), conductance=250.0).resistance == pytest.approx(4e-3)
+
+
+def test_conductivity_tables_take_the_nonlinear_path_to_the_same_answer():
+    """k given as a (flat) table of temperature: the residual and tangent are assembled at the
+    field's temperatures, the interface term with the constant parts; the steady state is the
+    series solution all the same."""
+    conductance = 500.0
+    flat = {
+        name: Material(
+            PropertyTable((0.0, 200.0), (m.conductivity, m.conductivity)),
+            m.density,
+            m.specific_heat,
+        )
+        for name, m in (("a", FIRST), ("b", SECOND))
+    }
+    model = ThermalModel(
+        two_layers(),
+        flat,
+        BOUNDARIES,
+        20.0,
+        interfaces={"contact": Interface(("a", "b"), conductance=conductance)},
+    )
+    assert not model.is_linear
+    solution = solve(model, 40_000.0, method="backward-euler", time_step=2000.0)
+    q, _, _ = series_wall(conductance)
+    assert solution.interface_jump["contact"][-1] == pytest.approx(q / conductance, rel=1e-6)
+    assert solution.checks.energy_balance_error <= 1e-6
+
+
+def test_the_interface_module_examples_run():
+    import doctest
+
+    import fem.interfaces
+
+    result = doctest.testmod(fem.interfaces)
+    assert result.attempted > 0 and result.failed == 0
