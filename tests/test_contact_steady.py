@@ -466,3 +466,31 @@ def test_the_interface_module_examples_run():
 
     result = doctest.testmod(fem.interfaces)
     assert result.attempted > 0 and result.failed == 0
+
+
+def test_an_embedded_region_is_cut_all_round_and_passes_on_its_heat():
+    """A heated insert inside a block: the interface is a closed loop, every node on it
+    splits, and at steady state the heat crossing it is the heat generated (energy)."""
+    block = Rectangle(
+        0.03, 0.02, edge_names=dict.fromkeys(("left", "right", "top", "bottom"), "out")
+    )
+    insert = Rectangle(0.01, 0.006, corner=(0.01, 0.007), region="insert")
+    section = Composite((block, insert)).mesh(0.001)
+    model = ThermalModel(
+        section,
+        {"solid": Material(15.0, 7900.0, 500.0), "insert": Material(150.0, 2330.0, 700.0)},
+        {"out": Convection(30.0, 20.0)},
+        20.0,
+        heat_sources={"insert": 2e6},
+        interfaces={"bond": Interface(("insert", "solid"), conductance=2000.0)},
+    )
+    split_nodes = model.section.sides[("insert", "solid")].node_pairs
+    assert np.all(split_nodes[:, 0] != split_nodes[:, 1])  # no node stays joined
+    assert model.section.mesh.nvertices == section.mesh.nvertices + len(split_nodes)
+    system = assemble(model)
+    field = steady(system)
+    jump, flow = system.interface_states(field)["bond"]
+    generated = 2e6 * 0.01 * 0.006  # W per metre of depth
+    assert flow == pytest.approx(generated, rel=1e-10)
+    assert -system.edge_heat_flows(field, 0.0)["out"] == pytest.approx(generated, rel=1e-10)
+    assert jump > 0.0  # the insert is the hotter side
