@@ -73,7 +73,8 @@ class SplitSectionMesh(SectionMesh):
 
     def locate(self, points: np.ndarray) -> np.ndarray:
         """As :meth:`SectionMesh.locate`, except that a point on a cut interface is read on
-        the side of the interface's first region (see :func:`interface_side`)."""
+        one side, always the same: that of the first region of the pair in :attr:`sides`
+        (see :func:`interface_side`)."""
         cells = np.array(super().locate(points), copy=True)
         for index in range(np.shape(points)[1]):
             found = interface_side(self, np.asarray(points)[:, index])

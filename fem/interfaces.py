@@ -298,7 +298,7 @@ def _matching_rows(first: np.ndarray, second: np.ndarray, size: float) -> np.nda
 
 def probe_sides(model) -> dict[str, tuple[str, str]]:
     """The probes that lie on a cut interface: probe → (interface name, the region whose side
-    it reads, which is the interface's first region)."""
+    it reads)."""
     section = model.section
     if not isinstance(section, SplitSectionMesh):
         return {}
