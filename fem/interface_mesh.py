@@ -227,13 +227,15 @@ def _assembled_split(section, corner_vertex, facets_of, region_of, names) -> Spl
     two faces of each interface."""
     from skfem import MeshTri, MeshTri2
 
+    from geometries.mesh_arrays import triangle_topology
+
     mesh = section.mesh
     n_vertices = mesh.nvertices
     origin = np.arange(int(corner_vertex.max()) + 1)
     origin[corner_vertex.ravel()] = mesh.t[:3].ravel()  # each new vertex's original
-    vertices = mesh.p[:, :n_vertices][:, origin]
+    vertices = np.ascontiguousarray(mesh.p[:, origin])  # the originals are the first columns
     t = np.ascontiguousarray(corner_vertex, dtype=mesh.t.dtype)
-    linear = MeshTri(vertices, t, sort_t=False)
+    linear = triangle_topology(t, vertices.shape[1])  # the cut mesh's facets, t2f and f2t
     new_facet = np.full(mesh.facets.shape[1], -1, dtype=np.int64)  # the last triangle's copy
     for k in range(3):
         new_facet[mesh.t2f[k]] = linear.t2f[k]
@@ -252,6 +254,7 @@ def _assembled_split(section, corner_vertex, facets_of, region_of, names) -> Spl
         )
     else:
         split = MeshTri(vertices, t, _boundaries=boundaries, _subdomains=subdomains, sort_t=False)
+    linear.attach(split)
     sides = {
         pair: _sides(mesh, linear, corner_vertex, facets, region_of, names.index(pair[0]), pair)
         for pair, facets in facets_of.items()
