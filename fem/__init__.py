@@ -27,6 +27,7 @@ _LAZY = {
     "SurfaceTemperatureConvection": ".conditions",
     "check_exponential_parts": ".exponential_run",
     "FieldSeries": ".fields",
+    "Interface": ".interfaces",
     "Material": ".materials",
     "PropertyRangeWarning": ".materials",
     "PropertyTable": ".materials",
@@ -62,6 +63,7 @@ __all__ = [
     "FixedTemperature",
     "HeatFlux",
     "Insulated",
+    "Interface",
     "Material",
     "ModelError",
     "Orthotropic",
@@ -103,6 +105,7 @@ if TYPE_CHECKING:
     from .events import StopWhen
     from .exponential_run import check_exponential_parts
     from .fields import FieldSeries
+    from .interfaces import Interface
     from .materials import Material, PropertyRangeWarning, PropertyTable
     from .model import ThermalModel
     from .orthotropic import Orthotropic

@@ -11,6 +11,7 @@ import scipy.sparse as sp
 from skfem import Basis, ElementTriP1, ElementTriP2, FacetBasis, asm
 
 from . import forms
+from .interfaces import interface_stiffness, interface_terms
 from .materials import Material
 from .model import ThermalModel
 from .quadrature import EdgeTerms
@@ -32,6 +33,9 @@ def assemble(model: ThermalModel) -> ConductionSystem:
         for r, e in mesh.subdomains.items()
     }
     capacity, stiffness = _matrices(model, region_bases)
+    interfaces = interface_terms(model, element, basis)  # contact resistances, if any
+    if interfaces:
+        stiffness = (stiffness + interface_stiffness(interfaces, basis.N)).tocsr()
     source_weights = {
         r: asm(forms.shape_integral, region_bases[r], axisymmetric=axisymmetric)
         for r in model.heat_sources
@@ -55,6 +59,7 @@ def assemble(model: ThermalModel) -> ConductionSystem:
         vertex_dofs=basis.nodal_dofs[0].copy(),
         fixed_dofs=fixed_dofs,
         free_dofs=free,
+        interfaces=interfaces,
     )
 
 

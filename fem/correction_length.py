@@ -36,6 +36,7 @@ from skfem import Basis, FacetBasis, asm
 from . import forms
 from .assembly import element_for
 from .errors import ModelError
+from .interfaces import interface_stiffness, interface_terms
 from .linalg import NESTED_DISSECTION_FROM
 from .model import ThermalModel
 from .ordering import nested_dissection
@@ -127,6 +128,9 @@ def correction_length(
     element = element_for(model)
     basis = Basis(mesh, element)
     stiffness, capacity = _matrices(model, basis, element, temperature)
+    if model.interfaces:  # contact resistances are internal resistances too
+        terms = interface_terms(model, element, basis)
+        stiffness = (stiffness + interface_stiffness(terms, basis.N)).tocsr()
     weights = {
         g: asm(
             forms.shape_integral,

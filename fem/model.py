@@ -17,6 +17,8 @@ from .conditions import (
     conditions,
 )
 from .errors import ModelError
+from .interfaces import Interface
+from .interfaces import prepared as prepared_interfaces
 from .materials import Material
 from .schedules import Schedule, as_schedule
 from .temperatures import check_temperature
@@ -46,6 +48,10 @@ class ThermalModel:
         1 for linear (P1) or 2 for quadratic (P2) triangles.
     heat_sources : dict of str to float or schedule
         Heat generated per unit volume in W/m³, per region.
+    interfaces : dict of str to Interface
+        Named contacts between pairs of regions, each with its conductance (or resistance):
+        the field jumps across them. ``section`` becomes the mesh cut along them
+        (:mod:`fem.interfaces`).
 
     Examples
     --------
@@ -67,10 +73,14 @@ class ThermalModel:
     probes: Mapping[str, tuple[float, float]] = field(default_factory=dict)
     element_order: int = 1
     heat_sources: Mapping[str, float | Schedule] = field(default_factory=dict)
+    interfaces: Mapping[str, Interface] = field(default_factory=dict)
 
     def __post_init__(self) -> None:
         if not isinstance(self.section, SectionMesh):
             raise ModelError(f"section must be a geometries.SectionMesh, got {self.section!r}")
+        section, interfaces = prepared_interfaces(self.section, self.interfaces)
+        self._set("section", section)
+        self._set("interfaces", interfaces)
         regions = set(self.section.regions)
         self._set("material", self._materials(regions))
         self._set("boundaries", self._boundaries())

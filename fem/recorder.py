@@ -26,6 +26,7 @@ class HistoryRecorder:
         self._fields = fields
         self._output_times: list[float] = []
         self._initial_stored = initial_stored
+        self._interfaces: list[dict[str, tuple[float, float]]] = []  # per record, if any
 
     def record(
         self,
@@ -38,6 +39,8 @@ class HistoryRecorder:
         """Add one state; ``stored`` is 1ᵀC(T) (J), ``reactions`` the fixed groups' flows."""
         flows = self._system.edge_heat_flows(temperature, time)
         flows.update(reactions)
+        if self._system.interfaces:
+            self._interfaces.append(self._system.interface_states(temperature))
         self._append(
             time,
             inner(self._system.volume_weights, temperature),
@@ -66,6 +69,8 @@ class HistoryRecorder:
         for name, values in reactions.items():
             flows[name] = np.asarray(values, dtype=float)
         for i, time in enumerate(times):
+            if s.interfaces:
+                self._interfaces.append(s.interface_states(temperatures[i]))
             self._append(
                 float(time),
                 float(means[i]),
@@ -99,6 +104,10 @@ class HistoryRecorder:
         self._output_times.append(time)
         self._fields.append(temperature[self._system.vertex_dofs])
 
+    def _interface_column(self, name: str, index: int) -> np.ndarray:
+        """The jump (0) or heat flow (1) of one interface at every record."""
+        return np.array([row[name][index] for row in self._interfaces])
+
     def histories(self) -> dict[str, object]:
         """Every recorded quantity as arrays over the records (the fields of a Solution)."""
         columns = list(zip(*self._rows, strict=True))
@@ -118,4 +127,6 @@ class HistoryRecorder:
             absorbed_heat=np.array(columns[10]),
             output_times=np.array(self._output_times),
             fields=self._fields,
+            interface_jump={n: self._interface_column(n, 0) for n in self._system.interfaces},
+            interface_heat_flow={n: self._interface_column(n, 1) for n in self._system.interfaces},
         )

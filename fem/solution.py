@@ -3,7 +3,7 @@ counters and the run's own checks."""
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -149,6 +149,12 @@ class Solution:
         met.
     stats : SolverStats
     checks : RunChecks
+    interface_jump : dict of str to ndarray
+        For each contact interface, T(first region) − T(second region) at the interface node
+        where it is largest in size, K, at each time.
+    interface_heat_flow : dict of str to ndarray
+        For each contact interface, the heat crossing it from the first region to the second,
+        W (planar: W per metre of depth), at each time.
     """
 
     model: ThermalModel
@@ -169,6 +175,8 @@ class Solution:
     stop_time: float | None
     stats: SolverStats
     checks: RunChecks
+    interface_jump: dict[str, np.ndarray] = field(default_factory=dict)
+    interface_heat_flow: dict[str, np.ndarray] = field(default_factory=dict)
 
     @property
     def internal_difference(self) -> np.ndarray:

@@ -22,6 +22,7 @@ from skfem import Basis, asm
 
 from . import forms
 from .errors import ModelError
+from .interfaces import interface_stiffness
 from .model import ThermalModel
 from .quadrature import EdgeTerms, QuadratureOperator, remembered
 
@@ -58,6 +59,8 @@ class ConductionSystem:
         Degrees of freedom at the mesh vertices, in vertex order.
     fixed_dofs : dict of str to ndarray
         Degrees of freedom of each fixed-temperature group (a shared corner goes to the first).
+    interfaces : dict of str to fem.interfaces.InterfaceTerms
+        The contact interfaces; their conductance terms are part of ``stiffness``.
     """
 
     model: ThermalModel
@@ -73,6 +76,7 @@ class ConductionSystem:
     vertex_dofs: np.ndarray
     fixed_dofs: dict[str, np.ndarray]
     free_dofs: np.ndarray = field(default_factory=lambda: np.empty(0, dtype=np.int64))
+    interfaces: dict = field(default_factory=dict)
 
     @property
     def axisymmetric(self) -> bool:
@@ -121,7 +125,24 @@ class ConductionSystem:
                 argument="boundaries",
             )
         edges = {name: edge.with_conditions(flowing[name]) for name, edge in self.edges.items()}
-        return dataclasses.replace(self, model=model, edges=edges)
+        return dataclasses.replace(self, model=model, edges=edges, **self._interfaces_for(model))
+
+    def _interfaces_for(self, model: ThermalModel) -> dict:
+        """The interface terms and stiffness for ``model``'s conductances (same interfaces)."""
+        if model.interfaces == self.model.interfaces:
+            return {}
+        if {n: i.regions for n, i in model.interfaces.items()} != {
+            n: t.interface.regions for n, t in self.interfaces.items()
+        }:
+            raise ModelError(
+                f"the assembled system has the interfaces {sorted(self.interfaces)}; "
+                f"got {sorted(model.interfaces)}: assemble the new model",
+                argument="interfaces",
+            )
+        terms = {n: t.with_interface(model.interfaces[n]) for n, t in self.interfaces.items()}
+        stiffness = self.stiffness - interface_stiffness(self.interfaces, self.size)
+        stiffness = (stiffness + interface_stiffness(terms, self.size)).tocsr()
+        return {"interfaces": terms, "stiffness": stiffness}
 
     def flowing(self):
         """Every (edge terms, condition) pair through which heat flows, in group order."""
@@ -179,7 +200,7 @@ class ConductionSystem:
         """The stiffness and capacity (W/K, J/K) of the regions where k, and where ρc, is
         one number: assembled once, so a small region with k(T) or latent heat costs only its
         own share of a residual."""
-        stiffness = sp.csr_matrix((self.size, self.size))
+        stiffness = interface_stiffness(self.interfaces, self.size)  # zero without contacts
         capacity = sp.csr_matrix((self.size, self.size))
         for region, basis in self.region_bases.items():
             material = self.model.materials[region]
@@ -288,6 +309,14 @@ class ConductionSystem:
         return {
             name: sum(c.heat_flows_many(edge, times, temperatures) for c in edge.conditions)
             for name, edge in self.edges.items()
+        }
+
+    def interface_states(self, temperature: np.ndarray) -> dict[str, tuple[float, float]]:
+        """(largest jump T₁ − T₂ in K, heat flow from the first region to the second in W) of
+        each contact interface."""
+        return {
+            name: (term.jump(temperature), term.heat_flow(temperature))
+            for name, term in self.interfaces.items()
         }
 
     def impose_fixed(self, temperature: np.ndarray, time: float) -> None:

@@ -171,6 +171,12 @@ def _region_elements(
     return subdomains
 
 
+def triangle_topology(t: np.ndarray, n_vertices: int) -> _Topology:
+    """The facets and incidences of the triangles ``t`` (3, n_triangles), as scikit-fem
+    builds them but with one sort; ``.attach(mesh)`` hands them to a mesh made from ``t``."""
+    return _Topology.of(t, n_vertices)
+
+
 # Local corner pairs of a triangle's facets, in scikit-fem's order (``MeshTri.t2f`` rows).
 _TRIANGLE_FACETS = ((0, 1), (1, 2), (0, 2))
 

@@ -102,6 +102,12 @@ class Section:
 
         return boundary_groups(self)
 
+    def region_contacts(self) -> set[frozenset[str]]:
+        """The pairs of regions that share an edge (its geometry is built, not meshed)."""
+        from .meshing import region_contacts
+
+        return region_contacts(self)
+
     def mesh(
         self,
         size: float,

@@ -18,6 +18,7 @@ from fem import ThermalModel, bind_correlations
 from geometries import Section, SectionMesh
 
 from .conditions import read_boundaries, read_initial, read_probes, read_sources
+from .interfaces import read_interfaces
 from .materials import WHOLE_SECTION, read_materials
 from .options import read_advisor, read_outputs, read_run
 from .reader import DEEPEST, CaseError, Context, Table, check_tree, echo, nesting_key, shown_path
@@ -65,6 +66,8 @@ class Case:
         Keyword arguments of :func:`fem.solve` and :func:`advisor.assess`.
     outputs : dict of str to bool
         Which optional files to write.
+    interfaces : dict of str to fem.Interface
+        The contact resistances between regions, by name.
     """
 
     path: Path
@@ -82,6 +85,7 @@ class Case:
     run_options: dict
     advisor_options: dict
     outputs: dict = field(default_factory=dict)
+    interfaces: dict = field(default_factory=dict)
 
     def model(self) -> ThermalModel:
         """Mesh the section (or take the imported mesh) and build the thermal model."""
@@ -106,6 +110,7 @@ class Case:
             probes=self.probes,
             element_order=self.element_order,
             heat_sources=self.sources,
+            interfaces=self.interfaces,
         )
 
 
@@ -199,6 +204,7 @@ def _read_case(root: Table, path: Path) -> Case:
     plan = read_section(section_table)
     section_table.done()
     materials = read_materials(root, plan.regions)
+    interfaces = read_interfaces(root, plan)
     boundaries = read_boundaries(root, plan.groups)
     initial = read_initial(root)
     sources = read_sources(root)
@@ -225,4 +231,5 @@ def _read_case(root: Table, path: Path) -> Case:
         run_options=run_options,
         advisor_options=advisor_options,
         outputs=outputs,
+        interfaces=interfaces,
     )

@@ -20,6 +20,7 @@ KINDS = {
     "temperature": ("degC", "a temperature such as '480 degC'"),
     "temperature_difference": ("K", "a temperature difference such as '0.1 K'"),
     "heat_transfer_coefficient": ("W/(m^2*K)", "a coefficient such as '150 W/(m^2*K)'"),
+    "contact_resistance": ("m^2*K/W", "a contact resistance such as '2e-4 m^2*K/W'"),
     "conductivity": ("W/(m*K)", "a conductivity such as '45 W/(m*K)'"),
     "density": ("kg/m^3", "a density such as '7850 kg/m^3'"),
     "specific_heat": ("J/(kg*K)", "a specific heat such as '480 J/(kg*K)'"),

@@ -3,6 +3,8 @@ numbers, the lumped models' errors and parameters, and the run's own checks."""
 
 from __future__ import annotations
 
+from fem.interfaces import largest_jumps, probe_sides
+
 from ..analysis.assessment import Assessment
 from .report_document import Block, Bullets, Callout, Facts, Paragraph, Part, Table, part
 from .report_words import duration, millimetres, number, parameter_words, quantity_words
@@ -83,8 +85,64 @@ def biot_part(a: Assessment) -> Part:
                 "question."
             ),
             Table(("length scale", "Bi", "over the run", "L", "mean h", "what it measures"), rows),
+            *_interface_blocks(a),
         ),
     )
+
+
+def _interface_blocks(a: Assessment) -> list[Block]:
+    """The contact interfaces: their resistance against the surface's, and the largest jump
+    across each over the run (nothing when the part has none)."""
+    found = largest_jumps(a.solution)
+    if not found:
+        return []
+    h = a.biot[0].heat_transfer_coefficient if a.biot else 0.0
+    watts = "W" if a.solution.model.section.axisymmetric else "W/m"
+    rows = tuple(
+        (
+            name,
+            f"{j.interface.regions[0]} | {j.interface.regions[1]}",
+            f"{j.interface.conductance:.4g} W/(m²·K)",
+            f"{j.interface.resistance:.3g} m²·K/W",
+            f"{j.jump:+.4g} K at {duration(j.time)}",
+            f"{abs(j.largest_heat_flow):.4g} {watts}",
+            f"{h * j.interface.resistance:.3g}",
+        )
+        for name, j in found.items()
+    )
+    blocks: list[Block] = [
+        Paragraph(
+            "The part has contact interfaces, across which the temperature jumps (the jump is "
+            "the first region's temperature minus the second's). The Biot numbers above "
+            "measure conduction only: h·R compares an interface's resistance R with the "
+            "surface's 1/h and adds to the Biot number of any path that crosses the interface. "
+            "The lumped models see one temperature and ignore the interfaces; the corrected "
+            "model's correction length includes their resistance."
+        ),
+        Table(
+            (
+                "interface",
+                "regions",
+                "conductance",
+                "resistance",
+                "largest jump",
+                "largest heat flow across",
+                "h·R",
+            ),
+            rows,
+        ),
+    ]
+    sides = probe_sides(a.solution.model)
+    if sides:
+        blocks.append(
+            Paragraph(
+                " ".join(
+                    f"Probe {probe!r} lies on interface {name!r} and reads the {region!r} side."
+                    for probe, (name, region) in sides.items()
+                )
+            )
+        )
+    return blocks
 
 
 def errors_part(a: Assessment) -> Part:

@@ -11,6 +11,7 @@ from pathlib import Path
 import numpy as np
 
 from fem import RunChecks, SolverStats, ThermalModel
+from fem.interfaces import largest_jumps
 from fem.schedules import schedule_data as _schedule
 
 from ..analysis.assessment import Assessment
@@ -39,6 +40,7 @@ def summary(assessment: Assessment, files: list[str]) -> dict:
         "quench": _quench(assessment),
         "freezing": _freezing(assessment),
         "surface_curves": _surface_curves(assessment),
+        "interfaces": _interfaces(assessment),
         "final": {
             "mean_degC": float(solution.mean[-1]),
             "minimum_degC": float(solution.minimum[-1]),
@@ -201,6 +203,22 @@ def _surface_curves(assessment: Assessment) -> dict | None:
             "highest_at_outputs_degC": band.highest,
         }
         for group, band in bands.items()
+    }
+
+
+def _interfaces(assessment: Assessment) -> dict:
+    """Each contact interface: its conductance and the largest jump across it, and when."""
+    return {
+        name: {
+            "regions": list(j.interface.regions),
+            "conductance_W_per_m2K": j.interface.conductance,
+            "resistance_m2K_per_W": j.interface.resistance,
+            "largest_jump_K": j.jump,
+            "largest_jump_time_s": j.time,
+            "heat_flow_at_largest_jump_W": j.heat_flow,
+            "largest_heat_flow_W": j.largest_heat_flow,
+        }
+        for name, j in largest_jumps(assessment.solution).items()
     }
 
 

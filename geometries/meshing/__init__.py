@@ -140,6 +140,32 @@ def boundary_groups(section: Section | Shape) -> set[str]:
         return set(name_curves(section, regions))
 
 
+def region_contacts(section: Section | Shape) -> set[frozenset[str]]:
+    """The pairs of regions that share an edge, found by building the section's geometry
+    (booleans included) without meshing it."""
+    if not isinstance(section, Section):
+        section = Section(section)
+    with gmsh_session():
+        regions = build_regions(section.shape)
+        gmsh.model.occ.synchronize()
+        curves = {
+            name: {
+                abs(tag)
+                for _, tag in gmsh.model.getBoundary(
+                    [(2, s) for s in surfaces], combined=False, oriented=False
+                )
+            }
+            for name, surfaces in regions.items()
+        }
+    names = sorted(curves)
+    return {
+        frozenset((a, b))
+        for i, a in enumerate(names)
+        for b in names[i + 1 :]
+        if curves[a] & curves[b]
+    }
+
+
 def _splits(estimate: float) -> int:
     """How many times to split every triangle into four after meshing at ``2**splits`` times
     the size: the fewest that bring the coarse mesh to at most ``_SPLIT_ABOVE`` triangles."""
