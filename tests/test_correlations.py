@@ -53,7 +53,7 @@ def coefficient(name: str, surface: float, fluid_temperature: float, **geometry)
         name,
         geometry.pop("fluid", "air"),
         fluid_temperature,
-        surface_range=(fluid_temperature, surface + 50.0),
+        surface_range=(fluid_temperature, surface + 5.0),
         **geometry,
     )
     return float(condition.coefficient(surface))
