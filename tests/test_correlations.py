@@ -145,6 +145,18 @@ def test_flow_along_a_plate(length):
     assert got == pytest.approx(nu * p["k"] / length, rel=TABLE_TOLERANCE)
 
 
+def test_turbulent_plate_from_the_leading_edge():
+    """Air at 20 m/s along a 2 m plate at 100 degC, the boundary layer tripped at the leading
+    edge: Nu = 0.037 Re^0.8 Pr / (1 + 2.443 Re^-0.1 (Pr^(2/3) - 1)) (Schlichting & Gersten,
+    Boundary-Layer Theory; Petukhov's form, from memory)."""
+    length, speed, surface, bulk = 2.0, 20.0, 100.0, 20.0
+    p = air((surface + bulk) / 2)
+    re = p["rho"] * speed * length / p["mu"]
+    nu = 0.037 * re**0.8 * p["Pr"] / (1 + 2.443 * re**-0.1 * (p["Pr"] ** (2 / 3) - 1))
+    got = coefficient("forced-plate-turbulent", surface, bulk, length=length, velocity=speed)
+    assert got == pytest.approx(nu * p["k"] / length, rel=TABLE_TOLERANCE)
+
+
 def test_round_jet_on_a_disc():
     """Air at 40 m/s from a 6 mm nozzle 36 mm above a plate at 200 degC, the mean over a disc
     of radius 30 mm (r/D = 5, H/D = 6). Martin (1977), Advances in Heat Transfer 13, single
