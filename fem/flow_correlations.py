@@ -17,7 +17,14 @@ from dataclasses import dataclass
 import numpy as np
 
 from .errors import ModelError
-from .fluid_properties import EXTRA, FluidProperties, check_fluid, fluid_property_rows
+from .fluid_properties import (
+    EXTRA,
+    FLUIDS,
+    FluidProperties,
+    check_fluid,
+    fluid_property_rows,
+    fluid_range,
+)
 
 GRAVITY = 9.80665  # m/s²
 TRANSITION_REYNOLDS = 5e5  # a flat plate's critical Reynolds number (common practice)
@@ -300,6 +307,7 @@ def coefficient_table(
     correlation = check_correlation(name, geometry)
     check_fluid(fluid)
     low, high = float(min(surface_range)), float(max(surface_range))
+    _check_liquid_surface(fluid, high)
     span = max(high - low, 1.0)
     near = fluid_temperature + span * np.geomspace(1e-4, 0.05, 12)
     grid = np.concatenate(
@@ -323,3 +331,19 @@ def coefficient_table(
     return CoefficientTable(
         correlation.group, tuple(temperatures.tolist()), groups, nusselts, coefficients
     )
+
+
+def _check_liquid_surface(fluid: str, highest: float) -> None:
+    """A liquid's single-phase correlation holds only while the surface stays below the
+    liquid's boiling point (the top of its property range at atmospheric pressure)."""
+    if fluid == "air":
+        return
+    limit = fluid_range(fluid)[1]
+    if highest > limit:
+        raise ModelError(
+            f"the surface reaches {highest:.4g} degC, above the {limit:.4g} degC where "
+            f"{FLUIDS[fluid][1]} boils or leaves its property range at atmospheric pressure: "
+            "a single-phase correlation does not hold there; use a boiling curve (convection "
+            "with a coefficient table of surface temperature)",
+            argument="fluid",
+        )

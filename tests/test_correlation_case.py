@@ -161,3 +161,16 @@ def test_report_table_follows_the_band_passed_through():
                          condition.table.coefficients)  # fmt: skip
     assert np.allclose(coefficients, expected, rtol=2e-3)  # 3 significant digits shown
     assert all(row[2].startswith("Ra = ") for row in table.rows)
+
+
+def test_warm_part_in_water_stays_single_phase():
+    """A part starting at 90 degC in water at 20 degC: the table stops at water's boiling point
+    at 1 atm (99.97 degC, IAPWS-95 through CoolProp) rather than widening past it."""
+    text = (
+        ROUND.format(kind="forced-cylinder", extra='velocity = "0.2 m/s"')
+        .replace('fluid = "air"', 'fluid = "water"')
+        .replace('temperature = "300 degC"', 'temperature = "90 degC"')
+    )
+    condition = bound_condition(case_from_toml(text).model(), "outside")
+    low, high = condition.surface_range
+    assert low == pytest.approx(20.0) and 90.0 < high <= 99.98

@@ -53,7 +53,7 @@ def coefficient(name: str, surface: float, fluid_temperature: float, **geometry)
         name,
         geometry.pop("fluid", "air"),
         fluid_temperature,
-        surface_range=(fluid_temperature, surface + 50.0),
+        surface_range=(fluid_temperature, surface + 5.0),
         **geometry,
     )
     return float(condition.coefficient(surface))
@@ -142,6 +142,18 @@ def test_flow_along_a_plate(length):
         nu = (0.037 * re**0.8 - 871) * p["Pr"] ** (1 / 3)
     assert (re < 5e5) == (length < 1)
     got = coefficient("forced-plate", surface, bulk, length=length, velocity=speed)
+    assert got == pytest.approx(nu * p["k"] / length, rel=TABLE_TOLERANCE)
+
+
+def test_turbulent_plate_from_the_leading_edge():
+    """Air at 20 m/s along a 2 m plate at 100 degC, the boundary layer tripped at the leading
+    edge: Nu = 0.037 Re^0.8 Pr / (1 + 2.443 Re^-0.1 (Pr^(2/3) - 1)) (Schlichting & Gersten,
+    Boundary-Layer Theory; Petukhov's form, from memory)."""
+    length, speed, surface, bulk = 2.0, 20.0, 100.0, 20.0
+    p = air((surface + bulk) / 2)
+    re = p["rho"] * speed * length / p["mu"]
+    nu = 0.037 * re**0.8 * p["Pr"] / (1 + 2.443 * re**-0.1 * (p["Pr"] ** (2 / 3) - 1))
+    got = coefficient("forced-plate-turbulent", surface, bulk, length=length, velocity=speed)
     assert got == pytest.approx(nu * p["k"] / length, rel=TABLE_TOLERANCE)
 
 

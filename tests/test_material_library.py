@@ -292,3 +292,10 @@ def test_materials_name_errors(capsys):
     assert "'carbon steel, plain'" in err and "soakwise materials" in err
     assert main(["materials", "potato", "--plot", "potato.svg"]) == 2
     assert "ending in .png" in capsys.readouterr().err
+
+
+def test_docstring_example_of_the_library():
+    import doctest
+
+    result = doctest.testmod(solids)
+    assert result.attempted > 0 and result.failed == 0

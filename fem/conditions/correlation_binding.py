@@ -60,12 +60,13 @@ def bind_correlations(boundaries: dict, section_mesh, initial) -> dict:
     ]
     if not correlations:
         return boundaries
-    surface_range = _surface_range(initial, [c.fluid_temperature for c in correlations])
+    fluids = [c.fluid_temperature for c in correlations]
+    surface_range, hottest = _surface_range(initial, fluids), _extremes(initial, fluids)[1]
     bound = {}
     for group, value in boundaries.items():
         items = value if isinstance(value, tuple | list) else (value,)
         bound[group] = tuple(
-            _bind(item, group, section_mesh, surface_range)
+            _bind(item, group, section_mesh, surface_range, hottest)
             if isinstance(item, CorrelationConvection)
             else item
             for item in items
@@ -73,7 +74,8 @@ def bind_correlations(boundaries: dict, section_mesh, initial) -> dict:
     return bound
 
 
-def _bind(condition: CorrelationConvection, group: str, section_mesh, surface_range):
+def _bind(condition: CorrelationConvection, group: str, section_mesh, surface_range, hottest):
+    surface_range = _within_liquid(condition, surface_range, hottest)
     try:
         if condition.length is not None:
             return condition.with_section(None, "", surface_range)
@@ -121,9 +123,8 @@ def derived_length(correlation: str, group: str, section_mesh) -> tuple[float, s
     return lengths[rule], _WORDS[rule] + ", derived"
 
 
-def _surface_range(initial, fluid_temperatures) -> tuple[float, float]:
-    """The lowest and highest temperature of the initial state and the fluids, widened a
-    little (sources or other conditions may carry the surface somewhat beyond)."""
+def _extremes(initial, fluid_temperatures) -> tuple[float, float]:
+    """The lowest and highest of the initial temperatures and the fluids', °C."""
     values = list(initial.values()) if isinstance(initial, dict) else [initial]
     try:
         known = [float(np.min(v)) for v in values] + [float(np.max(v)) for v in values]
@@ -133,9 +134,30 @@ def _surface_range(initial, fluid_temperatures) -> tuple[float, float]:
             "surface_range",
             argument="surface_range",
         ) from None
-    span = max(known + fluid_temperatures) - min(known + fluid_temperatures)
+    return min(known + fluid_temperatures), max(known + fluid_temperatures)
+
+
+def _surface_range(initial, fluid_temperatures) -> tuple[float, float]:
+    """The initial and fluid temperatures' extremes, widened beyond the initial ones a little
+    (sources or other conditions may carry the surface somewhat beyond)."""
+    values = list(initial.values()) if isinstance(initial, dict) else [initial]
+    low, high = _extremes(initial, fluid_temperatures)
+    span = high - low
     margin = max(RANGE_MARGIN * span, SMALLEST_SPAN if span < 1.0 else 0.0)
+    starts = [float(np.min(v)) for v in values] + [float(np.max(v)) for v in values]
     # a surface goes beyond the fluid's temperature only by what the part starts beyond it
-    low = min([v - margin for v in known] + fluid_temperatures)
-    high = max([v + margin for v in known] + fluid_temperatures)
+    low = min([v - margin for v in starts] + fluid_temperatures)
+    high = max([v + margin for v in starts] + fluid_temperatures)
     return low, high
+
+
+def _within_liquid(condition: CorrelationConvection, surface_range, hottest: float):
+    """For a liquid, the range's margin stops at the liquid's boiling point; a part starting
+    above it keeps its range (and the table refuses it)."""
+    if condition.fluid == "air":
+        return surface_range
+    from ..fluid_properties import fluid_range
+
+    low, high = surface_range
+    limit = fluid_range(condition.fluid)[1]
+    return (low, min(high, limit)) if hottest <= limit else surface_range
