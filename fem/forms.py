@@ -1,6 +1,7 @@
 """Every scikit-fem form of the project: the weak form of transient conduction.
 
-ρc ∂T/∂t (as dH/dt, H = ∫ρc dT) + ∇·(−k ∇T) = q̇ in the section, with on its edges the heat
+ρc ∂T/∂t (as dH/dt, H = ∫ρc dT) + ∇·(−k ∇T) = q̇ in the section (−K ∇T with the
+conductivity tensor K of an orthotropic region), with on its edges the heat
 flux q(T, t) into the part that each boundary condition states (:mod:`fem.conditions`). The
 edge forms know no particular condition: an exchange with a coefficient and a load with a flux,
 either given at the quadrature points, serve every kind.

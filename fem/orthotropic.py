@@ -186,9 +186,7 @@ def _lower_envelope(first, second):
         da, db = a[i] - b[i], a[i + 1] - b[i + 1]
         if da * db < 0:  # they cross inside the interval
             crossings.append(grid[i] + (grid[i + 1] - grid[i]) * da / (da - db))
-    grid = np.array(sorted({*grid.tolist(), *crossings}))
-    if len(grid) < 2:
-        grid = np.array([grid[0], grid[0] + 1.0])
+    grid = np.array(sorted({*grid.tolist(), *crossings}))  # a table has two points or more
     lower = np.minimum(_clamped(first, grid), _clamped(second, grid))
     return PropertyTable(tuple(grid.tolist()), tuple(lower.tolist()))
 

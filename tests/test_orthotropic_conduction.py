@@ -295,6 +295,41 @@ def test_temperature_dependent_principal_values_at_steady_state():
     assert solution.stats.newton_iterations > solution.stats.steps  # it is nonlinear
 
 
+def test_correction_length_solves_with_the_tensor():
+    """A square turned by 30° cooled only on the two faces across principal direction 2 (the
+    others insulated) is a slab of half-thickness a in that direction with conductivity k₂:
+    its correction length is s = a/3 quoted with k₂ (the improved lumped model, Cotta &
+    Mikhailov 1997, ch. 2, from memory), i.e. the internal resistance R = s/k₂ = a/(3·k₂).
+    k₁ along the faces carries no heat in that problem, so a solve that ignored the tensor
+    (taking k₁, or the scalar k₂ on a rotated field) would be off by up to ten times. P1 of
+    size a/24: w is quadratic, caught to (h/a)² ≈ 2e-3 (4e-4 measured); 0.5 % is required."""
+    from fem.correction_length import correction_length
+
+    square = Rectangle(
+        2 * HALF,
+        2 * HALF,
+        corner=(-HALF, -HALF),
+        edge_names={"left": "sides", "right": "sides", "top": "cooled", "bottom": "cooled"},
+    ).rotated(30.0)
+    mesh = square.mesh(MESH_SIZE)
+
+    def resistance(angle: float) -> float:
+        model = ThermalModel(
+            mesh,
+            laminate(angle),
+            boundaries={
+                "cooled": Convection(heat_transfer_coefficient=COEFFICIENT, ambient=AMBIENT),
+                "sides": Insulated("insulated"),
+            },
+            initial_temperature=INITIAL,
+        )
+        return correction_length(model, INITIAL).resistance
+
+    assert resistance(30.0) == pytest.approx(HALF / (3 * ACROSS), rel=5e-3)
+    # direction 1 across the cooled faces instead: the slab conducts with k₁
+    assert resistance(120.0) == pytest.approx(HALF / (3 * ALONG), rel=5e-3)
+
+
 # -- the value object and the scalar it stands for -------------------------------------------
 
 
