@@ -191,8 +191,8 @@ def test_the_jump_and_the_heat_across_follow_the_one_dimensional_solution(
     flow = np.interp(times, solution.times, solution.interface_heat_flow["contact"])
     largest_jump = np.abs(expected[:, 0]).max()
     largest_flow = np.abs(expected[:, 1]).max()
-    # spatial error O(Δx²) (P1) or O(Δx³) here (P2); measured 2.5e-4 (P1) and 2.3e-5 (P2)
-    # of the largest jump, 2.5e-4 and 9e-7 of the largest flow
+    # spatial error O(Δx²) (P1) or O(Δx³) here (P2); measured against the series 2.5e-4 (P1)
+    # and 2.2e-5 (P2) of the largest jump, 2.5e-4 and 1.9e-7 of the largest flow
     assert np.max(np.abs(jump - expected[:, 0])) <= allowed * largest_jump
     assert np.max(np.abs(flow - expected[:, 1])) <= allowed * largest_flow
     far = np.array([reference.far_face(t) for t in times])
