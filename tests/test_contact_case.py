@@ -123,6 +123,12 @@ def test_the_summary_and_the_report_give_the_largest_jump(written):
     line = next(text for text in report.splitlines() if text.startswith("| bond"))
     assert f"+{bond['largest_jump_K']:.4g} K" in line and "layer\\_a \\| layer\\_b" in line
     assert "Probe 'on\\_bond' lies on interface 'bond' and reads the 'layer\\_a' side" in report
+    # mean h ≈ 55.6 W/(m²·K) over the exposed edges: h·R ≈ 0.11, at the common-practice limit
+    biot = results.assessment.biot[0]
+    contact = biot.heat_transfer_coefficient * R
+    assert contact >= 0.1
+    assert f"At 'bond', h·R = {contact:.3g}: " in report
+    assert "reaches the common-practice limit of 0.1" in report
 
 
 def test_the_vtk_files_show_the_jump_on_the_cut_mesh(written):

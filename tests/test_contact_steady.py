@@ -22,11 +22,9 @@ import scipy.sparse.linalg as spla
 from fem import (
     Convection,
     FixedTemperature,
-    HeatFlux,
     Insulated,
     Interface,
     Material,
-    ModelError,
     PropertyTable,
     ThermalModel,
     assemble,
@@ -250,68 +248,6 @@ def test_a_probe_on_the_interface_reads_the_first_regions_side():
     assert (system.probe_matrix @ steady(system))[0] == pytest.approx(first(L1), rel=1e-10)
 
 
-def three_regions():
-    """Regions a (left) and b (right) side by side under c, which covers both: the a|b
-    interface ends at a node that c shares with both."""
-    return Composite(
-        (
-            Rectangle(
-                0.01,
-                0.005,
-                edge_names={"left": "left", "bottom": "bottom", "top": "x", "right": "x"},
-                region="a",
-            ),
-            Rectangle(
-                0.01,
-                0.005,
-                corner=(0.01, 0.0),
-                edge_names={"left": "x", "bottom": "bottom", "top": "x", "right": "right"},
-                region="b",
-            ),
-            Rectangle(
-                0.02,
-                0.003,
-                corner=(0.0, 0.005),
-                edge_names={"left": "left", "bottom": "x", "top": "top", "right": "right"},
-                region="c",
-            ),
-        )
-    ).mesh(0.001)
-
-
-@pytest.mark.parametrize(("pairs", "joined"), [((("a", "b"),), 1), ((("a", "b"), ("a", "c")), 0)])
-def test_a_node_shared_with_a_third_region(pairs, joined):
-    """Where the a|b interface meets c, bonded to both, the node stays one (the field is
-    continuous there); when a|c is cut too, a is cut off at that node and it splits."""
-    section = three_regions()
-    steel = Material(40.0, 7800.0, 460.0)
-    interfaces = {f"{a}{b}": Interface((a, b), conductance=300.0) for a, b in pairs}
-    model = ThermalModel(
-        section,
-        dict.fromkeys("abc", steel),
-        {
-            "left": HeatFlux(5000.0),
-            "right": Convection(200.0, 20.0),
-            "top": Insulated(),
-            "bottom": Insulated(),
-        },
-        20.0,
-        interfaces=interfaces,
-    )
-    sides = model.section.sides[("a", "b")]
-    corner = np.isclose(model.section.mesh.p[0, sides.node_pairs[:, 0]], 0.01) & np.isclose(
-        model.section.mesh.p[1, sides.node_pairs[:, 0]], 0.005
-    )
-    assert int(np.sum(sides.node_pairs[corner, 0] == sides.node_pairs[corner, 1])) == joined
-    system = assemble(model)
-    field = steady(system)
-    # energy: what the flux brings in leaves through the convective edge, and no more
-    flows = system.edge_heat_flows(field, 0.0)
-    assert flows["left"] + flows["right"] == pytest.approx(0.0, abs=1e-9 * flows["left"])
-    for name, (jump, _) in system.interface_states(field).items():
-        assert abs(jump) > 0.0, name
-
-
 def test_axisymmetric_two_layer_cylinder_against_the_log_series():
     r_in, r_contact, r_out, height = 0.01, 0.02, 0.03, 0.005  # m
     k_in, k_out, h_bore, h_out, h_c = 20.0, 5.0, 300.0, 40.0, 800.0
@@ -374,64 +310,6 @@ def test_axisymmetric_two_layer_cylinder_against_the_log_series():
     assert found_jump == pytest.approx(jump, rel=1e-5)
 
 
-@pytest.mark.parametrize(
-    ("interfaces", "wanted"),
-    [
-        ({"c": Interface(("a", "z"), conductance=1.0)}, "'z'"),
-        ({"c": Interface(("a", "a"), conductance=1.0)}, "two different regions"),
-        (
-            {"c": Interface(("a", "b"), conductance=1.0), "d": Interface(("b", "a"), 1.0)},
-            "both join",
-        ),
-        ({"c": ("a", "b")}, "must be a fem.Interface"),
-    ],
-)
-def test_bad_interfaces_are_refused_with_the_interface_named(interfaces, wanted):
-    with pytest.raises(ModelError, match=wanted) as caught:
-        ThermalModel(
-            two_layers(), {"a": FIRST, "b": SECOND}, BOUNDARIES, 20.0, interfaces=interfaces
-        )
-    assert caught.value.argument.startswith("interfaces.")
-
-
-def test_regions_that_do_not_touch_are_refused():
-    sides = dict.fromkeys(("left", "right", "top", "bottom"), "out")
-    section = Composite(
-        (
-            Rectangle(0.01, 0.01, edge_names=sides, region="a"),
-            Rectangle(0.01, 0.01, corner=(0.02, 0.0), edge_names=sides, region="b"),
-        )
-    ).mesh(0.002)
-    with pytest.raises(ModelError, match="do not touch"):
-        ThermalModel(
-            section,
-            {"a": FIRST, "b": SECOND},
-            {"out": Insulated()},
-            20.0,
-            interfaces={"gap": Interface(("a", "b"), conductance=10.0)},
-        )
-
-
-@pytest.mark.parametrize(
-    ("kwargs", "wanted"),
-    [
-        ({"conductance": 1.0, "resistance": 1.0}, "one of them"),
-        ({}, "one of them"),
-        ({"conductance": -5.0}, "> 0"),
-        ({"resistance": float("inf")}, "> 0 and finite"),
-        ({"conductance": "5"}, "a number"),
-    ],
-)
-def test_an_interface_needs_one_positive_value(kwargs, wanted):
-    with pytest.raises(ModelError, match=wanted):
-        Interface(("a", "b"), **kwargs)
-
-
-def test_resistance_and_conductance_are_reciprocal():
-    assert Interface(("a", "b"), resistance=2e-4).conductance == pytest.approx(5000.0)
-    assert Interface(("a", "b"), conductance=250.0).resistance == pytest.approx(4e-3)
-
-
 def test_conductivity_tables_take_the_nonlinear_path_to_the_same_answer():
     """k given as a (flat) table of temperature: the residual and tangent are assembled at the
     field's temperatures, the interface term with the constant parts; the steady state is the
@@ -457,40 +335,3 @@ def test_conductivity_tables_take_the_nonlinear_path_to_the_same_answer():
     q, _, _ = series_wall(conductance)
     assert solution.interface_jump["contact"][-1] == pytest.approx(q / conductance, rel=1e-6)
     assert solution.checks.energy_balance_error <= 1e-6
-
-
-def test_the_interface_module_examples_run():
-    import doctest
-
-    import fem.interfaces
-
-    result = doctest.testmod(fem.interfaces)
-    assert result.attempted > 0 and result.failed == 0
-
-
-def test_an_embedded_region_is_cut_all_round_and_passes_on_its_heat():
-    """A heated insert inside a block: the interface is a closed loop, every node on it
-    splits, and at steady state the heat crossing it is the heat generated (energy)."""
-    block = Rectangle(
-        0.03, 0.02, edge_names=dict.fromkeys(("left", "right", "top", "bottom"), "out")
-    )
-    insert = Rectangle(0.01, 0.006, corner=(0.01, 0.007), region="insert")
-    section = Composite((block, insert)).mesh(0.001)
-    model = ThermalModel(
-        section,
-        {"solid": Material(15.0, 7900.0, 500.0), "insert": Material(150.0, 2330.0, 700.0)},
-        {"out": Convection(30.0, 20.0)},
-        20.0,
-        heat_sources={"insert": 2e6},
-        interfaces={"bond": Interface(("insert", "solid"), conductance=2000.0)},
-    )
-    split_nodes = model.section.sides[("insert", "solid")].node_pairs
-    assert np.all(split_nodes[:, 0] != split_nodes[:, 1])  # no node stays joined
-    assert model.section.mesh.nvertices == section.mesh.nvertices + len(split_nodes)
-    system = assemble(model)
-    field = steady(system)
-    jump, flow = system.interface_states(field)["bond"]
-    generated = 2e6 * 0.01 * 0.006  # W per metre of depth
-    assert flow == pytest.approx(generated, rel=1e-10)
-    assert -system.edge_heat_flows(field, 0.0)["out"] == pytest.approx(generated, rel=1e-10)
-    assert jump > 0.0  # the insert is the hotter side

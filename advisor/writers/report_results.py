@@ -6,6 +6,7 @@ from __future__ import annotations
 from fem.interfaces import largest_jumps, probe_sides
 
 from ..analysis.assessment import Assessment
+from ..analysis.biot import COMMON_LIMIT
 from .report_document import Block, Bullets, Callout, Facts, Paragraph, Part, Table, part
 from .report_words import duration, millimetres, number, parameter_words, quantity_words
 
@@ -132,6 +133,12 @@ def _interface_blocks(a: Assessment) -> list[Block]:
             rows,
         ),
     ]
+    largest_biot = max((b.value for b in a.biot), default=0.0)
+    for name, j in found.items():
+        contact = h * j.interface.resistance
+        words = _contact_words(contact, largest_biot)
+        if words:
+            blocks.append(Paragraph(f"At {name!r}, h·R = {contact:.3g}: {words}"))
     sides = probe_sides(a.solution.model)
     if sides:
         blocks.append(
@@ -172,6 +179,22 @@ def errors_part(a: Assessment) -> Part:
             ),
         ),
     )
+
+
+def _contact_words(contact: float, largest_biot: float) -> str:
+    """What an interface's h·R says about the lumped estimate (empty when it is small)."""
+    words = []
+    if contact > largest_biot:
+        words.append(
+            "it exceeds every Biot number above, so the interface holds back more heat than "
+            "conduction inside the part does"
+        )
+    if contact >= COMMON_LIMIT:
+        words.append(
+            f"on its own it reaches the common-practice limit of {COMMON_LIMIT:g}, so the two "
+            "sides need not share one temperature even where the Biot numbers are small"
+        )
+    return "; ".join(words) + "." if words else ""
 
 
 def models_part(a: Assessment) -> Part:
