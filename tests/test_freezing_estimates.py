@@ -263,3 +263,47 @@ def test_product_of_a_material_with_latent_heat():
         FreezingProduct.of_material(
             Freezing(latent_heat=0.0), unfrozen_temperature=5.0, frozen_temperature=-15.0
         )
+
+
+def test_product_of_a_material_given_by_its_enthalpy_table():
+    """A food given as an enthalpy table: an ideal product (c_u above the freezing point, the
+    latent heat released over the 0.2 K below it, c_f below) written as a table gives back the
+    freezing point, both specific heats and the latent heat it was built from."""
+    from fem import Material
+    from fem.enthalpy import EnthalpyTable
+
+    c_u, c_f, latent, t_f = 3600.0, 1900.0, 230e3, -1.2
+    # Points every 5 K keep the table's interpolation exactly linear away from the front.
+    temperatures = np.r_[np.arange(-40.0, -5.0, 5.0), t_f - 0.2, t_f, np.arange(0.0, 25.0, 5.0)]
+    values = np.where(
+        temperatures <= t_f - 0.2,
+        c_f * (temperatures + 40.0),
+        c_f * (t_f + 40.0) + latent + c_u * (temperatures - t_f),
+    )
+    material = Material.from_enthalpy(
+        0.5, 1040.0, EnthalpyTable(tuple(temperatures), tuple(values))
+    )
+    product = FreezingProduct.of_material(
+        material, unfrozen_temperature=5.0, frozen_temperature=-18.0
+    )
+    assert product.freezing_point == t_f
+    assert product.unfrozen_specific_heat == pytest.approx(c_u, rel=1e-9)
+    assert product.frozen_specific_heat == pytest.approx(c_f, rel=1e-9)
+    assert product.latent_heat == pytest.approx(latent, rel=1e-9)
+    with pytest.raises(AdvisorError, match="initial freezing point"):
+        FreezingProduct.of_material(material, unfrozen_temperature=5.0, frozen_temperature=0.0)
+
+
+def test_freezing_times_of_a_library_food():
+    """The library's lean beef (Choi–Okos, an enthalpy table) gives Plank and Pham times: Pham
+    (1986) adds the pre-cooling and sub-cooling Plank leaves out, so it is the longer."""
+    from fem.solids import material
+
+    product = FreezingProduct.of_material(
+        material("lean beef"), unfrozen_temperature=5.0, frozen_temperature=-18.0
+    )
+    assert -2.0 < product.freezing_point < -1.0  # the entry's initial freezing point, -1.7 degC
+    assert 150e3 < product.latent_heat < 250e3  # about 0.7 of water's 334 kJ/kg, J/kg
+    plank = plank_time(product, 0.03, 25.0, -30.0, "slab")
+    pham = pham_time(product, 0.03, 25.0, -30.0, 5.0, -18.0, "slab")
+    assert plank < pham

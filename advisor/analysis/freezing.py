@@ -94,6 +94,8 @@ class FreezingProduct:
         released between ``solidus`` and ``liquidus`` °C): the freezing point is the
         liquidus; c_u, c_f and k_f are the material's at ``unfrozen_temperature`` (above the
         liquidus) and ``frozen_temperature`` (below the solidus), °C."""
+        if getattr(material, "specific_enthalpy", None) is not None:
+            return cls._of_enthalpy_table(material, unfrozen_temperature, frozen_temperature)
         latent = getattr(material, "latent_heat", 0.0) or 0.0
         liquidus, solidus = getattr(material, "liquidus", None), getattr(material, "solidus", None)
         if latent <= 0 or liquidus is None or solidus is None:
@@ -120,6 +122,45 @@ class FreezingProduct:
             float(np.asarray(material.conductivity_at(frozen_temperature))),
             specific_heat(unfrozen_temperature),
             specific_heat(frozen_temperature),
+        )
+
+    @classmethod
+    def _of_enthalpy_table(
+        cls, material, unfrozen_temperature: float, frozen_temperature: float
+    ) -> FreezingProduct:
+        """The product of a material given by its enthalpy table (a food through freezing):
+        the freezing point is where the table is steepest (the initial freezing point, where
+        ice starts to form); c_u and c_f are the table's slopes at the unfrozen and frozen
+        temperatures; the latent heat is the enthalpy released from the freezing point down to
+        the frozen temperature less its sensible part at c_f, so that Plank's and Pham's
+        balances remove the table's whole enthalpy change."""
+        table = material.specific_enthalpy
+        temperatures = np.asarray(table.temperatures, dtype=float)
+        steepest = np.argmax(np.diff(table.values) / np.diff(temperatures))
+        freezing_point = float(temperatures[steepest + 1])
+        if not frozen_temperature < freezing_point < unfrozen_temperature:
+            raise AdvisorError(
+                f"the frozen temperature ({frozen_temperature:g} degC) must lie below the "
+                f"initial freezing point of {getattr(material, 'name', 'the material')!r} "
+                f"({freezing_point:g} degC, where its enthalpy table is steepest) and the "
+                f"unfrozen one ({unfrozen_temperature:g} degC) above it"
+            )
+        frozen_specific_heat = float(table.slope(frozen_temperature))
+        released = float(table(freezing_point) - table(frozen_temperature))
+        latent = released - frozen_specific_heat * (freezing_point - frozen_temperature)
+        if latent <= 0:
+            raise AdvisorError(
+                f"material {getattr(material, 'name', material)!r} releases no latent heat "
+                f"between {freezing_point:g} and {frozen_temperature:g} degC, so it has no "
+                "freezing time"
+            )
+        return cls(
+            float(material.density),
+            latent,
+            freezing_point,
+            float(np.asarray(material.conductivity_at(frozen_temperature))),
+            float(table.slope(unfrozen_temperature)),
+            frozen_specific_heat,
         )
 
     @property

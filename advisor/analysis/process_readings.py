@@ -32,15 +32,21 @@ def freezing_product(model, lumped, freezing, freeze_to) -> FreezingProduct | No
         return freezing
     volumes = model.section.facts.region_volumes
     freezing_regions = [
-        (volumes[r], m) for r, m in model.materials.items() if getattr(m, "latent_heat", 0)
+        (volumes[r], m)
+        for r, m in model.materials.items()
+        if getattr(m, "latent_heat", 0) or getattr(m, "specific_enthalpy", None) is not None
     ]
     if not freezing_regions:
         raise AdvisorError(
-            "freeze_to needs a material with latent heat (latent_heat, solidus, liquidus) or "
-            "a FreezingProduct given as freezing"
+            "freeze_to needs a material with latent heat (latent_heat with solidus and "
+            "liquidus, or an enthalpy table) or a FreezingProduct given as freezing"
         )
     _, material = max(freezing_regions, key=lambda pair: pair[0])
-    unfrozen = max(lumped.initial_temperature, material.liquidus + 1.0)
+    # Above the liquidus for a latent-heat material; an enthalpy table finds its own point.
+    liquidus = getattr(material, "liquidus", None)
+    unfrozen = lumped.initial_temperature
+    if liquidus is not None:
+        unfrozen = max(unfrozen, liquidus + 1.0)
     return FreezingProduct.of_material(
         material, unfrozen_temperature=unfrozen, frozen_temperature=freeze_to
     )
