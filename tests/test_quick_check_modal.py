@@ -122,6 +122,17 @@ def test_radiation_and_temperature_dependent_conductivity_are_named():
     assert "radiation" in check.assumptions_broken[0]
     assert "early for cooling" in check.assumptions_broken[0]
 
+    # A coefficient that follows the surface temperature is no radiation, and its direction
+    # depends on its curve: the reason must not borrow radiation's.
+    from fem import SurfaceCurve, SurfaceTemperatureConvection
+
+    h = 0.1 * CONDUCTIVITY / LENGTH
+    curve = SurfaceTemperatureConvection(SurfaceCurve((0.0, 500.0), (h, 3 * h)), AMBIENT)
+    check = quick_check(model_of("slab", 0.1, cooled=curve), target=TARGET)
+    assert len(check.assumptions_broken) == 1
+    assert "follows the surface temperature" in check.assumptions_broken[0]
+    assert "radiat" not in check.assumptions_broken[0]
+
     varying = Material(PropertyTable((0.0, 300.0), (15.0, 25.0)), DENSITY, SPECIFIC_HEAT)
     check = quick_check(model_of("slab", 0.1, material=varying), target=TARGET)
     assert len(check.assumptions_broken) == 1

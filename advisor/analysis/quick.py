@@ -138,12 +138,20 @@ def assumptions_broken(model: ThermalModel, temperature: float) -> tuple[str, ..
     """Where ``model`` leaves the modal estimate's assumptions, each with which way that
     moves the estimate; ``temperature`` °C is where coefficients and properties were taken."""
     reasons = []
-    nonlinear = sorted({n for n, c in model.conditions() if not c.linear})
-    if nonlinear:
+    nonlinear = {n: c.name for n, c in model.conditions() if not c.linear}
+    radiating = sorted(n for n, kind in nonlinear.items() if kind == "radiation")
+    following = sorted(n for n, kind in nonlinear.items() if kind != "radiation")
+    if radiating:
         reasons.append(
-            f"edges {nonlinear} exchange heat nonlinearly (radiation): the mode takes their "
-            f"coefficient at {temperature:.4g} °C; radiation weakens as the surface nears its "
-            "surroundings, so the estimate is early for cooling and late for heating"
+            f"edges {radiating} radiate: the mode takes their coefficient at "
+            f"{temperature:.4g} °C; radiation weakens as the surface nears its surroundings, so "
+            "the estimate is early for cooling and late for heating"
+        )
+    if following:
+        reasons.append(
+            f"the coefficient on edges {following} follows the surface temperature (a curve or "
+            f"a correlation): the mode takes it at {temperature:.4g} °C, which moves the "
+            "estimate either way"
         )
     tables = {
         r: m for r, m in model.materials.items() if isinstance(m.conductivity, PropertyTable)
