@@ -163,8 +163,17 @@ def _curve_axes(axes, condition, groups: tuple[str, ...], bands: list[SurfaceBan
         side.spines[["top"]].set_visible(False)
     handles, labels = axes.get_legend_handles_labels()
     more = flux_axes.get_legend_handles_labels()
-    axes.legend(handles + more[0], labels + more[1], fontsize=8, frameon=False, loc="upper right")
-    axes.set_title(f"{names}: the curve used (dots: the table as given)", fontsize=10, loc="left")
+    # Below the axes: inside, the band's label and the curves compete for the same corner.
+    axes.legend(
+        handles + more[0], labels + more[1], fontsize=8, frameon=False, loc="upper center",
+        bbox_to_anchor=(0.5, -0.2), ncol=len(labels) + len(more[1]),
+    )  # fmt: skip
+    tabled = any(isinstance(curve, SurfaceCurve) for _, curve in condition.curve)
+    what = "dots: the table as given" if tabled else ""
+    if getattr(condition, "correlation", None):
+        what = f"{condition.correlation.replace('-', ' ')} correlation, {condition.fluid}"
+    title = f"{names}: the curve used" + (f" ({what})" if what else "")
+    axes.set_title(title, fontsize=10, loc="left")
 
 
 # The figures :func:`process_plots` may add: file stem -> (title, caption, builder).
