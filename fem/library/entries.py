@@ -58,7 +58,8 @@ class LibraryEntry:
         if self.valid_range is None:
             return self.description
         low, high = self.valid_range
-        return f"{low:g} to {high:g} °C"
+        # Whole degrees: ranges quoted in kelvin read 26.85 °C otherwise.
+        return f"{low:.0f} to {high:.0f} °C"
 
 
 def entry(
