@@ -109,7 +109,8 @@ def range_warnings(entries, materials: dict, lowest: float, highest: float) -> l
             continue
         seen.add(found.name)
         low, high = found.valid_range
-        slack = 1e-6 * max(high - low, 1.0)
+        # A stepping overshoot of a fraction of a kelvin is no departure from the data.
+        slack = max(0.5, 1e-3 * (high - low))
         if lowest < low - slack or highest > high + slack:
             lines.append(
                 f"{where} ({lowest:.4g} to {highest:.4g} degC) leave the range of the "
