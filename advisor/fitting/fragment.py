@@ -151,10 +151,24 @@ def spliced_case(case_text: str, fragment: str, groups: list[str]) -> str:
     return text
 
 
-def uncertainty_comment(names, values, band, units) -> str:
-    """Lines 'name = value (95 %: low to high) unit' for the fragment's heading."""
-    rows = zip(names, values, np.asarray(band), units, strict=True)
+def decimals(error: float) -> int:
+    """Decimal places that show a standard error ``error`` to two significant digits."""
+    if not (error > 0 and np.isfinite(error)):
+        return 3
+    return max(0, 1 - int(np.floor(np.log10(error))))
+
+
+def with_interval(name: str, value: float, low: float, high: float, unit: str, error: float):
+    """'name = value unit (95 % interval low to high)', to the digits the error warrants."""
+    d = decimals(error)
+    unit = f" {unit}" if unit else ""
+    return f"{name} = {value:.{d}f}{unit} (95 % interval {low:.{d}f} to {high:.{d}f})"
+
+
+def uncertainty_comment(names, values, band, units, errors) -> str:
+    """Lines 'name = value unit (95 % interval low to high)' for the fragment's heading."""
+    rows = zip(names, values, np.asarray(band), units, errors, strict=True)
     return "\n".join(
-        f"{name} = {value:.4g} {unit} (95 % interval {low:.4g} to {high:.4g})".replace("  ", " ")
-        for name, value, (low, high), unit in rows
+        with_interval(name, value, low, high, unit, error)
+        for name, value, (low, high), unit, error in rows
     )

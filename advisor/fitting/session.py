@@ -133,7 +133,9 @@ def fit_case(
     groups = list(dict.fromkeys(b.request.group for b in parameters.blocks))
     heading = (
         f"Fitted by soakwise fit to {measured.path.name} ({result.verdict.rating}).\n"
-        + uncertainty_comment(result.names, result.values, result.band, result.units)
+        + uncertainty_comment(
+            result.names, result.values, result.band, result.units, result.standard_errors
+        )
     )
     fragment = boundary_fragment(fitted, groups, heading)
     fitted_case, note = None, ""
