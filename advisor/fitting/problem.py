@@ -74,8 +74,12 @@ class FitProblem:
     ) -> None:
         from fem import assemble
 
+        from geometries import AXIS_GROUP
+
         probes = {**dict(model.probes), **measured.positions}
-        self.given = dict(model.boundaries)
+        # The axis of an axisymmetric section is added by the model itself (and refused back
+        # as a tuple of conditions), so the groups handed on leave it out.
+        self.given = {g: c for g, c in model.boundaries.items() if g != AXIS_GROUP}
         self.parameters = parameters
         self.measured = measured
         self.data = measured.stacked()
