@@ -98,17 +98,16 @@ def boundary_fragment(boundaries: dict, groups: list[str], heading: str = "") ->
     Examples
     --------
     >>> from fem import Convection
-    >>> print(boundary_fragment({"air": (Convection(412.5, 20.0),)}, ["air"]))
+    >>> print(boundary_fragment({"air": (Convection(412.5, 20.0),)}, ["air"]), end="")
     [boundaries.air]
     convection = { coefficient = "412.5 W/(m^2*K)", ambient = "20 degC" }
-    <BLANKLINE>
     """
     lines = [f"# {line}".rstrip() for line in heading.splitlines()]
     for group in groups:
         lines.append(f"[boundaries.{_key(group)}]")
         lines += [_condition(c) for c in boundaries[group]]
         lines.append("")
-    return "\n".join(lines) + "\n"
+    return "\n".join(lines).rstrip("\n") + "\n"
 
 
 def _key(name: str) -> str:

@@ -73,7 +73,6 @@ class FitProblem:
         progress: Callable[[int], None] | None = None,
     ) -> None:
         from fem import assemble
-
         from geometries import AXIS_GROUP
 
         probes = {**dict(model.probes), **measured.positions}
