@@ -60,7 +60,8 @@ def bar(size: float = 0.005) -> ThermalModel:
 
 def readings(model, condition, noise: float, tmp_path: Path, seed: int = 7) -> Path:
     """A measured file made by the solver with ``condition`` on "air", plus noise."""
-    truth = dataclasses.replace(model, boundaries={**model.boundaries, "air": (condition,)})
+    conditions = condition if isinstance(condition, tuple) else (condition,)
+    truth = dataclasses.replace(model, boundaries={**model.boundaries, "air": conditions})
     solution = solve(truth, END, time_step=STEP, output_times=(END,))
     times = np.arange(LOG, END + 1, LOG)
     draws = np.random.default_rng(seed).standard_normal((times.size, 2))
@@ -156,3 +157,23 @@ def test_coefficient_against_surface_temperature_round_trip(tmp_path):
     # the check covers the nodes inside the range the surface passed through.
     assert nodes[0] >= 20.0
     within_three_errors(result, expected)
+
+
+def test_emissivity_round_trip(tmp_path):
+    # A hot bar cooling mostly by radiation (ε = 0.7) beside weak convection (h = 10, known).
+    from fem import Radiation
+
+    model, noise = bar(), 0.5
+    base = dataclasses.replace(
+        model,
+        boundaries={
+            **model.boundaries,
+            "air": (Convection(10.0, AMBIENT), Radiation(0.5, AMBIENT)),
+        },
+    )
+    path = readings(
+        base, (Convection(10.0, AMBIENT), Radiation(0.7, AMBIENT)), noise, tmp_path, seed=3
+    )
+    result, _ = fitted(base, "emissivity:air", path, noise)
+    assert abs(result.values[0] - 0.7) < 3.0 * result.standard_errors[0], result.values
+    assert result.standard_errors[0] < 0.01
