@@ -28,7 +28,8 @@ CORRELATION_LIMIT = 0.95  # common practice: above this, two parameters trade of
 RELATIVE_ERROR_LIMIT = 0.25  # a standard error above a quarter of the value: weakly determined
 SENSITIVITY_CHANGE = 0.10  # a 10 % change of a parameter ...
 LAMBDA_SPAN = (1e-10, 1e6)  # λ searched over this span times trace(JᵀJ)/trace(DᵀD)
-ROUNDS = 3  # choices of λ, each followed by a fit from the last estimate
+ROUNDS = 3  # choices of λ by the discrepancy principle, each followed by a fit
+SETTLED = 4.0  # a new λ within this factor of the last keeps the last fit
 
 
 @dataclass(frozen=True)
@@ -134,21 +135,37 @@ def fit(problem: FitProblem, *, uncertainty: float | None = None) -> FitResult:
             "thermocouples' random error: give --uncertainty (K, one standard deviation)",
             argument="uncertainty",
         )
-    values, weight, last_end = parameters.stacked("start"), 0.0, None
+    values, weight = parameters.stacked("start"), 0.0
     if parameters.size > len(parameters.blocks):
         values = _constant_start(problem)
-    for _ in range(ROUNDS if penalty.shape[0] else 1):
-        if penalty.shape[0]:
-            jacobian = problem.jacobian(values, problem.difference_step)
-            chosen, end = discrepancy_weight(
-                problem.residuals(values), jacobian, penalty, values, uncertainty
-            )
-            settled = weight and (0.5 < chosen / weight < 2.0 or (end and end == last_end))
-            if settled:
-                break
-            weight, last_end = chosen, end
-        values = _least_squares(problem, values, penalty, weight)
+    if penalty.shape[0]:
+        values, weight = _regularised(problem, values, penalty, uncertainty)
+    else:
+        values = _least_squares(problem, values, penalty, 0.0)
     return _result(problem, values, penalty, weight, uncertainty, started)
+
+
+def _regularised(problem: FitProblem, values, penalty, uncertainty) -> tuple[np.ndarray, float]:
+    """Fit with the smoothest tables first (λ at the top of its span: a well-posed start),
+    then with λ by the discrepancy principle at that estimate, again until λ settles."""
+    jacobian = problem.jacobian(values, problem.difference_step)
+    weight, last_end = _weight_scale(jacobian, penalty) * LAMBDA_SPAN[1], "largest"
+    values = _least_squares(problem, values, penalty, weight)
+    for _ in range(ROUNDS):
+        jacobian = problem.jacobian(values, problem.difference_step)
+        chosen, end = discrepancy_weight(
+            problem.residuals(values), jacobian, penalty, values, uncertainty
+        )
+        if 1 / SETTLED < chosen / weight < SETTLED or (end and end == last_end):
+            break
+        weight, last_end = chosen, end
+        values = _least_squares(problem, values, penalty, weight)
+    return values, weight
+
+
+def _weight_scale(jacobian, penalty) -> float:
+    """trace(JᵀJ)/trace(DᵀD): λ in units that make the two terms comparable, K²."""
+    return float(np.sum(jacobian**2) / max(np.sum(penalty**2), 1e-300))
 
 
 def _least_squares(problem: FitProblem, start, penalty, weight) -> np.ndarray:
@@ -171,8 +188,8 @@ def _least_squares(problem: FitProblem, start, penalty, weight) -> np.ndarray:
         jac=jacobian,
         bounds=(lower, upper),
         x_scale="jac",
-        xtol=1e-7,  # relative: far below any standard error a fit can have
-        ftol=1e-9,
+        xtol=1e-6,  # relative: far below any standard error a fit can have
+        ftol=1e-8,
         max_nfev=60,
     )
     return found.x
@@ -199,9 +216,9 @@ def _constant_start(problem: FitProblem) -> np.ndarray:
         diff_step=problem.difference_step,
         bounds=(lower, upper),
         x_scale="jac",
-        xtol=1e-4,
-        ftol=1e-6,
-        max_nfev=30,
+        xtol=1e-3,  # a start: the full fit refines it
+        ftol=1e-4,
+        max_nfev=20,
     )
     return expand(found.x)
 
@@ -222,7 +239,7 @@ def discrepancy_weight(residual, jacobian, penalty, values, uncertainty) -> floa
     """
     normal, gradient = jacobian.T @ jacobian, jacobian.T @ residual
     smooth = penalty.T @ penalty
-    scale = np.trace(normal) / max(np.trace(smooth), 1e-300)
+    scale = _weight_scale(jacobian, penalty)
 
     def misfit(log_weight: float) -> float:
         weight = scale * 10.0**log_weight

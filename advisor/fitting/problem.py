@@ -98,6 +98,7 @@ class FitProblem:
         self.trials = 0
         self.solve_seconds = 0.0
         self._memory: OrderedDict[bytes, object] = OrderedDict()
+        self._last_jacobian: tuple | None = None
 
     @property
     def nonlinear(self) -> bool:
@@ -144,7 +145,12 @@ class FitProblem:
         return (self.predicted(values) - self.data).ravel()
 
     def jacobian(self, values: np.ndarray, relative_step: float) -> np.ndarray:
-        """∂(predicted)/∂(values) by forward differences, K per unit of each parameter."""
+        """∂(predicted)/∂(values) by forward differences, K per unit of each parameter; the
+        last one is remembered (the estimate's covariance asks again where the fit ended)."""
+        values = np.asarray(values, dtype=float)
+        key = (values.tobytes(), relative_step)
+        if self._last_jacobian is not None and self._last_jacobian[0] == key:
+            return self._last_jacobian[1].copy()
         base = self.residuals(values)
         columns = []
         for j, value in enumerate(values):
@@ -152,7 +158,9 @@ class FitProblem:
             moved = np.array(values, dtype=float)
             moved[j] += step
             columns.append((self.residuals(moved) - base) / step)
-        return np.column_stack(columns)
+        jacobian = np.column_stack(columns)
+        self._last_jacobian = (key, jacobian)
+        return jacobian.copy()
 
     @property
     def difference_step(self) -> float:
