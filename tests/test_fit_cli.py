@@ -209,3 +209,22 @@ def test_an_existing_folder_is_kept_without_force(trial, tmp_path, capsys):
     assert "already exists" in run_refused(arguments, capsys)
     assert "is not replaced" in run_refused([*arguments, "--force"], capsys)
     assert (out / "notes.txt").read_text() == "mine"
+
+
+def test_the_starter_readings_are_what_their_recipe_makes():
+    # examples/fit-trial-data.py remakes the readings; a logger's rounding to 0.1 K may flip
+    # a last digit where the solver's round-off differs, never more.
+    import importlib.util
+
+    spec = importlib.util.spec_from_file_location("trial_data", EXAMPLES / "fit-trial-data.py")
+    recipe = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(recipe)
+    times, logged = recipe.readings()
+    from advisor.fitting.measured import read_measured
+
+    shipped = read_measured(
+        EXAMPLES / "fit-trial-measured.csv", {"core": (0, 0), "under_skin": (0.018, 0)}
+    )
+    assert shipped.times.tolist() == times.tolist()
+    for name, values in logged.items():
+        assert abs(shipped.readings[name] - values).max() <= 0.1 + 1e-9, name
