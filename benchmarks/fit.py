@@ -13,7 +13,8 @@ every 1/60 of the run:
 
 The time counts everything after meshing: assembly, every transient solve, the covariance and
 the lumped readings; the processor time of the process is printed beside the wall time (on a
-loaded machine the wall time is the larger by the share of the cores others took). Run from the repository root::
+loaded machine the wall time is the larger by the share of the cores others took). Run from
+the repository root::
 
     python -m benchmarks.fit --nodes 5k --table-nodes 5k
 
