@@ -81,8 +81,9 @@ def execute(args: argparse.Namespace) -> int:
         case,
         args.measured,
         requests,
-        units=_pairs(args.units, "--units"),
-        mapping=_pairs(args.map, "--map"),
+        units=_pairs(args.units, "--units", "COLUMN=UNIT, e.g. time=min"),
+        mapping=_pairs(args.map, "--map", "COLUMN=PROBE, or COLUMN=X, Y with units"),
+        uncertainty=args.uncertainty,
     )
     out = args.out or args.case.parent / f"{args.case.stem}-fit"
     keep = (args.case, args.measured)
@@ -122,12 +123,12 @@ def _default_requests(case) -> list[str]:
     return [f"h:{group}" for group in groups]
 
 
-def _pairs(items: list[str], option: str) -> dict[str, str]:
+def _pairs(items: list[str], option: str, form: str) -> dict[str, str]:
     pairs = {}
     for item in items:
         name, equals, value = item.partition("=")
         if not equals or not name.strip() or not value.strip():
-            raise AdvisorError(f"{option} {item!r}: write COLUMN=VALUE", argument=option)
+            raise AdvisorError(f"{option} {item!r}: write {form}", argument=option)
         pairs[name.strip()] = value.strip()
     return pairs
 

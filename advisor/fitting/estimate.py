@@ -124,17 +124,7 @@ def fit(problem: FitProblem, *, uncertainty: float | None = None) -> FitResult:
     started = time.perf_counter()
     parameters = problem.parameters
     penalty = parameters.curvature()
-    if uncertainty is not None and not uncertainty > 0:
-        raise AdvisorError(
-            f"the thermocouple uncertainty must be > 0 K, got {uncertainty!r}",
-            argument="uncertainty",
-        )
-    if penalty.shape[0] and uncertainty is None:
-        raise AdvisorError(
-            "a table of nodes is regularised by the discrepancy principle, which needs the "
-            "thermocouples' random error: give --uncertainty (K, one standard deviation)",
-            argument="uncertainty",
-        )
+    check_uncertainty(uncertainty, tables=bool(penalty.shape[0]))
     values, weight = parameters.stacked("start"), 0.0
     if parameters.size > len(parameters.blocks):
         values = _constant_start(problem)
@@ -143,6 +133,27 @@ def fit(problem: FitProblem, *, uncertainty: float | None = None) -> FitResult:
     else:
         values = _least_squares(problem, values, penalty, 0.0)
     return _result(problem, values, penalty, weight, uncertainty, started)
+
+
+def check_uncertainty(uncertainty: float | None, *, tables: bool) -> None:
+    """Refuse an uncertainty that is not > 0, or none when a regularised table is fitted.
+
+    Raises
+    ------
+    AdvisorError
+    """
+    if uncertainty is not None and not uncertainty > 0:
+        raise AdvisorError(
+            f"the thermocouple uncertainty must be > 0 K, got {uncertainty!r}",
+            argument="uncertainty",
+        )
+    if tables and uncertainty is None:
+        raise AdvisorError(
+            "a table of more than two nodes is regularised by the discrepancy principle, "
+            "which needs the thermocouples' random error: give --uncertainty (K, one standard "
+            "deviation)",
+            argument="uncertainty",
+        )
 
 
 def _regularised(problem: FitProblem, values, penalty, uncertainty) -> tuple[np.ndarray, float]:

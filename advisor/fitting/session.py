@@ -10,7 +10,7 @@ from pathlib import Path
 
 import numpy as np
 
-from .estimate import FitResult, fit
+from .estimate import FitResult, check_uncertainty, fit
 from .fragment import boundary_fragment, spliced_case, uncertainty_comment
 from .lumped_fit import LumpedReading, lumped_readings
 from .measured import MeasuredCurves, check_positions, read_measured
@@ -60,6 +60,7 @@ def prepare(
     *,
     units: Mapping[str, str] | None = None,
     mapping: Mapping[str, str] | None = None,
+    uncertainty: float | None = None,
 ) -> tuple[list[FitRequest], MeasuredCurves]:
     """Parse the requests and read the measured file against the case: every check that
     needs no mesh (the CLI calls this before it touches the results folder).
@@ -67,10 +68,12 @@ def prepare(
     Raises
     ------
     AdvisorError
-        A request that is not understood, or a measured file that cannot be taken
-        (:class:`~.measured.MeasuredFileError`, naming file, line and column).
+        A request that is not understood, a table without an uncertainty, or a measured
+        file that cannot be taken (:class:`~.measured.MeasuredFileError`, naming file, line
+        and column).
     """
     parsed = [parse_request(text) for text in requests]
+    check_uncertainty(uncertainty, tables=any(r.nodes > 2 for r in parsed))
     count = sum(r.nodes for r in parsed)
     measured = read_measured(
         measured_path, case.probes, units=units, mapping=mapping, parameters=count
