@@ -126,11 +126,11 @@ def fit(problem: FitProblem, *, uncertainty: float | None = None) -> FitResult:
     penalty = parameters.curvature()
     check_uncertainty(uncertainty, tables=bool(penalty.shape[0]))
     values, weight = parameters.stacked("start"), 0.0
-    if parameters.size > len(parameters.blocks):
-        values = _constant_start(problem)
     if penalty.shape[0]:
         values, weight = _regularised(problem, values, penalty, uncertainty)
     else:
+        if parameters.size > len(parameters.blocks):
+            values = _constant_start(problem)
         values = _least_squares(problem, values, penalty, 0.0)
     return _result(problem, values, penalty, weight, uncertainty, started)
 
@@ -157,11 +157,12 @@ def check_uncertainty(uncertainty: float | None, *, tables: bool) -> None:
 
 
 def _regularised(problem: FitProblem, values, penalty, uncertainty) -> tuple[np.ndarray, float]:
-    """Fit with the smoothest tables first (λ at the top of its span: a well-posed start),
-    then with λ by the discrepancy principle at that estimate, again until λ settles."""
+    """Fit the smoothest tables first (the limit λ → ∞: only tables the penalty does not see,
+    straight lines, so a well-posed fit of a few values), then take λ by the discrepancy
+    principle at that estimate and fit again, until λ settles."""
+    values = _smoothest(problem, values, penalty)
     jacobian = problem.jacobian(values, problem.difference_step)
     weight, last_end = _weight_scale(jacobian, penalty) * LAMBDA_SPAN[1], "largest"
-    values = _least_squares(problem, values, penalty, weight)
     for _ in range(ROUNDS):
         jacobian = problem.jacobian(values, problem.difference_step)
         chosen, end = discrepancy_weight(
@@ -172,6 +173,33 @@ def _regularised(problem: FitProblem, values, penalty, uncertainty) -> tuple[np.
         weight, last_end = chosen, end
         values = _least_squares(problem, values, penalty, weight)
     return values, weight
+
+
+def _smoothest(problem: FitProblem, start, penalty) -> np.ndarray:
+    """The best fit among values the penalty does not see (its null space: a straight line per
+    table, single values as they are), a few parameters, values kept within the bounds."""
+    from scipy.linalg import null_space
+    from scipy.optimize import least_squares
+
+    parameters = problem.parameters
+    lower, upper = parameters.stacked("lower"), parameters.stacked("upper")
+    basis = null_space(penalty)
+
+    def expand(reduced):
+        return np.clip(basis @ reduced, lower, upper)
+
+    reduced = np.linalg.lstsq(basis, np.clip(start, lower, upper), rcond=None)[0]
+    found = least_squares(
+        lambda x: problem.residuals(expand(x)),
+        reduced,
+        jac="2-point",
+        diff_step=problem.difference_step,
+        x_scale="jac",
+        xtol=1e-6,
+        ftol=1e-8,
+        max_nfev=40,
+    )
+    return expand(found.x)
 
 
 def _weight_scale(jacobian, penalty) -> float:
