@@ -19,7 +19,7 @@ import sys
 import threading
 
 from ..errors import AdvisorError
-from . import check, converge, demo, materials, new, run, show, sweep
+from . import check, converge, demo, fit, materials, new, run, show, sweep
 from .common import (
     EPILOG,
     EXIT_FAILED,
@@ -49,6 +49,7 @@ COMMANDS = {
     "show": show,
     "sweep": sweep,
     "converge": converge,
+    "fit": fit,
 }
 # Errors in what the user gave (exit 2) and failures of the run (exit 1), by package and name:
 # a class whose package was never imported cannot have been raised, so none is imported here.
