@@ -25,6 +25,7 @@ from .machine import (
     read_bandwidth,
     time_solves,
 )
+from .peers import task_peer
 from .startup import task_startup
 from .study import task_study
 
@@ -411,4 +412,5 @@ TASKS = {
     "profile": task_profile,
     "startup": task_startup,
     "study": task_study,
+    "peer": task_peer,
 }

@@ -37,6 +37,7 @@ GROUPS = (
     "angle",
     "profile",
     "study",
+    "peers",
 )
 SHIPPED, WHAT_IF = "soakwise", "soakwise, SuperLU"
 SCRIPT, IVP = "(a) spsolve script", "(b) solve_ivp BDF"
@@ -148,6 +149,13 @@ def parser() -> argparse.ArgumentParser:
     )
     p.add_argument("--output", type=Path, default=DEFAULT_OUTPUT, help="the JSON file")
     p.add_argument(
+        "--peer-sizes",
+        type=counts,
+        default=None,
+        help="node counts of the side-by-side plunge with other tools (10k,100k)",
+    )
+    p.add_argument("--peer-steps", type=int, default=None, help="their steps (100)")
+    p.add_argument(
         "--rerender",
         type=Path,
         default=None,
@@ -170,6 +178,8 @@ FULL = {
     "profile_steps": 200,
     "script_steps": 5,
     "bandwidth_gb": 1.0,
+    "peer_sizes": [10_000, 100_000],
+    "peer_steps": 100,
 }
 QUICK = {
     "sizes": [1_000, 3_000],
@@ -185,6 +195,8 @@ QUICK = {
     "profile_steps": 20,
     "script_steps": 1,
     "bandwidth_gb": 0.2,
+    "peer_sizes": [1_000],
+    "peer_steps": 10,
 }
 
 
@@ -442,6 +454,8 @@ class Suite:
         if "study" in self.groups:
             quick = {"cases": 8, "mesh_size": "4 mm"} if a.quick else {"cases": 64}
             self.r.run("study-sweep", "study", quick, case="study")
+        if "peers" in self.groups:
+            self.peers()
         if "square" in self.groups:
             for nodes in square_sizes:
                 if nodes > 200_000:
@@ -507,6 +521,34 @@ class Suite:
             case=key,
             variant=SCRIPT,
         )
+
+    def peers(self) -> None:
+        """The plunge by soakwise and by the tools a user would pick instead; a tool that is
+        not installed is a row saying so."""
+        from .peers import PEERS, missing
+
+        a = self.args
+        for nodes in sorted(a.peer_sizes):
+            found = self.mesh("square", nodes)
+            if found is None:
+                continue
+            path, actual = found
+            for peer in PEERS:
+                key = f"peers-{short(nodes)}-{peer.split()[0].lower()}"
+                meta = {"task": "peer", "case": f"peers-{short(nodes)}", "variant": peer}
+                reason = missing(peer)
+                if reason:
+                    self.r.outcomes[key] = Outcome("skipped", {"reason": reason}, meta=meta)
+                    self.r.order.append(key)
+                    continue
+                params = {
+                    "peer": peer,
+                    "mesh": path,
+                    "nodes": actual,
+                    "end_time": self.end,
+                    "steps": a.peer_steps,
+                }
+                self.r.run(key, "peer", params, actual, case=meta["case"], variant=peer)
 
     def plunge(self) -> None:
         a = self.args

@@ -6,6 +6,8 @@ import json
 import math
 import time
 
+from .peers import peer_rows, print_peers
+
 SHIPPED, WHAT_IF = "soakwise", "soakwise, SuperLU"
 SCRIPT, IVP = "(a) spsolve script", "(b) solve_ivp BDF"
 
@@ -374,6 +376,7 @@ def build_report(args, suite, machine, source, started) -> dict:
         "plunge_end_time_seconds": suite.end,
         "bandwidth": bandwidth,
         "rows": rows,
+        "peers": peer_rows(outcomes),
         "targets": targets,
         "profile": None
         if profile is None
@@ -562,6 +565,8 @@ def print_report(report: dict) -> None:
                     f"{d['copy_bytes_per_s'] / 1e9:.2f} GB/s"
                 )
             print(f"{k:32s} {t['status']:10s} {extra}")
+
+    print_peers(report.get("peers") or [])
 
     calibration = report.get("calibration")
     if calibration:
