@@ -8,8 +8,10 @@ of radiation and c(T)). Two ways to factorise them, both reached through
   which orders the matrix itself (METIS nested dissection) and permutes inside its solve. It
   stores one triangle: on the benchmark square a solve took 0.31 ms instead of 0.67 ms at 10k
   unknowns, 5.9 ms instead of 14.4 ms at 97k and 131 ms instead of 188 ms at 992k, while its
-  factorisation took about twice as long (16.1 s against 5.0 s of ordering and 7.5 s of LU at
-  992k). The default for step matrices when ``cholespy`` is installed.
+  factorisation took longer (16.1 s against 5.0 s of ordering and 7.5 s of LU at 992k; 1.4×
+  SuperLU's at 10k), so it pays from about 20 (97k) to 100 (10k) solves per factorisation.
+  The default for step matrices (one factorisation serves a run's steps) when ``cholespy`` is
+  installed; other factorisations (Newton tangents, a few solves each) take it when asked.
 - ``"superlu"``: SuperLU's LU in symmetric mode without pivoting (with partial pivoting,
   minimum degree on AᵀA + A factorised ~100× and solved ~25× slower at 10k unknowns), ordered
   by minimum degree on AᵀA + A for small problems and by nested dissection of the mesh
@@ -41,8 +43,8 @@ FACTOR_CACHE = 4
 # ~50k unknowns minimum degree is as good or better (1.0-1.6 on small L-profiles).
 NESTED_DISSECTION_FROM = 50_000
 SYMMETRIC_SOLVERS = ("cholesky", "superlu")
-# The factorisation of symmetric positive definite matrices; None: "cholesky" when cholespy is
-# installed, else "superlu". A setting for comparisons (the benchmarks, the tests).
+# The factorisation of the step matrices; None: "cholesky" when cholespy is installed, else
+# "superlu". A setting for comparisons (the benchmarks, the tests).
 SYMMETRIC_SOLVER: str | None = None
 
 
@@ -57,8 +59,14 @@ def cholesky_available() -> bool:
 
 
 def choose_symmetric_solver(choice: str | None = None) -> str:
-    """The factorisation used for symmetric positive definite matrices: ``choice``, else
-    ``SYMMETRIC_SOLVER``, else ``"cholesky"`` when ``cholespy`` is installed."""
+    """The factorisation of the step matrices: ``choice``, else ``SYMMETRIC_SOLVER``, else
+    ``"cholesky"`` when ``cholespy`` is installed.
+
+    Raises
+    ------
+    ModelError
+        For an unknown name, or ``"cholesky"`` without cholespy.
+    """
     choice = choice or SYMMETRIC_SOLVER
     if choice is None:
         return "cholesky" if cholesky_available() else "superlu"
@@ -140,7 +148,7 @@ class LinearAlgebra:
     def __init__(self, system: ConductionSystem, cost: Cost, symmetric_solver: str | None = None):
         self.system = system
         self.cost = cost
-        self.symmetric_solver = choose_symmetric_solver(symmetric_solver)
+        self.step_solver = choose_symmetric_solver(symmetric_solver)
         self._ordering: np.ndarray | None = None  # nested dissection of the free unknowns
         self._factors: OrderedDict = OrderedDict()
         self._operators: OrderedDict = OrderedDict()
@@ -148,7 +156,7 @@ class LinearAlgebra:
         self._fixed_parts: OrderedDict = OrderedDict()
         self._loads: OrderedDict = OrderedDict()
 
-    def factor(self, matrix: sp.spmatrix, symmetric: bool = False, solver: str | None = None):
+    def factor(self, matrix: sp.spmatrix, symmetric: bool = False, solver: str = "superlu"):
         """A factorisation of the free block of ``matrix``: an object with ``solve(rhs)``.
 
         Parameters
@@ -157,17 +165,17 @@ class LinearAlgebra:
             The whole matrix (every degree of freedom); its free block is factorised.
         symmetric : bool
             The matrix is symmetric positive definite.
-        solver : {"cholesky", "superlu"}, optional
-            For symmetric matrices: the factorisation (default: this algebra's
-            ``symmetric_solver``). A matrix Cholesky finds not positive definite is factorised
-            by LU with pivoting instead.
+        solver : {"superlu", "cholesky"}
+            For symmetric matrices: the factorisation (default SuperLU, cheaper to make; the
+            step matrices take ``step_solver``). A matrix Cholesky finds not positive definite
+            is factorised by LU with pivoting instead.
         """
         started = clock.perf_counter()
         free = self.system.free_dofs
         every = free.size == matrix.shape[0]
         block = matrix if every else matrix[free][:, free]
         factor = None
-        if symmetric and choose_symmetric_solver(solver or self.symmetric_solver) == "cholesky":
+        if symmetric and choose_symmetric_solver(solver) == "cholesky":
             try:
                 factor = CholeskyFactor(block)
             except ValueError:  # not positive definite after all: LU with pivoting below
@@ -205,7 +213,8 @@ class LinearAlgebra:
         )
 
     def step_factor(self, scale: float, time: float):
-        """The LU of M + scale·A(time), kept in a small cache (most recently used kept)."""
+        """The factor of M + scale·A(time) (by ``step_solver``), kept in a small cache (most
+        recently used kept)."""
         key = (float(f"{scale:.12e}"), self.system.exchange_key(time))
         return _remember(
             self._factors,
@@ -213,6 +222,7 @@ class LinearAlgebra:
             lambda: self.factor(
                 self.system.capacity + scale * self.system.exchange_operator(time),
                 symmetric=True,
+                solver=self.step_solver,
             ),
             recency=True,
         )

@@ -73,18 +73,28 @@ def test_cholesky_factor_solves_like_spsolve():
     assert np.abs(single - reference[:, 0]).max() <= 1e-10 * np.abs(reference[:, 0]).max()
 
 
+@needs_cholesky
 def test_a_matrix_that_is_not_positive_definite_is_solved_by_lu():
-    """An indefinite symmetric matrix (the step matrix minus twice its largest diagonal entry
-    on one row) is not positive definite: the factorisation falls back to LU with pivoting."""
+    """An indefinite symmetric matrix (the step matrix with one diagonal entry made negative)
+    is not positive definite: Cholesky fails and the factorisation falls back to LU."""
     system = assemble(slab_model(fixed=False))
     matrix = (system.capacity + 2.0 * system.exchange_operator(0.0)).tolil()
     matrix[3, 3] = -2.0 * matrix.diagonal().max()
     matrix = matrix.tocsr()
     algebra = LinearAlgebra(system, Cost())
-    factor = algebra.factor(matrix, symmetric=True)
+    factor = algebra.factor(matrix, symmetric=True, solver="cholesky")
+    assert not isinstance(factor, fem.linalg.CholeskyFactor)
     rhs = np.random.default_rng(2).random(matrix.shape[0])
     reference = spla.spsolve(matrix.tocsc(), rhs)
     assert np.abs(factor.solve(rhs) - reference).max() <= 1e-10 * np.abs(reference).max()
+
+
+def test_step_matrices_take_cholesky_and_tangents_superlu_by_default():
+    system = assemble(slab_model(fixed=False))
+    algebra = LinearAlgebra(system, Cost())
+    expected = fem.linalg.CholeskyFactor if cholesky_available() else spla.SuperLU
+    assert isinstance(algebra.step_factor(2.0, 0.0), expected)
+    assert isinstance(algebra.factor(system.capacity, symmetric=True), spla.SuperLU)
 
 
 def test_an_unknown_symmetric_solver_is_refused():
