@@ -140,7 +140,7 @@ def parser() -> argparse.ArgumentParser:
     p.add_argument(
         "--no-what-if",
         action="store_true",
-        help="skip the runs with SuperLU's SymmetricMode ordering (a what-if)",
+        help="skip the same runs factorised by SuperLU (the what-if)",
     )
     p.add_argument(
         "--in-process",
