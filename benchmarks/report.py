@@ -63,6 +63,7 @@ def solver_rows(suite, bandwidth) -> list[dict]:
             "per_step_seconds": per_step,
             "per_step_partial": partial,
             "total_seconds": d.get("wall_seconds", d.get("total_seconds")),
+            "cpu_seconds": (d.get("timers") or {}).get("cpu_seconds"),
             "factorisations": d.get("factorisations", d.get("factors", {}).get("factorisations")),
             "peak_rss_bytes": _rss(outcome),
             "error": d.get("error") if isinstance(d.get("error"), float) else None,
@@ -272,7 +273,14 @@ def evaluate_targets(suite, rows, outcomes, bandwidth) -> list[dict]:
                 f"< {limit if unit == 's' else limit / 1e9:g} {unit}",
                 "-" if value is None else f"{value:.3g} {unit}",
                 _verdict(values.get(SHIPPED), (lambda v, cap=limit: v < cap), r),
-                _why(r) if value is None else f"{values[SHIPPED] / limit:.2f} of the limit",
+                _why(r)
+                if value is None
+                else f"{values[SHIPPED] / limit:.2f} of the limit"
+                + (
+                    f"; CPU time of the solve {r['cpu_seconds']:.3g} s"
+                    if unit == "s" and r.get("cpu_seconds")
+                    else ""
+                ),
                 "-" if WHAT_IF not in shown else f"{shown[WHAT_IF]:.3g} {unit}",
             )
         )
