@@ -10,8 +10,9 @@ of radiation and c(T)). Two ways to factorise them, both reached through
   unknowns, 5.9 ms instead of 14.4 ms at 97k and 131 ms instead of 188 ms at 992k, while its
   factorisation took longer (16.1 s against 5.0 s of ordering and 7.5 s of LU at 992k; 1.4×
   SuperLU's at 10k), so it pays from about 20 (97k) to 100 (10k) solves per factorisation.
-  The default for step matrices (one factorisation serves a run's steps) when ``cholespy`` is
-  installed; other factorisations (Newton tangents, a few solves each) take it when asked.
+  The default for the step matrices of fixed-step runs (one factorisation serves the run's
+  steps; the driver chooses, :mod:`fem.transient`) when ``cholespy`` is installed; other
+  factorisations (adaptive steps, exponential steps, Newton tangents) take it when asked.
 - ``"superlu"``: SuperLU's LU in symmetric mode without pivoting (with partial pivoting,
   minimum degree on AᵀA + A factorised ~100× and solved ~25× slower at 10k unknowns), ordered
   by minimum degree on AᵀA + A for small problems and by nested dissection of the mesh
