@@ -17,7 +17,15 @@ from pathlib import Path
 
 from . import models
 from .exact import SquareBarExact, largest_error
-from .machine import FactorSpy, factor_size, peak_rss, read_bandwidth, time_solves
+from .machine import (
+    FactorSpy,
+    cholesky_size,
+    factor_size,
+    peak_rss,
+    read_bandwidth,
+    time_solves,
+)
+from .peers import task_peer
 from .startup import task_startup
 from .study import task_study
 
@@ -146,9 +154,10 @@ def _solve(model, params: dict, spy: FactorSpy, reporter=None, field_folder=None
 
     timers: dict[str, float] = {}
     with spy.active(), _timed_methods(_recorder_targets(), timers):
-        started = time.perf_counter()
+        started, cpu = time.perf_counter(), time.process_time()
         solution = fem.solve(model, end, progress=progress, **kwargs)
         wall = time.perf_counter() - started
+        timers["cpu_seconds"] = time.process_time() - cpu  # this process, all its threads
     return solution, wall, timers
 
 
@@ -188,7 +197,7 @@ def task_soakwise(params: dict, reporter) -> dict:
     """fem.solve on a stored mesh: cost counters, timers, accuracy, factor size, VTK writing."""
     section = _load_section(params["mesh"])
     model = models.MODELS[params["model"]](section)
-    spy = FactorSpy(symmetric_ordering=params.get("what_if", False))
+    spy = FactorSpy("superlu" if params.get("what_if") else None)
     scratch = Path(tempfile.mkdtemp(prefix="soakwise-bench-", dir=params.get("scratch")))
     try:
         folder = scratch / "fields" if params.get("field_folder") else None
@@ -217,8 +226,12 @@ def task_soakwise(params: dict, reporter) -> dict:
         if params.get("exact"):
             result["error"] = _square_error(section, solution.output_times, solution.fields)
         if params.get("factor_analysis") and spy.last is not None:
-            result["factor"] = factor_size(spy.last)
+            if spy.last_matrix is not None and spy.kinds.get("cholesky"):
+                result["factor"] = cholesky_size(spy.last_matrix, section.mesh.p)
+            else:
+                result["factor"] = factor_size(spy.last)
             result["factor"]["solve_only_seconds"] = time_solves(spy.last)
+            result["symmetric_solver"] = "cholesky" if spy.kinds.get("cholesky") else "superlu"
         if params.get("write_vtk"):
             write = _vtk_writer()
             started = time.perf_counter()
@@ -306,9 +319,7 @@ def task_calibrate(params: dict, reporter) -> dict:
                 error = _square_error(section, run["times"], run["fields"])
                 steps = run["steps"]
             else:
-                solution, _, _ = _solve(
-                    model, {"end_time": end, **setting}, FactorSpy(symmetric_ordering=True)
-                )
+                solution, _, _ = _solve(model, {"end_time": end, **setting}, FactorSpy())
                 error = _square_error(section, solution.output_times, solution.fields)
                 steps = solution.stats.steps
             tried.append(
@@ -331,7 +342,7 @@ def task_profile(params: dict, reporter) -> dict:
     """cProfile of soakwise's steps; where a step's time goes."""
     section = _load_section(params["mesh"])
     model = models.MODELS[params["model"]](section)
-    spy = FactorSpy(symmetric_ordering=params.get("what_if", False))
+    spy = FactorSpy("superlu" if params.get("what_if") else None)
     profiler = cProfile.Profile()
     profiler.enable()
     solution, wall, timers = _solve(model, params, spy)
@@ -358,6 +369,7 @@ def task_profile(params: dict, reporter) -> dict:
 
     categories = {
         "triangular solve (SuperLU.solve)": own(lambda f: "'solve' of 'SuperLU'" in f),
+        "triangular solve (Cholesky)": own(lambda f: "'solve' of 'cholespy" in f),
         "factorisation (splu)": own(lambda f: "gstrf" in f or "'splu'" in f),
         "sparse mat-vec (csr_matvec)": own(lambda f: "_matvec" in f),
         "history recording (HistoryRecorder.record)": cumulative("(record)"),
@@ -401,4 +413,5 @@ TASKS = {
     "profile": task_profile,
     "startup": task_startup,
     "study": task_study,
+    "peer": task_peer,
 }

@@ -37,8 +37,9 @@ GROUPS = (
     "angle",
     "profile",
     "study",
+    "peers",
 )
-SHIPPED, WHAT_IF = "soakwise", "soakwise+sym"
+SHIPPED, WHAT_IF = "soakwise", "soakwise, SuperLU"
 SCRIPT, IVP = "(a) spsolve script", "(b) solve_ivp BDF"
 
 
@@ -139,7 +140,7 @@ def parser() -> argparse.ArgumentParser:
     p.add_argument(
         "--no-what-if",
         action="store_true",
-        help="skip the runs with SuperLU's SymmetricMode ordering (a what-if)",
+        help="skip the same runs factorised by SuperLU (the what-if)",
     )
     p.add_argument(
         "--in-process",
@@ -147,6 +148,13 @@ def parser() -> argparse.ArgumentParser:
         help="run tasks in this process (no per-task peak memory); --quick does",
     )
     p.add_argument("--output", type=Path, default=DEFAULT_OUTPUT, help="the JSON file")
+    p.add_argument(
+        "--peer-sizes",
+        type=counts,
+        default=None,
+        help="node counts of the side-by-side plunge with other tools (10k,100k)",
+    )
+    p.add_argument("--peer-steps", type=int, default=None, help="their steps (100)")
     p.add_argument(
         "--rerender",
         type=Path,
@@ -170,6 +178,8 @@ FULL = {
     "profile_steps": 200,
     "script_steps": 5,
     "bandwidth_gb": 1.0,
+    "peer_sizes": [10_000, 100_000],
+    "peer_steps": 100,
 }
 QUICK = {
     "sizes": [1_000, 3_000],
@@ -185,6 +195,8 @@ QUICK = {
     "profile_steps": 20,
     "script_steps": 1,
     "bandwidth_gb": 0.2,
+    "peer_sizes": [1_000],
+    "peer_steps": 10,
 }
 
 
@@ -314,13 +326,13 @@ class Runner:
 # ---------------------------------------------------------------------------------------------
 
 
-def _uses_symmetric_mode(done: dict) -> bool:
-    """Whether the shipped run that finished made every factorisation in SymmetricMode."""
+def _used_cholesky(done: dict) -> bool:
+    """Whether the shipped run that finished factorised by Cholesky (then the what-if runs the
+    same case with SuperLU, the path used before)."""
     shipped = done.get(SHIPPED)
     if shipped is None or shipped.status != "done":
         return False
-    calls = shipped.data.get("factors", {}).get("splu_calls") or []
-    return bool(calls) and all("SymmetricMode" in repr(call) for call in calls)
+    return bool(shipped.data.get("factors", {}).get("kinds", {}).get("cholesky"))
 
 
 def script_steps(base: int, nodes: int) -> int:
@@ -370,8 +382,8 @@ class Suite:
         ordering what-if; returns {variant: Outcome}."""
         done = {}
         for variant in variants or (SHIPPED, WHAT_IF):
-            if variant == WHAT_IF and (not self.what_if or _uses_symmetric_mode(done)):
-                continue  # no what-if, or the shipped code already factorises this way
+            if variant == WHAT_IF and (not self.what_if or not _used_cholesky(done)):
+                continue  # no what-if, or the shipped code already factorises by SuperLU
             if variant == SHIPPED and not self.shipped_allowed(nodes):
                 done[variant] = Outcome(
                     "skipped",
@@ -442,6 +454,8 @@ class Suite:
         if "study" in self.groups:
             quick = {"cases": 8, "mesh_size": "4 mm"} if a.quick else {"cases": 64}
             self.r.run("study-sweep", "study", quick, case="study")
+        if "peers" in self.groups:
+            self.peers()
         if "square" in self.groups:
             for nodes in square_sizes:
                 if nodes > 200_000:
@@ -507,6 +521,34 @@ class Suite:
             case=key,
             variant=SCRIPT,
         )
+
+    def peers(self) -> None:
+        """The plunge by soakwise and by the tools a user would pick instead; a tool that is
+        not installed is a row saying so."""
+        from .peers import PEERS, missing
+
+        a = self.args
+        for nodes in sorted(a.peer_sizes):
+            found = self.mesh("square", nodes)
+            if found is None:
+                continue
+            path, actual = found
+            for peer in PEERS:
+                key = f"peers-{short(nodes)}-{peer.split()[0].lower()}"
+                meta = {"task": "peer", "case": f"peers-{short(nodes)}", "variant": peer}
+                reason = missing(peer)
+                if reason:
+                    self.r.outcomes[key] = Outcome("skipped", {"reason": reason}, meta=meta)
+                    self.r.order.append(key)
+                    continue
+                params = {
+                    "peer": peer,
+                    "mesh": path,
+                    "nodes": actual,
+                    "end_time": self.end,
+                    "steps": a.peer_steps,
+                }
+                self.r.run(key, "peer", params, actual, case=meta["case"], variant=peer)
 
     def plunge(self) -> None:
         a = self.args

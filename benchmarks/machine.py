@@ -98,7 +98,7 @@ def time_solves(lu, repeats: int = 10) -> float:
 
 
 class TimedFactor:
-    """A SuperLU factor whose ``solve`` calls are counted and timed; everything else passes."""
+    """A factor whose ``solve`` calls are counted and timed; everything else passes."""
 
     def __init__(self, lu, spy: FactorSpy):
         self._lu = lu
@@ -116,54 +116,71 @@ class TimedFactor:
 
 
 class FactorSpy:
-    """Wrap ``scipy.sparse.linalg.splu`` while active: count and time factorisations and
-    triangular solves, keep the last factor, and optionally change the ordering options.
+    """While active, wrap ``scipy.sparse.linalg.splu`` and ``fem.linalg.CholeskyFactor``:
+    count and time factorisations and triangular solves, keep the last factor (and, for a
+    Cholesky factor, its matrix), and optionally choose the symmetric solver.
 
-    ``symmetric_ordering=True`` is a what-if, not the shipped code: it keeps the MMD ordering
-    of Aᵀ + A and adds SuperLU's ``SymmetricMode`` option, which applies the ordering to rows
-    as well as columns (without it SuperLU permutes only the columns, and the fill of these
-    symmetric matrices grows towards dense).
+    ``symmetric_solver`` (``"cholesky"`` or ``"superlu"``) sets ``fem.linalg.SYMMETRIC_SOLVER``
+    for the run: ``"superlu"`` is the what-if of the path used before Cholesky was the default.
     """
 
-    def __init__(self, symmetric_ordering: bool = False):
-        self.symmetric_ordering = symmetric_ordering
+    def __init__(self, symmetric_solver: str | None = None):
+        self.symmetric_solver = symmetric_solver
         self.factorisations = 0
         self.factor_seconds = 0.0
         self.first_factor_seconds = 0.0
         self.solves = 0
         self.solve_seconds = 0.0
         self.last = None
+        self.last_matrix = None  # the matrix of the last Cholesky factor
+        self.kinds: dict[str, int] = {}
         self.calls: list[dict] = []
+
+    def _factored(self, kind: str, seconds: float, factor, call: dict):
+        self.factor_seconds += seconds
+        if not self.factorisations:
+            self.first_factor_seconds = seconds
+        self.factorisations += 1
+        self.kinds[kind] = self.kinds.get(kind, 0) + 1
+        if len(self.calls) < 3:
+            self.calls.append(call)
+        self.last = factor
+        return TimedFactor(factor, self)
 
     @contextlib.contextmanager
     def active(self):
         import scipy.sparse.linalg as spla
 
-        original = spla.splu
+        import fem.linalg
+
+        original, cholesky = spla.splu, fem.linalg.CholeskyFactor
+        chosen = fem.linalg.SYMMETRIC_SOLVER
+        spy = self
 
         def splu(matrix, *args, **kwargs):
-            if self.symmetric_ordering:
-                kwargs["permc_spec"] = "MMD_AT_PLUS_A"
-                kwargs["options"] = {**(kwargs.get("options") or {}), "SymmetricMode": True}
             started = time.perf_counter()
             lu = original(matrix, *args, **kwargs)
-            seconds = time.perf_counter() - started
-            self.factor_seconds += seconds
-            if not self.factorisations:
-                self.first_factor_seconds = seconds
-            self.factorisations += 1
-            if len(self.calls) < 3:
-                self.calls.append(
-                    {k: repr(v) for k, v in kwargs.items()} | {"positional": repr(args)}
-                )
-            self.last = lu
-            return TimedFactor(lu, self)
+            call = {k: repr(v) for k, v in kwargs.items()} | {"positional": repr(args)}
+            return spy._factored("superlu", time.perf_counter() - started, lu, call)
+
+        def timed_cholesky(matrix):
+            started = time.perf_counter()
+            factor = cholesky(matrix)
+            spy.last_matrix = matrix
+            return spy._factored(
+                "cholesky", time.perf_counter() - started, factor, {"cholesky": "cholespy"}
+            )
 
         spla.splu = splu
+        fem.linalg.CholeskyFactor = timed_cholesky
+        if self.symmetric_solver is not None:
+            fem.linalg.SYMMETRIC_SOLVER = self.symmetric_solver
         try:
             yield self
         finally:
             spla.splu = original
+            fem.linalg.CholeskyFactor = cholesky
+            fem.linalg.SYMMETRIC_SOLVER = chosen
 
     def summary(self) -> dict:
         return {
@@ -172,8 +189,40 @@ class FactorSpy:
             "first_factor_seconds": self.first_factor_seconds,
             "solves": self.solves,
             "solve_seconds": self.solve_seconds,
+            "kinds": dict(self.kinds),
             "splu_calls": self.calls,
         }
+
+
+def cholesky_size(matrix, points) -> dict[str, float]:
+    """Bytes of a Cholesky factor L of ``matrix`` that a solve must read, estimated.
+
+    CHOLMOD (through cholespy) does not show its factor, so nnz(L) is taken from SuperLU's
+    symmetric-mode LU of the same matrix under soakwise's nested dissection (no pivoting:
+    the pattern of L is that of Uᵀ, each with the diagonal). CHOLMOD orders by METIS, whose
+    fill on these meshes is at or below it, so the estimate is an upper bound: values and row
+    indices (8 + 4 bytes an entry), column pointers and the permutation.
+    """
+    import scipy.sparse.linalg as spla
+
+    from fem.ordering import nested_dissection
+
+    order = nested_dissection(matrix.tocsr(), points)
+    lu = spla.splu(
+        matrix.tocsr()[order][:, order].tocsc(),
+        permc_spec="NATURAL",
+        diag_pivot_thresh=0.0,
+        options={"SymmetricMode": True},
+    )
+    n = matrix.shape[0]
+    nnz = int(lu.U.nnz)
+    return {
+        "n": n,
+        "nnz_L": nnz,
+        "nnz_U": 0,
+        "factor_bytes": float(nnz * (VALUE_BYTES + INDEX_BYTES) + (n + 1 + n) * INDEX_BYTES),
+        "estimated": True,
+    }
 
 
 def describe_machine() -> dict:

@@ -2,13 +2,18 @@
 
 Each command runs as ``python -m advisor.cli ...`` from the repository root (so this checkout
 is measured, not an installed copy) once to warm the file cache, then ``runs`` times; the
-figure is the median wall time of those runs, interpreter start included. The import
-footprint is read from a fresh interpreter's ``sys.modules`` after ``import PACKAGE``.
+figure is the median wall time of those runs, interpreter start included, with the median CPU
+time (user + system) of the child beside it (what the command costs without the other jobs of
+a loaded machine). One more run under ``python -X importtime`` names the imports that took the
+longest. ``show`` reads a results folder made once beforehand by ``run`` (not timed); ``check``
+reads the quench-bar starter. The import footprint is read from a fresh interpreter's
+``sys.modules`` after ``import PACKAGE``.
 """
 
 from __future__ import annotations
 
 import json
+import resource
 import statistics
 import subprocess
 import sys
@@ -17,11 +22,15 @@ import time
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
-LIMIT_SECONDS = 0.5
-COMMANDS = {  # name → arguments after ``soakwise``; {out} is a scratch folder
+LIMIT_SECONDS = 0.3
+STARTER = ROOT / "examples" / "quench-bar.toml"
+# name → arguments after ``soakwise``; {out} is a scratch folder, {results} a results folder
+COMMANDS = {
     "soakwise --help": ["--help"],
     "soakwise new": ["new", "quench-bar", "--out", "{out}/case.toml", "--force"],
     "soakwise materials": ["materials"],
+    "soakwise show": ["show", "{results}"],
+    "soakwise check": ["check", str(STARTER)],
 }
 PACKAGES = ("fem", "advisor", "advisor.cli")
 # Third-party packages that take a noticeable time to import (or drag in a GUI toolkit).
@@ -35,21 +44,66 @@ _FOOTPRINT = (
 )
 
 
-def command_seconds(arguments: list[str], runs: int) -> dict:
-    """Median, fastest and slowest wall time in s of ``runs`` runs of the command."""
+def command_seconds(arguments: list[str], runs: int, results: str = "") -> dict:
+    """Median, fastest and slowest wall time in s of ``runs`` runs of the command, the median
+    CPU time of the child, and the slowest imports of one run under ``-X importtime``."""
     with tempfile.TemporaryDirectory(prefix="soakwise-startup-") as scratch:
         command = [sys.executable, "-m", "advisor.cli"]
-        command += [a.format(out=scratch) for a in arguments]
-        times = []
+        command += [a.format(out=scratch, results=results) for a in arguments]
+        times, cpu = [], []
         for run in range(runs + 1):  # the first run warms the file cache and is not counted
+            before = resource.getrusage(resource.RUSAGE_CHILDREN)
             started = time.perf_counter()
             done = subprocess.run(command, cwd=ROOT, capture_output=True, text=True, timeout=120)
             seconds = time.perf_counter() - started
+            after = resource.getrusage(resource.RUSAGE_CHILDREN)
             if done.returncode != 0:
                 raise RuntimeError(f"{' '.join(command)} failed: {done.stderr.strip()}")
             if run:
                 times.append(seconds)
-    return {"median": statistics.median(times), "fastest": min(times), "slowest": max(times)}
+                cpu.append(after.ru_utime - before.ru_utime + after.ru_stime - before.ru_stime)
+        traced = subprocess.run(
+            [sys.executable, "-X", "importtime", *command[1:]],
+            cwd=ROOT,
+            capture_output=True,
+            text=True,
+            timeout=120,
+        )
+    return {
+        "median": statistics.median(times),
+        "fastest": min(times),
+        "slowest": max(times),
+        "cpu_median": statistics.median(cpu),
+        "slowest_imports": slowest_imports(traced.stderr),
+    }
+
+
+def slowest_imports(trace: str, count: int = 5) -> list[tuple[str, float]]:
+    """The top-level imports (as ``-X importtime`` prints them) with the largest cumulative
+    times, in s."""
+    found = []
+    for line in trace.splitlines():
+        if not line.startswith("import time:") or "cumulative" in line:
+            continue
+        _, cumulative, name = line[len("import time:") :].split("|")
+        if not name.startswith(" ") or name.startswith("  "):
+            continue  # nested: counted in its parent
+        found.append((name.strip(), int(cumulative) / 1e6))
+    return sorted(found, key=lambda item: item[1], reverse=True)[:count]
+
+
+def results_folder(scratch: str) -> str:
+    """A results folder of the quench-bar starter for ``show`` (made by ``run``)."""
+    folder = str(Path(scratch) / "results")
+    subprocess.run(
+        [sys.executable, "-m", "advisor.cli", "run", str(STARTER), "--out", folder],
+        cwd=ROOT,
+        capture_output=True,
+        text=True,
+        timeout=600,
+        check=True,
+    )
+    return folder
 
 
 def import_footprint(package: str) -> dict:
@@ -69,9 +123,11 @@ def import_footprint(package: str) -> dict:
 def task_startup(params: dict, reporter) -> dict:
     runs = params.get("runs", 5)
     commands = {}
-    for name, arguments in COMMANDS.items():
-        commands[name] = command_seconds(arguments, runs)
-        reporter.update(commands=commands)
+    with tempfile.TemporaryDirectory(prefix="soakwise-startup-") as scratch:
+        results = results_folder(scratch)
+        for name, arguments in COMMANDS.items():
+            commands[name] = command_seconds(arguments, runs, results)
+            reporter.update(commands=commands)
     imports = {package: import_footprint(package) for package in PACKAGES}
     return {"runs": runs, "commands": commands, "imports": imports}
 
@@ -94,7 +150,14 @@ def startup_targets(outcomes, target) -> list[dict]:
                 None if measured is None else measured["median"] < LIMIT_SECONDS,
                 ""
                 if measured is None
-                else f"fastest {measured['fastest']:.3g} s, slowest {measured['slowest']:.3g} s",
+                else (
+                    f"fastest {measured['fastest']:.3g} s, slowest {measured['slowest']:.3g} s, "
+                    f"CPU {measured.get('cpu_median', float('nan')):.3g} s; slowest imports: "
+                    + ", ".join(
+                        f"{name} {seconds:.3g} s"
+                        for name, seconds in measured.get("slowest_imports", [])[:3]
+                    )
+                ),
             )
         )
     for package, forbidden in FORBIDDEN.items():
@@ -118,7 +181,10 @@ def describe(data: dict) -> str:
     """One line for the table of other tasks."""
     commands = data.get("commands") or {}
     imports = data.get("imports") or {}
-    parts = [f"{name} {value['median']:.3g} s" for name, value in commands.items()]
+    parts = [
+        f"{name} {value['median']:.3g} s (CPU {value.get('cpu_median', float('nan')):.3g} s)"
+        for name, value in commands.items()
+    ]
     parts += [
         f"import {package} {value['seconds']:.3g} s [{' '.join(value['heavy']) or '-'}]"
         for package, value in imports.items()

@@ -1,16 +1,30 @@
 """Factorisations of the step matrices and their cache, and what the linear algebra cost.
 
 Step matrices M + s·A are symmetric positive definite (every linear problem, and the tangents
-of radiation and c(T)): they need no pivoting, and SuperLU's symmetric mode keeps a symmetric
-ordering intact (with partial pivoting, minimum degree on AᵀA + A factorised ~100× and solved
-~25× slower at 10k unknowns). The ordering is minimum degree on AᵀA + A for small problems and
-nested dissection of the mesh (:mod:`fem.ordering`, computed once per run) from
-``NESTED_DISSECTION_FROM`` unknowns. Newton tangents that k(T) makes unsymmetric keep the
-symmetric ordering with threshold pivoting below that size, COLAMD with partial pivoting above.
+of radiation and c(T)). Two ways to factorise them, both reached through
+:meth:`LinearAlgebra.factor` (an object with ``solve(rhs)``):
+
+- ``"cholesky"``: L·Lᵀ from CHOLMOD through ``cholespy`` (a wheel with SuiteSparse inside),
+  which orders the matrix itself (METIS nested dissection) and permutes inside its solve. It
+  stores one triangle: on the benchmark square a solve took 0.31 ms instead of 0.67 ms at 10k
+  unknowns, 5.9 ms instead of 14.4 ms at 97k and 131 ms instead of 188 ms at 992k, while its
+  factorisation took longer (16.1 s against 5.0 s of ordering and 7.5 s of LU at 992k; 1.4×
+  SuperLU's at 10k), so it pays from about 20 (97k) to 100 (10k) solves per factorisation.
+  The default for the step matrices of fixed-step runs (one factorisation serves the run's
+  steps; the driver chooses, :mod:`fem.transient`) when ``cholespy`` is installed; other
+  factorisations (adaptive steps, exponential steps, Newton tangents) take it when asked.
+- ``"superlu"``: SuperLU's LU in symmetric mode without pivoting (with partial pivoting,
+  minimum degree on AᵀA + A factorised ~100× and solved ~25× slower at 10k unknowns), ordered
+  by minimum degree on AᵀA + A for small problems and by nested dissection of the mesh
+  (:mod:`fem.ordering`, computed once per run) from ``NESTED_DISSECTION_FROM`` unknowns.
+
+Newton tangents that k(T) makes unsymmetric keep SuperLU: the symmetric ordering with
+threshold pivoting below that size, COLAMD with partial pivoting above.
 """
 
 from __future__ import annotations
 
+import functools
 import time as clock
 from collections import OrderedDict
 from collections.abc import Callable
@@ -20,6 +34,7 @@ import numpy as np
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
+from .errors import ModelError
 from .ordering import PermutedFactor, nested_dissection
 from .system import ConductionSystem
 
@@ -28,6 +43,83 @@ FACTOR_CACHE = 4
 # 0.95 on the 193k-node L-profile, 0.75 on the 97k-node square, 0.66 at 992k nodes; below
 # ~50k unknowns minimum degree is as good or better (1.0-1.6 on small L-profiles).
 NESTED_DISSECTION_FROM = 50_000
+SYMMETRIC_SOLVERS = ("cholesky", "superlu")
+# The factorisation of the step matrices; None: "cholesky" when cholespy is installed, else
+# "superlu". A setting for comparisons (the benchmarks, the tests).
+SYMMETRIC_SOLVER: str | None = None
+
+
+@functools.cache
+def cholesky_available() -> bool:
+    """Whether ``cholespy`` can be imported (it is an optional dependency on some platforms)."""
+    try:
+        import cholespy  # noqa: F401
+    except ImportError:
+        return False
+    return True
+
+
+def choose_symmetric_solver(choice: str | None = None) -> str:
+    """The factorisation of the step matrices: ``choice``, else ``SYMMETRIC_SOLVER``, else
+    ``"cholesky"`` when ``cholespy`` is installed.
+
+    Raises
+    ------
+    ModelError
+        For an unknown name, or ``"cholesky"`` without cholespy.
+    """
+    choice = choice or SYMMETRIC_SOLVER
+    if choice is None:
+        return "cholesky" if cholesky_available() else "superlu"
+    if choice not in SYMMETRIC_SOLVERS:
+        raise ModelError(
+            f"symmetric solver must be one of {', '.join(SYMMETRIC_SOLVERS)}, got {choice!r}",
+            argument="symmetric_solver",
+        )
+    if choice == "cholesky" and not cholesky_available():
+        raise ModelError(
+            'the Cholesky solver needs the cholespy package (pip install cholespy); use "superlu"',
+            argument="symmetric_solver",
+        )
+    return choice
+
+
+class CholeskyFactor:
+    """L·Lᵀ of a symmetric positive definite matrix, as a solver (CHOLMOD through cholespy).
+
+    CHOLMOD orders the matrix itself (nested dissection by METIS) and applies the permutation
+    inside its solve, so the caller works in its own numbering. Only the lower triangle is
+    handed over.
+
+    Raises
+    ------
+    ValueError
+        When the matrix is not positive definite (from cholespy).
+    """
+
+    solver = "cholesky"
+
+    def __init__(self, matrix: sp.spmatrix):
+        from cholespy import CholeskySolverD, MatrixType
+
+        lower = sp.tril(matrix, format="csc")
+        lower.sort_indices()
+        self.shape = lower.shape
+        self.lower_entries = int(lower.nnz)
+        self._solver = CholeskySolverD(
+            lower.shape[0],
+            lower.indptr.astype(np.int32),
+            lower.indices.astype(np.int32),
+            np.ascontiguousarray(lower.data, dtype=np.float64),
+            MatrixType.CSC,
+        )
+
+    def solve(self, rhs: np.ndarray) -> np.ndarray:
+        """x with L·Lᵀ·x = rhs; ``rhs`` of shape (n,) or (n, k)."""
+        rhs = np.ascontiguousarray(rhs, dtype=np.float64)
+        x = np.empty_like(rhs)
+        self._solver.solve(rhs, x)
+        return x
 
 
 @dataclass
@@ -54,59 +146,76 @@ class LinearAlgebra:
     coefficients): a linear problem at a given step is factorised once; a factorisation is
     redone only when the step or a coefficient changes."""
 
-    def __init__(self, system: ConductionSystem, cost: Cost):
+    def __init__(self, system: ConductionSystem, cost: Cost, symmetric_solver: str | None = None):
         self.system = system
         self.cost = cost
+        self.step_solver = choose_symmetric_solver(symmetric_solver)
         self._ordering: np.ndarray | None = None  # nested dissection of the free unknowns
         self._factors: OrderedDict = OrderedDict()
         self._operators: OrderedDict = OrderedDict()
         self._explicit: OrderedDict = OrderedDict()
+        self._fixed_parts: OrderedDict = OrderedDict()
+        self._loads: OrderedDict = OrderedDict()
 
-    def factor(self, matrix: sp.spmatrix, symmetric: bool = False):
-        """LU of the free block of ``matrix``; ``symmetric`` for positive definite ones."""
+    def factor(self, matrix: sp.spmatrix, symmetric: bool = False, solver: str = "superlu"):
+        """A factorisation of the free block of ``matrix``: an object with ``solve(rhs)``.
+
+        Parameters
+        ----------
+        matrix : scipy.sparse matrix
+            The whole matrix (every degree of freedom); its free block is factorised.
+        symmetric : bool
+            The matrix is symmetric positive definite.
+        solver : {"superlu", "cholesky"}
+            For symmetric matrices: the factorisation (default SuperLU, cheaper to make; the
+            step matrices take ``step_solver``). A matrix Cholesky finds not positive definite
+            is factorised by LU with pivoting instead.
+        """
         started = clock.perf_counter()
         free = self.system.free_dofs
-        if symmetric and free.size < NESTED_DISSECTION_FROM:
-            factor = spla.splu(
-                matrix[free][:, free].tocsc(),
-                permc_spec="MMD_AT_PLUS_A",
-                diag_pivot_thresh=0.0,
-                options={"SymmetricMode": True},
-            )
-        elif symmetric:
-            if self._ordering is None:  # every step matrix and tangent has the same pattern
-                self._ordering = nested_dissection(
-                    matrix[free][:, free].tocsr(), self.system.basis.doflocs[:, free]
-                )
-            numbered = free[self._ordering]
-            factor = PermutedFactor(
-                spla.splu(
-                    matrix[numbered][:, numbered].tocsc(),
-                    permc_spec="NATURAL",
-                    diag_pivot_thresh=0.0,
-                    options={"SymmetricMode": True},
-                ),
-                self._ordering,
-            )
-        elif free.size < NESTED_DISSECTION_FROM:
-            # Nearly symmetric (k(T) adds k'(T)·δ·∇T): the symmetric ordering, diagonal pivots
-            # unless one is below a tenth of its column, so pivoting happens only where needed.
-            # On freezing tangents at 10k unknowns: factorised 1.3-2× and solved 1.2-2× faster
-            # than COLAMD with partial pivoting, residuals alike (~1e-15).
-            factor = spla.splu(
-                matrix[free][:, free].tocsc(),
-                permc_spec="MMD_AT_PLUS_A",
-                diag_pivot_thresh=0.1,
-                options={"SymmetricMode": True},
-            )
-        else:
-            factor = spla.splu(matrix[free][:, free].tocsc(), permc_spec="COLAMD")
+        every = free.size == matrix.shape[0]
+        block = matrix if every else matrix[free][:, free]
+        factor = None
+        if symmetric and choose_symmetric_solver(solver) == "cholesky":
+            try:
+                factor = CholeskyFactor(block)
+            except ValueError:  # not positive definite after all: LU with pivoting below
+                symmetric = False
+        if factor is None and symmetric:
+            factor = self._symmetric_lu(matrix, block)
+        elif factor is None:
+            factor = _unsymmetric_lu(block)
         self.cost.factorisations += 1
         self.cost.factorisation_seconds += clock.perf_counter() - started
         return factor
 
+    def _symmetric_lu(self, matrix: sp.spmatrix, block: sp.spmatrix):
+        """SuperLU in symmetric mode: minimum degree below NESTED_DISSECTION_FROM unknowns,
+        nested dissection of the mesh (computed once per run) from there."""
+        free = self.system.free_dofs
+        if free.size < NESTED_DISSECTION_FROM:
+            return spla.splu(
+                block.tocsc(),
+                permc_spec="MMD_AT_PLUS_A",
+                diag_pivot_thresh=0.0,
+                options={"SymmetricMode": True},
+            )
+        if self._ordering is None:  # every step matrix and tangent has the same pattern
+            self._ordering = nested_dissection(block.tocsr(), self.system.basis.doflocs[:, free])
+        numbered = free[self._ordering]
+        return PermutedFactor(
+            spla.splu(
+                matrix[numbered][:, numbered].tocsc(),
+                permc_spec="NATURAL",
+                diag_pivot_thresh=0.0,
+                options={"SymmetricMode": True},
+            ),
+            self._ordering,
+        )
+
     def step_factor(self, scale: float, time: float):
-        """The LU of M + scale·A(time), kept in a small cache (most recently used kept)."""
+        """The factor of M + scale·A(time) (by ``step_solver``), kept in a small cache (most
+        recently used kept)."""
         key = (float(f"{scale:.12e}"), self.system.exchange_key(time))
         return _remember(
             self._factors,
@@ -114,6 +223,7 @@ class LinearAlgebra:
             lambda: self.factor(
                 self.system.capacity + scale * self.system.exchange_operator(time),
                 symmetric=True,
+                solver=self.step_solver,
             ),
             recency=True,
         )
@@ -139,6 +249,50 @@ class LinearAlgebra:
             key,
             lambda: (self.system.capacity - scale * self.operator(time)[0]).tocsr(),
         )
+
+    def fixed_parts(self, scale: float, time: float) -> tuple[sp.csr_matrix, sp.csr_matrix]:
+        """The step matrix S = M + scale·A(time) split at the fixed degrees of freedom: its
+        free rows on the fixed columns (what the held values add to a free row) and its fixed
+        rows (for the reactions), cached beside the factors."""
+
+        def make():
+            step_matrix = (self.system.capacity + scale * self.operator(time)[0]).tocsr()
+            fixed = _fixed(self.system)
+            coupling = step_matrix[self.system.free_dofs].tocsc()[:, fixed].tocsr()
+            return coupling, step_matrix[fixed]
+
+        key = (float(f"{scale:.12e}"), self.system.exchange_key(time))
+        return _remember(self._fixed_parts, key, make)
+
+    def load(self, time: float) -> np.ndarray:
+        """b(time), cached by the loads' coefficients (do not change the array in place)."""
+        system = self.system
+        key = tuple(c.supplied(time) for _, c in system.flowing()) + tuple(
+            q(time) for q in system.model.heat_sources.values()
+        )
+        return _remember(self._loads, key, lambda: system.load(time))
+
+
+def _fixed(system: ConductionSystem) -> np.ndarray:
+    """Every fixed degree of freedom, group after group (the order of the reactions)."""
+    groups = [np.asarray(dofs, dtype=np.int64) for dofs in system.fixed_dofs.values()]
+    return np.concatenate(groups) if groups else np.zeros(0, dtype=np.int64)
+
+
+def _unsymmetric_lu(block: sp.spmatrix):
+    """SuperLU with pivoting, for tangents that k(T) makes unsymmetric."""
+    if block.shape[0] < NESTED_DISSECTION_FROM:
+        # Nearly symmetric (k(T) adds k'(T)·δ·∇T): the symmetric ordering, diagonal pivots
+        # unless one is below a tenth of its column, so pivoting happens only where needed.
+        # On freezing tangents at 10k unknowns: factorised 1.3-2× and solved 1.2-2× faster
+        # than COLAMD with partial pivoting, residuals alike (~1e-15).
+        return spla.splu(
+            block.tocsc(),
+            permc_spec="MMD_AT_PLUS_A",
+            diag_pivot_thresh=0.1,
+            options={"SymmetricMode": True},
+        )
+    return spla.splu(block.tocsc(), permc_spec="COLAMD")
 
 
 def _remember(cache: OrderedDict, key, make: Callable, recency: bool = False):

@@ -5,8 +5,10 @@ Scaled by h/a0, the step solves
     (M + s·A1)·T1 = −Σ (a_j/a0)·M·T_j − (1 − β)(h/a0)·(A0·T0 − b0) + β(h/a0)·b1,
 
 s = β·h/a0. The matrix is factorised once per (s, coefficients); the explicit part of a theta
-step, M − (1 − β)(h/a0)·A0, is kept beside it, so a step costs one solve, one matrix-vector
-product and a few dot products (the heat balance from column sums).
+step, M − (1 − β)(h/a0)·A0, is kept beside it as one matrix, and so are the loads and, with
+fixed temperatures, the step matrix's columns and rows at the fixed degrees of freedom. A step
+costs one solve, one matrix-vector product (two more with fixed temperatures: the coupling of
+the held values and the reactions) and a few dot products (the heat balance from column sums).
 """
 
 from __future__ import annotations
@@ -35,24 +37,25 @@ class LinearStep:
     ) -> StepResult:
         """The state at ``t1`` from ``states`` (newest first, at t0 and before); ``guess`` is
         not needed by a linear step."""
-        system, fixed = self.run.system, self.run.fixed
+        system, fixed, algebra = self.run.system, self.run.fixed, self.run.algebra
         scale = step / formula.a[0]
+        implicit = formula.matrix_scale(step)  # β·h/a0
         inside1 = t1 - 1e-9 * step
-        operator1, column1 = self.run.algebra.operator(inside1)
-        load1 = system.load(inside1)
+        _, column1 = algebra.operator(inside1)
+        load1 = algebra.load(inside1)
         rhs, inflow_old = self._right_side(formula, scale, t0 + 1e-9 * step, load1, states)
-        factor = self.run.algebra.step_factor(formula.matrix_scale(step), inside1)
-        u = np.empty(system.size)
+        factor = algebra.step_factor(implicit, inside1)
+        reactions: dict[str, float] = {}
         if len(fixed):
+            u = np.empty(system.size)
             system.impose_fixed(u, inside1)
-            coupling = system.capacity[:, fixed] @ u[fixed] + formula.beta * scale * (
-                operator1[:, fixed] @ u[fixed]
-            )
-            u[system.free_dofs] = factor.solve(rhs[system.free_dofs] - coupling[system.free_dofs])
+            coupling, fixed_rows = algebra.fixed_parts(implicit, inside1)
+            free = system.free_dofs
+            u[free] = factor.solve(rhs[free] - coupling @ u[fixed])
+            reactions = self._reactions((fixed_rows @ u - rhs[fixed]) / scale)
         else:  # every degree of freedom is free: no gather and scatter around the solve
             u = factor.solve(rhs)
         self.run.cost.iterated(1)
-        reactions = self._reactions(u, rhs, operator1, formula.beta * scale, scale)
         beta = formula.beta
         inflow = beta * (load1.sum() - inner(column1, u)) + (1 - beta) * inflow_old
         heat = step * (inflow + sum(reactions.values()))
@@ -60,29 +63,29 @@ class LinearStep:
 
     def _right_side(self, formula, scale, inside0, load1, states) -> tuple[np.ndarray, float]:
         """The right-hand side, and the old state's inflow 1ᵀ(b0 − A0·T0) (theta steps)."""
-        system = self.run.system
+        system, algebra = self.run.system, self.run.algebra
         a0, beta = formula.a[0], formula.beta
         if formula.history == 1 and beta < 1:
-            _, column0 = self.run.algebra.operator(inside0)
-            load0 = system.load(inside0)
-            explicit = self.run.algebra.explicit((1 - beta) * scale, inside0)
-            rhs = explicit @ states[0] + scale * ((1 - beta) * load0 + beta * load1)
+            _, column0 = algebra.operator(inside0)
+            load0 = algebra.load(inside0)
+            explicit = algebra.explicit((1 - beta) * scale, inside0)
+            rhs = explicit @ states[0]  # (M − (1 − β)·s·A0)·T0 in one product
+            if load0 is load1:  # the same loads (cached by their coefficients)
+                rhs += scale * load1
+            else:
+                rhs += scale * ((1 - beta) * load0 + beta * load1)
             return rhs, load0.sum() - inner(column0, states[0])
         # backward Euler and BDF2: no explicit operator part
         history = -sum(a / a0 * u for a, u in zip(formula.a[1:], states, strict=False))
-        return system.capacity @ history + scale * beta * load1, 0.0
+        rhs = system.capacity @ history
+        rhs += scale * beta * load1
+        return rhs, 0.0
 
-    def _reactions(self, u, rhs, operator1, implicit, scale) -> dict[str, float]:
-        """The unenforced rows of the fixed degrees of freedom: each fixed group's heat flow
-        into the part, W."""
-        system, fixed = self.run.system, self.run.fixed
-        if not len(fixed):
-            return {}
-        rows = (
-            system.capacity[fixed] @ u + implicit * (operator1[fixed] @ u) - rhs[fixed]
-        ) / scale
-        position = {d: i for i, d in enumerate(fixed)}
-        return {
-            name: float(rows[[position[d] for d in dofs]].sum())
-            for name, dofs in system.fixed_dofs.items()
-        }
+    def _reactions(self, rows: np.ndarray) -> dict[str, float]:
+        """Each fixed group's heat flow into the part (W), from the unenforced rows of the
+        fixed degrees of freedom (in the order of ``run.fixed``: group after group)."""
+        reactions, start = {}, 0
+        for name, dofs in self.run.system.fixed_dofs.items():
+            reactions[name] = float(rows[start : start + len(dofs)].sum())
+            start += len(dofs)
+        return reactions

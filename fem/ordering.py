@@ -9,6 +9,11 @@ on AᵀA + A this measured, for the benchmark square (symmetric mode, same matri
 unknowns 7.9M factor entries instead of 10.5M, factorisation 0.27 s instead of 0.76 s, solve
 16 ms instead of 17 ms; at 992k unknowns 106M instead of 161M entries, 5.7 s instead of 20.6 s,
 192 ms instead of 231 ms.
+
+Every level of the dissection works on arrays of the live nodes kept sorted by part and, within
+a part, by coordinate (children listed left halves first), so no level sorts, and drops edges
+by gathers from a byte per node: at 992k unknowns the same order in 7.7 s instead of 15.9 s
+(one process, load average 7.4 on two cores).
 """
 
 from __future__ import annotations
@@ -44,12 +49,15 @@ def nested_dissection(graph: sp.csr_matrix, points: np.ndarray, leaf: int = LEAF
     """
     coo = sp.coo_matrix(graph)
     n = graph.shape[0]
-    keep = coo.row != coo.col
-    rows, cols = coo.row[keep], coo.col[keep]
+    once = coo.row < coo.col  # each edge once (the pattern is symmetric)
+    rows, cols = coo.row[once].astype(np.int32), coo.col[once].astype(np.int32)
     order = np.empty(n, dtype=np.int64)
-    part = np.zeros(n, dtype=np.int64)  # the part each node is in; -1 once numbered
+    part = np.zeros(n, dtype=np.int32)  # the part each node is in; -1 once numbered
     first = np.zeros(1, dtype=np.int64)  # each part's first number
-    by_coordinate = [np.argsort(points[axis], kind="stable") for axis in (0, 1)]
+    # the live nodes by part and, within a part, by coordinate, with their coordinates: kept
+    # so through the levels (children listed left halves first, in their parents' order)
+    along = [np.argsort(points[axis], kind="stable") for axis in (0, 1)]
+    values = [points[axis][along[axis]] for axis in (0, 1)]
     while True:
         live = np.flatnonzero(part >= 0)
         if live.size == 0:
@@ -61,26 +69,16 @@ def nested_dissection(graph: sp.csr_matrix, points: np.ndarray, leaf: int = LEAF
         live = live[~small]
         if live.size == 0:
             continue
-        # both cuts of every part: left = the lower half by rank along the axis
-        lefts, touching = [], []
-        # edges inside a part that is being cut; the others never are again
-        inside = part[rows]
-        edge = (inside >= 0) & (inside == part[cols])
+        # Edges inside a part that is being cut. No edge joins two live parts (every node of
+        # a right half next to the left half is in the separator), so an edge goes when an end
+        # is numbered: gathers from a byte per node, which stay in cache.
+        alive = part >= 0
+        edge = alive[rows] & alive[cols]
         rows, cols = rows[edge], cols[edge]
-        for axis in (0, 1):
-            along = by_coordinate[axis]
-            along = along[part[along] >= 0]
-            by_coordinate[axis] = along
-            left, touches = _halves(along, points[axis], part, sizes, leaf, live.size, rows, cols)
-            lefts.append(left)
-            touching.append(touches)
-        separator_sizes = [np.bincount(part[t], minlength=first.size) for t in touching]
-        across_y = separator_sizes[1] < separator_sizes[0]
-        choose = across_y[part]
-        left = np.where(choose, lefts[1], lefts[0])
-        separator = np.where(choose, touching[1], touching[0]) & (part >= 0)
+        _keep(along, values, alive)
+        left, separator = _cut(along, values, part, sizes, leaf, (rows, cols))
         # numbers: left half from the part's first, the rest after it, the separator last
-        left_counts = np.bincount(part[left & (part >= 0)], minlength=first.size)
+        left_counts = np.bincount(part[left & alive], minlength=first.size)
         separator_counts = np.bincount(part[separator], minlength=first.size)
         members = np.flatnonzero(separator)
         _number(order, members, part, first + sizes - separator_counts, separator_counts)
@@ -89,28 +87,60 @@ def nested_dissection(graph: sp.csr_matrix, points: np.ndarray, leaf: int = LEAF
         rest = live[~separator[live]]
         part[rest] = np.where(left[rest], part[rest], part[rest] + first.size)
         first = children_first
+        _keep(along, values, part >= 0, left)
 
 
-def _halves(along, coordinate, part, sizes, leaf, live_count, rows, cols):
+def _keep(along, values, alive, left=None) -> None:
+    """Drop the numbered nodes from the sorted lists; with ``left``, list each part's left
+    half before its right half (the children's order)."""
+    for axis in (0, 1):
+        keep = alive[along[axis]]
+        nodes, coordinates = along[axis][keep], values[axis][keep]
+        if left is not None:
+            on_left = left[nodes]
+            nodes = np.concatenate([nodes[on_left], nodes[~on_left]])
+            coordinates = np.concatenate([coordinates[on_left], coordinates[~on_left]])
+        along[axis], values[axis] = nodes, coordinates
+
+
+def _cut(along, values, part, sizes, leaf, edges):
+    """Cut every part larger than ``leaf`` across x or across y, whichever separator is
+    smaller: the left halves and the separators, as masks over the nodes."""
+    ids = np.flatnonzero(sizes > leaf)
+    cut = sizes[ids]  # the parts in ``along``, in order
+    starts = np.cumsum(cut) - cut
+    rank = np.arange(int(cut.sum())) - np.repeat(starts, cut)
+    lefts, touching = [], []
+    for axis in (0, 1):
+        left, touches = _halves(along[axis], values[axis], rank, starts, cut, part.size, edges)
+        lefts.append(left)
+        touching.append(touches)
+    separator_sizes = [np.bincount(part[t], minlength=sizes.size) for t in touching]
+    across_y = separator_sizes[1] < separator_sizes[0]
+    choose = across_y[part]
+    left = np.where(choose, lefts[1], lefts[0])
+    separator = np.where(choose, touching[1], touching[0]) & (part >= 0)
+    return left, separator
+
+
+def _halves(along, values, rank, starts, cut, n, edges):
     """Each part's lower half along one axis, and the nodes outside it that touch it.
 
-    ``along`` holds the live nodes sorted by ``coordinate``. A part is cut at the median
-    value, so that nodes on one grid line stay together; by rank alone where that leaves a
-    half empty.
+    ``along`` holds the live nodes grouped by part (sizes ``cut``, from ``starts``), each
+    part's sorted by coordinate (``values``). A part is cut at the median value, so that
+    nodes on one grid line stay together; by rank alone where that leaves a half empty.
     """
-    ranked = along[np.argsort(part[along], kind="stable")]
-    cut = sizes[sizes > leaf]
-    rank = np.arange(live_count) - np.repeat(np.cumsum(cut) - cut, cut)
-    below = rank < sizes[part[ranked]] // 2
-    at_median = ranked[rank == sizes[part[ranked]] // 2]
-    median = np.zeros(sizes.size)
-    median[part[at_median]] = coordinate[at_median]
-    by_value = coordinate[ranked] < median[part[ranked]]
-    empty = np.bincount(part[ranked[by_value]], minlength=sizes.size) == 0
-    left = np.zeros(part.size, dtype=bool)
-    left[ranked[np.where(empty[part[ranked]], below, by_value)]] = True
-    touches = np.zeros(part.size, dtype=bool)
-    touches[rows[~left[rows] & left[cols]]] = True
+    half = cut // 2
+    below = rank < np.repeat(half, cut)
+    by_value = values < np.repeat(values[starts + half], cut)
+    empty = np.add.reduceat(by_value.astype(np.int64), starts) == 0
+    rows, cols = edges
+    left = np.zeros(n, dtype=bool)
+    left[along[np.where(np.repeat(empty, cut), below, by_value)]] = True
+    touches = np.zeros(n, dtype=bool)
+    row_left, col_left = left[rows], left[cols]
+    touches[rows[~row_left & col_left]] = True
+    touches[cols[row_left & ~col_left]] = True
     return left, touches
 
 

@@ -133,3 +133,27 @@ def test_fill_grows_like_n_log_n_on_refined_meshes():
         expected = n1 * np.log(n1) / (n0 * np.log(n0))
         assert f1 / f0 == pytest.approx(expected, rel=0.25)
         assert f1 / f0 < 6.0  # far from the natural order's 8
+
+
+@pytest.mark.parametrize("leaf", [1, 4, 16])
+def test_every_node_is_numbered_once_on_an_irregular_graph(leaf):
+    """A Delaunay graph (scipy.spatial) of scattered points with a line of equal x (ties at
+    the median) and three isolated nodes: the order is a permutation for any leaf size, and
+    the factor is far below the natural order's."""
+    from scipy.spatial import Delaunay
+
+    rng = np.random.default_rng(7)
+    points = rng.random((2, 3000))
+    points[0, :200] = 0.5
+    triangles = Delaunay(points.T).simplices
+    i = np.concatenate([triangles[:, a] for a in (0, 1, 2)])
+    j = np.concatenate([triangles[:, b] for b in (1, 2, 0)])
+    n = points.shape[1] + 3
+    adjacency = sp.coo_matrix((np.ones(i.size), (i, j)), shape=(n, n)).tocsr()
+    adjacency = ((adjacency + adjacency.T) > 0).astype(float)
+    matrix = (sp.diags(np.asarray(adjacency.sum(axis=1)).ravel() + 1.0) - adjacency).tocsr()
+    points = np.hstack([points, [[2.0, 3.0, 4.0], [2.0, 3.0, 4.0]]])
+    numbering = nested_dissection(matrix, points, leaf=leaf)
+    assert np.array_equal(np.sort(numbering), np.arange(n))
+    natural = factor_entries(matrix, np.arange(n))
+    assert factor_entries(matrix, numbering) < 0.5 * natural

@@ -1,0 +1,164 @@
+"""The factorisations of ``fem.linalg`` and the linear step of ``fem.linear_step``.
+
+References, computed here and not by the code under test:
+
+- ``scipy.sparse.linalg.spsolve`` (SuperLU, COLAMD with partial pivoting) on the same matrix;
+- the Crank–Nicolson step written out by hand, (M + h/2·A)·T1 = (M − h/2·A)·T0 + h·b, with the
+  fixed temperatures held and the free block solved by ``spsolve`` (Crank & Nicolson 1947,
+  from memory); its reactions are the unenforced rows, M·(T1 − T0)/h + A·(T1 + T0)/2 − b.
+
+Tolerances: both solvers are backward stable, so a solve agrees to about the condition number
+(~10³ here) times 1e-16; 1e-10 relative is the agreement asked of the Cholesky path against
+SuperLU, and 1e-12 of the run's fields against the hand-written step (the two differ only in
+the order of floating-point operations, over 40 steps of a contraction).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+import scipy.sparse as sp
+import scipy.sparse.linalg as spla
+
+import fem.linalg
+from fem import (
+    Convection,
+    FixedTemperature,
+    Insulated,
+    Material,
+    ModelError,
+    ThermalModel,
+    assemble,
+    solve,
+)
+from fem.linalg import Cost, LinearAlgebra, cholesky_available, choose_symmetric_solver
+from geometries import Rectangle
+
+needs_cholesky = pytest.mark.skipif(
+    not cholesky_available(), reason="cholespy is not installed (the Cholesky path is optional)"
+)
+STEEL = Material(45.0, 7850.0, 475.0)
+
+
+def slab_model(fixed: bool) -> ThermalModel:
+    """A 40 mm × 20 mm plate: held at 20 °C on the left (or cooled there), oil on the right."""
+    section = Rectangle(
+        0.04,
+        0.02,
+        edge_names={"left": "held", "right": "oil", "top": "sides", "bottom": "sides"},
+    ).mesh(size=0.0015)
+    left = FixedTemperature(20.0) if fixed else Convection(800.0, 20.0)
+    return ThermalModel(
+        section,
+        STEEL,
+        boundaries={"held": left, "oil": Convection(500.0, 60.0), "sides": Insulated()},
+        initial_temperature=850.0,
+    )
+
+
+def step_matrix(model: ThermalModel) -> sp.csr_matrix:
+    system = assemble(model)
+    return (system.capacity + 2.0 * system.exchange_operator(0.0)).tocsr()
+
+
+@needs_cholesky
+def test_cholesky_factor_solves_like_spsolve():
+    matrix = step_matrix(slab_model(fixed=False))
+    rhs = np.random.default_rng(5).random((matrix.shape[0], 2))
+    factor = fem.linalg.CholeskyFactor(matrix)
+    reference = spla.spsolve(matrix.tocsc(), rhs)
+    assert np.abs(factor.solve(rhs) - reference).max() <= 1e-10 * np.abs(reference).max()
+    single = factor.solve(rhs[:, 0])
+    assert single.shape == (matrix.shape[0],)
+    assert np.abs(single - reference[:, 0]).max() <= 1e-10 * np.abs(reference[:, 0]).max()
+
+
+@needs_cholesky
+def test_a_matrix_that_is_not_positive_definite_is_solved_by_lu():
+    """An indefinite symmetric matrix (the step matrix with one diagonal entry made negative)
+    is not positive definite: Cholesky fails and the factorisation falls back to LU."""
+    system = assemble(slab_model(fixed=False))
+    matrix = (system.capacity + 2.0 * system.exchange_operator(0.0)).tolil()
+    matrix[3, 3] = -2.0 * matrix.diagonal().max()
+    matrix = matrix.tocsr()
+    algebra = LinearAlgebra(system, Cost())
+    factor = algebra.factor(matrix, symmetric=True, solver="cholesky")
+    assert not isinstance(factor, fem.linalg.CholeskyFactor)
+    rhs = np.random.default_rng(2).random(matrix.shape[0])
+    reference = spla.spsolve(matrix.tocsc(), rhs)
+    assert np.abs(factor.solve(rhs) - reference).max() <= 1e-10 * np.abs(reference).max()
+
+
+def test_step_matrices_take_cholesky_and_tangents_superlu_by_default():
+    system = assemble(slab_model(fixed=False))
+    algebra = LinearAlgebra(system, Cost())
+    expected = fem.linalg.CholeskyFactor if cholesky_available() else spla.SuperLU
+    assert isinstance(algebra.step_factor(2.0, 0.0), expected)
+    assert isinstance(algebra.factor(system.capacity, symmetric=True), spla.SuperLU)
+
+
+def test_an_unknown_symmetric_solver_is_refused():
+    with pytest.raises(ModelError, match="cholesky, superlu") as error:
+        choose_symmetric_solver("pardiso")
+    assert error.value.argument == "symmetric_solver"
+
+
+@needs_cholesky
+@pytest.mark.parametrize("fixed", [False, True])
+def test_cholesky_run_agrees_with_superlu(monkeypatch, fixed):
+    """The same run (40 Crank–Nicolson steps with start-up) with each symmetric solver."""
+    model = slab_model(fixed)
+    runs = {}
+    for solver in ("superlu", "cholesky"):
+        monkeypatch.setattr(fem.linalg, "SYMMETRIC_SOLVER", solver)
+        runs[solver] = solve(model, end_time=400.0, time_step=10.0, output_interval=100.0)
+    a, b = runs["superlu"], runs["cholesky"]
+    span = 850.0 - 20.0
+    assert np.abs(a.final_state - b.final_state).max() <= 1e-10 * span
+    assert np.abs(a.mean - b.mean).max() <= 1e-10 * span
+    for name in a.heat_flow:
+        flow = np.abs(a.heat_flow[name]).max()
+        assert np.abs(a.heat_flow[name] - b.heat_flow[name]).max() <= 1e-10 * flow
+
+
+def hand_crank_nicolson(model: ThermalModel, step: float, steps: int):
+    """Plain Crank–Nicolson written out with spsolve; the final field and the held group's
+    reaction (W) at every step."""
+    system = assemble(model)
+    M, A, b = system.capacity.tocsr(), system.exchange_operator(0.0).tocsr(), system.load(0.0)
+    fixed = np.concatenate([np.asarray(d) for d in system.fixed_dofs.values()] or [[]])
+    fixed = fixed.astype(int)
+    free = np.setdiff1d(np.arange(system.size), fixed)
+    left = (M + 0.5 * step * A).tocsr()
+    right = (M - 0.5 * step * A).tocsr()
+    u = np.full(system.size, 850.0)
+    u[fixed] = 20.0
+    reactions = []
+    for _ in range(steps):
+        rhs = right @ u + step * b
+        new = u.copy()
+        new[free] = spla.spsolve(
+            left[free][:, free].tocsc(), rhs[free] - left[free][:, fixed] @ new[fixed]
+        )
+        rows = M @ (new - u) / step + A @ (new + u) / 2 - b
+        reactions.append(rows[fixed].sum())
+        u = new
+    return u, np.array(reactions)
+
+
+@pytest.mark.parametrize("fixed", [False, True])
+def test_linear_steps_match_crank_nicolson_written_out(fixed):
+    model = slab_model(fixed)
+    steps, step = 40, 10.0
+    expected, reactions = hand_crank_nicolson(model, step, steps)
+    run = solve(
+        model, end_time=steps * step, time_step=step, startup_steps=0, output_interval=100.0
+    )
+    assert run.stats.steps == steps and run.stats.factorisations == 1
+    span = 850.0 - 20.0
+    assert np.abs(run.final_state - expected).max() <= 1e-12 * span
+    if fixed:
+        recorded = run.heat_flow["held"]
+        assert recorded.size == steps + 1  # every step and t = 0
+        scale = np.abs(reactions).max()
+        assert np.abs(recorded[1:] - reactions).max() <= 1e-10 * scale
