@@ -569,7 +569,7 @@ def test_check_reports_biot_numbers_and_direction(tmp_path, capsys):
     err = capsys.readouterr().err
     # Our own arithmetic: the quarter section is 30 mm x 20 mm, cooled on the 30 mm and 20 mm
     # faces, so V/A = 600 mm^2 / 50 mm = 12 mm and Bi = h V/A / k = 400 * 0.012 / 40 = 0.12.
-    assert "Biot number (volume_to_surface, L = 12 mm): 0.12" in err
+    assert "Biot number (L = V/A_s = 12 mm): 0.12" in err
     assert len(re.findall(r"^Biot number \(", err, flags=re.MULTILINE)) >= 2
     # Cooling at Bi ~ 0.1-0.5: the core lags the mean, so a lumped estimate says "done" first.
     direction = re.search(r"^Expected direction: (.*)$", err, flags=re.MULTILINE)

@@ -31,6 +31,7 @@ import advisor.pipeline
 import advisor.results_folder
 from advisor import AdvisorError, assess, write_results
 from advisor.cli.progress import RunProgress
+from advisor.time_words import duration_text
 from advisor.writers import animation as animation_writer
 from advisor.writers.field_plots import snapshot_figure, snapshot_indices
 from advisor.writers.history_plots import lumped_error_figure
@@ -468,7 +469,7 @@ def test_report_says_what_the_assessment_says(run, folder):
     assert "licensed professional practice" in text
     assert "time to target" in text
     slowest = run.time_to_target["slowest"]
-    assert f"{slowest:.4g} s" in text
+    assert duration_text(slowest) in text  # as a person reads it
 
 
 def test_report_escapes_every_name(folder):

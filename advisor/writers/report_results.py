@@ -208,8 +208,9 @@ def checks_part(a: Assessment) -> Part:
             ),
             (
                 "Wall-clock time",
-                f"assembly {stats.assembly_seconds:.3g} s, factorisation "
-                f"{stats.factorisation_seconds:.3g} s, stepping {stats.stepping_seconds:.3g} s",
+                f"assembly {duration(stats.assembly_seconds)}, factorisation "
+                f"{duration(stats.factorisation_seconds)}, stepping "
+                f"{duration(stats.stepping_seconds)}",
             ),
         )
     )
@@ -231,7 +232,7 @@ def _stepping(stats) -> str:
         )
     return (
         f"{stats.method}, {'adaptive' if stats.adaptive else 'fixed'} step "
-        f"{stats.smallest_step:.4g} to {stats.largest_step:.4g} s, {stats.steps} steps "
+        f"{duration(stats.smallest_step)} to {duration(stats.largest_step)}, {stats.steps} steps "
         f"({stats.rejected_steps} rejected, {stats.startup_steps} start-up)" + _retries(stats)
     )
 
