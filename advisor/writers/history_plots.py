@@ -170,8 +170,13 @@ def _difference_axes(axes, assessment: Assessment, t, scale: float, unit: str):
                 ((0, 6), "center", "bottom"),
                 ((6, -6), "left", "top"),
                 ((-6, -6), "right", "top"),
-                ((12, 14), "left", "bottom"),
-                ((-12, 14), "right", "bottom"),
+                # farther out, to the right then to the left, when the peak is crowded
+                *(
+                    ((side * dx, dy), "left" if side > 0 else "right", "bottom")
+                    for side in (1, -1)
+                    for dx in (16, 40, 80, 160)
+                    for dy in (6, -12, -30)
+                ),
             )
         ],
     )
@@ -187,19 +192,30 @@ def internal_difference_figure(assessment: Assessment) -> Figure:
     peak_label = _difference_axes(axes, assessment, t, scale, unit)
     through = assessment.time_to_target.get("slowest")
     if through is not None:
-        axes.axvline(through / scale, color=TARGET, lw=0.8, ls="-.")
-        axes.annotate(
+        x = through / scale
+        axes.axvline(x, color=TARGET, lw=0.8, ls="-.")
+        label = axes.annotate(
             f"slowest point at {assessment.target:g} °C",
-            (through / scale, 0),
-            xytext=(4, 4),
+            (x, 0.02),
+            xycoords=axes.get_xaxis_transform(),
+            xytext=(4, 0),
             textcoords="offset points",
             fontsize=8,
             color=TARGET,
             rotation=90,
-            va="bottom",
         )
+        label.set_in_layout(False)
     axes.set_title("Internal temperature difference in the section", fontsize=10, loc="left")
     peak_label()
+    if through is not None:  # beside the line, low or high, where the curve is not
+        place_clear(
+            label,
+            [
+                {"xy": (x, y), "offset": (dx, 0), "ha": ha, "va": va}
+                for y, va in ((0.02, "bottom"), (0.98, "top"))
+                for dx, ha in ((4, "left"), (-4, "right"))
+            ],
+        )
     return figure
 
 

@@ -51,7 +51,7 @@ def clock(seconds: float) -> str:
 
 def energy_axis(largest: float, per_depth: bool) -> tuple[float, str]:
     """A divisor and unit label for energies whose largest magnitude is ``largest`` J."""
-    suffix = "/m" if per_depth else ""
+    suffix = " per metre of depth" if per_depth else ""
     for scale, unit in ((1e9, "GJ"), (1e6, "MJ"), (1e3, "kJ")):
         if largest >= scale:
             return scale, unit + suffix

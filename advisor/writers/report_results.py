@@ -4,6 +4,7 @@ numbers, the lumped models' errors and parameters, and the run's own checks."""
 from __future__ import annotations
 
 from ..analysis.assessment import Assessment
+from ..analysis.verdict import BIOT_NAMES
 from .report_document import Block, Bullets, Callout, Facts, Paragraph, Part, Table, part
 from .report_words import duration, millimetres, number, parameter_words, quantity_words
 
@@ -63,28 +64,38 @@ def _against(time: float | None, reference: float | None, key: str) -> str:
 
 def biot_part(a: Assessment) -> Part:
     """Every Biot number with its length scale and what it measures."""
+    regions = bool(a.biot) and bool(a.biot[0].regions)
     rows = tuple(
         (
-            b.name.replace("_", " "),
+            BIOT_NAMES.get(b.name, b.name),
             f"{b.value:.3g}",
-            f"{b.low:.3g} to {b.high:.3g}",
+            *((", ".join(f"{r} {v:.3g}" for r, v in b.regions.items()),) if regions else ()),
+            "constant" if f"{b.low:.3g}" == f"{b.high:.3g}" else f"{b.low:.3g} to {b.high:.3g}",
             millimetres(b.length),
             f"{b.heat_transfer_coefficient:.4g} W/(m²·K)",
             b.explanation,
         )
         for b in a.biot
     )
-    return part(
-        "biot",
-        (
-            Paragraph(
-                "Bi = h·L/k compares the resistance to conduction inside the part with the "
-                "resistance to heat exchange at its surface; each length L answers a different "
-                "question."
-            ),
-            Table(("length scale", "Bi", "over the run", "L", "mean h", "what it measures"), rows),
+    columns = ("length scale", "Bi", *(("per region",) if regions else ()), "over the run")
+    blocks: list[Block] = [
+        Paragraph(
+            "Bi = h·L/k compares the resistance to conduction inside the part with the "
+            "resistance to heat exchange at its surface; each length L answers a different "
+            "question."
         ),
-    )
+        Table((*columns, "L", "mean h", "what it measures"), rows),
+    ]
+    if regions:
+        blocks.insert(
+            1,
+            Paragraph(
+                "With several materials Bi uses the least conductive region's k (the worst "
+                'case); "per region" gives each region\'s own number at the start, and "over '
+                'the run" how the worst case changes with time and temperature.'
+            ),
+        )
+    return part("biot", blocks)
 
 
 def errors_part(a: Assessment) -> Part:
@@ -141,10 +152,17 @@ def _model_rows(a: Assessment) -> list[tuple[str, str, str, str]]:
     """(model, parameter, value, unit) of every lumped model there is."""
     rows: list[tuple[str, str, str, str]] = []
 
+    per_depth = not a.solution.model.section.facts.axisymmetric
+
     def add(model: str, parameters: dict) -> None:
         for key, value in parameters.items():
             words, unit = parameter_words(key)
-            rows.append((model, words, number(value, 5), unit))
+            shown = number(value, 5)
+            if unit == "s" and value is not None:
+                shown += f" ({duration(value)})"
+            if per_depth and unit in ("J/K", "W/K"):  # planar capacities and conductances
+                unit += " per metre of depth"
+            rows.append((model, words, shown, unit))
 
     add("classical lumped", a.lumped.parameters())
     add("corrected lumped", a.corrected.parameters())

@@ -3,6 +3,8 @@
 from __future__ import annotations
 
 import math
+import re
+from collections.abc import Sequence
 
 import numpy as np
 
@@ -36,7 +38,12 @@ def number(value: float | None, digits: int = 4) -> str:
     """``value`` to ``digits`` significant figures; a dash for None."""
     if value is None:
         return "—"
-    return f"{float(value):.{digits}g}"
+    value = float(value)
+    if value != 0 and 1e-4 <= abs(value) < 1e9:  # positional: no scientific notation here
+        return np.format_float_positional(
+            value, precision=digits, unique=False, fractional=False, trim="-"
+        )
+    return f"{value:.{digits}g}"
 
 
 def duration(seconds: float | None) -> str:
@@ -129,3 +136,38 @@ def time_constant_text(lumped, end_time: float) -> str:
     if math.isclose(low, high, rel_tol=1e-3):
         spread = f"about {duration_text(low)}"
     return f"τ varies ({spread}" + ("" if linear else " at the start temperature") + ")"
+
+
+_FILE_KINDS = {
+    ".vtu": "VTK frames",
+    ".png": "PNG pictures",
+    ".svg": "SVG pictures",
+    ".csv": "CSV tables",
+    ".h5": "HDF5 files",
+}
+_NUMBERED = re.compile(r"^(?P<stem>.*?)(?P<number>\d+)(?P<suffix>\.[^./]+)$")
+
+
+def file_summary(names: Sequence[str], least: int = 4) -> list[str]:
+    """The files of a results folder as a person reads the list: a numbered series of at
+    least ``least`` files in one line ("51 VTK frames, fields/temperature_0000–0050.vtu"),
+    every other file by name, in the order given."""
+    series: dict[tuple[str, str, int], list[str]] = {}
+    for name in names:
+        found = _NUMBERED.match(name)
+        if found:
+            key = (found["stem"], found["suffix"], len(found["number"]))
+            series.setdefault(key, []).append(found["number"])
+    lines: list[str] = []
+    done: set[tuple[str, str, int]] = set()
+    for name in names:
+        found = _NUMBERED.match(name)
+        key = (found["stem"], found["suffix"], len(found["number"])) if found else None
+        if key is None or len(series[key]) < least:
+            lines.append(name)
+        elif key not in done:
+            done.add(key)
+            numbers = sorted(series[key])
+            kind = _FILE_KINDS.get(key[1].lower(), f"{key[1]} files")
+            lines.append(f"{len(numbers)} {kind}, {key[0]}{numbers[0]}–{numbers[-1]}{key[1]}")
+    return lines

@@ -35,6 +35,7 @@ def summary(assessment: Assessment, files: list[str]) -> dict:
         "peak_internal_difference_K": assessment.peak_internal_difference,
         "peak_internal_difference_time_s": assessment.peak_internal_difference_time,
         "time_to_target_s": assessment.time_to_target,
+        "stop_time_s": solution.stop_time,
         "verdict": _verdict(assessment),
         "quench": _quench(assessment),
         "freezing": _freezing(assessment),
