@@ -232,7 +232,7 @@ def _context(findings, quantity) -> list[str]:
         f"Biot number (V/A_s) = {bi.value:.3g}{biot_spread_words(bi)}: {against}",
         f"slowest-mode ratio {mode.ratio:.3g}: the part's last temperature difference decays "
         f"at {100 * mode.ratio:.3g} % of the lumped rate (a lumped model would need h = "
-        f"{mode.equivalent_coefficient:.4g} W/(m^2*K))",
+        f"{mode.equivalent_coefficient:.4g} W/(m²·K))",
     ]
     target = findings["target"]
     if target is not None and quantity != "time_to_target":
@@ -267,7 +267,7 @@ def _advice(findings: dict, rated: str, quantity: str, tolerance: float) -> tupl
                 extra = ""
                 if key == "corrected":
                     h = findings["corrected"].surface_coefficient
-                    extra = f", h_eff = {h:.4g} W/(m^2*K)"
+                    extra = f", h_eff = {h:.4g} W/(m²·K)"
                 return (
                     f"Use {label} ({100 * e.fraction:.2f} % error{extra}) or the field "
                     "result." + tail,

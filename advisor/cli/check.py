@@ -32,7 +32,7 @@ def execute(args: argparse.Namespace) -> int:
     mode = check.mode
     log.info(
         f"Slowest-mode ratio: {mode.ratio:.3g} (a lumped model would need h = "
-        f"{mode.equivalent_coefficient:.4g} W/(m^2*K))"
+        f"{mode.equivalent_coefficient:.4g} W/(m²·K))"
     )
     log.info(
         f"Lumped time constant: classical {duration_text(check.lumped.time_constant)}, "

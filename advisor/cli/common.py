@@ -74,10 +74,38 @@ def report_run(assessment, folder: Path, files: list[Path]) -> None:
     log.info(f"Advice: {verdict.advice}")
     for warning in solution.checks.warnings:
         log.warning(f"check: {warning}")
-    log.info(
-        f"Wrote {len(files)} files to {folder}/: open report.html, or fields/ in a VTK viewer"
-    )
+    log.info(closing_line(folder, files))
     log.info(f"Caution: {CAUTION}")
+
+
+def closing_line(folder: Path, files: list[Path]) -> str:
+    """Where the files went and what to open, naming only what was written."""
+    names = {Path(f).as_posix() for f in files}
+    tops = {n.split("/", 1)[0] for n in names}
+    opens = []
+    if "report.html" in names:
+        opens.append("open report.html")
+    if "animation.gif" in names:
+        opens.append("animation.gif")
+    if any(n.startswith("fields/") and n.endswith((".vtu", ".pvd", ".xdmf")) for n in names):
+        opens.append("fields/ in a VTK viewer")
+    if not opens and "plots" in tops:
+        opens.append("see plots/ and summary.json")
+    elif not opens:
+        opens.append("see summary.json")
+    return f"Wrote {len(files)} files to {folder}/: " + ", ".join(opens)
+
+
+def refuse_existing(folder: Path, force: bool) -> None:
+    """Refuse an existing results folder unless ``--force`` was given, in the command line's
+    words (the library's own check then decides whether it may be replaced)."""
+    if not force and (folder.exists() or folder.is_symlink()):
+        from ..errors import AdvisorError
+
+        raise AdvisorError(
+            f"results folder {str(folder)!r} already exists; choose another with --out DIR "
+            "or replace it with --force"
+        )
 
 
 def biot_lines(biot) -> list[str]:
