@@ -82,18 +82,13 @@ def closing_line(folder: Path, files: list[Path]) -> str:
     """Where the files went and what to open, naming only what was written."""
     names = {Path(f).as_posix() for f in files}
     tops = {n.split("/", 1)[0] for n in names}
-    opens = []
-    if "report.html" in names:
-        opens.append("open report.html")
-    if "animation.gif" in names:
-        opens.append("animation.gif")
+    pages = [n for n in ("report.html", "animation.gif") if n in names]
+    if not pages:
+        pages = [n for n in ("plots/", "summary.json") if n.rstrip("/") in tops]
+    words = [f"open {' or '.join(pages)}"] if pages else []
     if any(n.startswith("fields/") and n.endswith((".vtu", ".pvd", ".xdmf")) for n in names):
-        opens.append("fields/ in a VTK viewer")
-    if not opens and "plots" in tops:
-        opens.append("see plots/ and summary.json")
-    elif not opens:
-        opens.append("see summary.json")
-    return f"Wrote {len(files)} files to {folder}/: " + ", ".join(opens)
+        words.append("fields/ opens in a VTK viewer")
+    return f"Wrote {len(files)} files to {folder}/" + (": " + "; ".join(words) if words else "")
 
 
 def refuse_existing(folder: Path, force: bool) -> None:
