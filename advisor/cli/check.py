@@ -26,7 +26,8 @@ def execute(args: argparse.Namespace) -> int:
     from ..casefile.case import load_case
 
     case = load_case(args.case)
-    check = quick_check(case.model(), target=case.advisor_options.get("target"))
+    options = case.advisor_options
+    check = quick_check(case.model(), target=options.get("target"), process=options.get("process"))
     for line in biot_lines(check.biot):
         log.info(line)
     mode = check.mode

@@ -132,9 +132,9 @@ def time_constant_text(lumped, end_time: float) -> str:
         return ", then ".join([f"τ = {duration_text(values[0])}", *later])
     sampled = [tau(t) for t in np.linspace(0.0, end_time, 65)] + values
     low, high = min(sampled), max(sampled)
+    if math.isclose(low, high, rel_tol=1e-3):  # steady in time: it moves with temperature
+        return f"τ ≈ {duration_text(values[0])} at the start (changes with temperature)"
     spread = f"{duration_text(low)} to {duration_text(high)}"
-    if math.isclose(low, high, rel_tol=1e-3):
-        spread = f"about {duration_text(low)}"
     return f"τ varies ({spread}" + ("" if linear else " at the start temperature") + ")"
 
 

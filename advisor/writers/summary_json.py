@@ -97,6 +97,7 @@ def _biot_numbers(assessment: Assessment) -> list[dict]:
             "length_m": b.length,
             "heat_transfer_coefficient_W_per_m2_K": b.heat_transfer_coefficient,
             "explanation": b.explanation,
+            "per_region": b.regions,
         }
         for b in assessment.biot
     ]
@@ -135,6 +136,9 @@ def _verdict(assessment: Assessment) -> dict:
         "direction": verdict.direction,
         "advice": verdict.advice,
         "reasons": list(verdict.reasons),
+        "recommended_model": verdict.recommended,
+        "process": verdict.process,
+        "process_inferred": verdict.process_inferred,
     }
 
 
