@@ -18,7 +18,12 @@ import pytest
 
 from advisor import assess
 from advisor.time_words import duration_text
-from advisor.writers.history_plots import history_figure, internal_difference_figure
+from advisor.writers.history_plots import (
+    energy_figure,
+    history_figure,
+    internal_difference_figure,
+    lumped_error_figure,
+)
 from fem import Convection, Material, ThermalModel, solve
 from fem.schedules import Steps
 from geometries import Rectangle
@@ -107,7 +112,12 @@ def test_a_stepped_coefficient_gives_tau_per_stage(stepped):
 
 def test_labels_cross_no_curve_and_are_not_clipped(stepped, steady):
     for assessment in (stepped, steady):
-        for make in (history_figure, internal_difference_figure):
+        for make in (
+            history_figure,
+            internal_difference_figure,
+            lumped_error_figure,
+            energy_figure,
+        ):
             figure = make(assessment)
             assert labels(figure), "the figure has no labels to check"
             assert_clear(figure)

@@ -245,14 +245,17 @@ def lumped_error_figure(assessment: Assessment) -> Figure:
     axes.set_ylim(-1.15 * largest, 1.15 * largest)
     axes.set_ylabel("field − lumped (% of T0 − T∞)")
     axes.set_xlabel(f"time ({unit})")
-    axes.annotate(
+    note = axes.annotate(
         "above 0: the lumped estimate runs ahead of the field",
         (0.01, 0.98),
         xycoords="axes fraction",
+        xytext=(0, 0),
+        textcoords="offset points",
         va="top",
         fontsize=8,
         color=TARGET,
     )
+    note.set_in_layout(False)
     axes.legend(fontsize=8, frameon=False, loc="lower right", ncols=2)
     axes.set_title(
         "Lumped error against the field, as a share of the initial driving difference",
@@ -260,7 +263,24 @@ def lumped_error_figure(assessment: Assessment) -> Figure:
         loc="left",
     )
     tidy(axes, t)
+    place_clear(note, _corners())
     return figure
+
+
+def _corners() -> list[dict]:
+    """Candidate places for a note given in axes fractions: the four corners, then the
+    middles of the top and bottom edges."""
+    return [
+        {"xy": xy, "offset": (0, 0), "ha": ha, "va": va}
+        for xy, ha, va in (
+            ((0.01, 0.98), "left", "top"),
+            ((0.99, 0.98), "right", "top"),
+            ((0.01, 0.02), "left", "bottom"),
+            ((0.99, 0.02), "right", "bottom"),
+            ((0.5, 0.98), "center", "top"),
+            ((0.5, 0.02), "center", "bottom"),
+        )
+    ]
 
 
 def energy_figure(assessment: Assessment) -> Figure:
@@ -278,16 +298,22 @@ def energy_figure(assessment: Assessment) -> Figure:
     bottom.plot(t, imbalance, color=INK, lw=1.2)
     bottom.set_ylabel("imbalance\n(share of largest)")
     bottom.set_xlabel(f"time ({unit})")
-    bottom.annotate(
+    note = bottom.annotate(
         f"the run's own balance check: {solution.checks.energy_balance_error:.2g}",
         (0.99, 0.06),
         xycoords="axes fraction",
+        xytext=(0, 0),
+        textcoords="offset points",
         ha="right",
         fontsize=8,
         color=TARGET,
     )
+    note.set_in_layout(False)
     for axes in (top, bottom):
         tidy(axes, t)
+    place_clear(
+        note, [{"xy": (0.99, 0.06), "offset": (0, 0), "ha": "right", "va": "bottom"}] + _corners()
+    )
     return figure
 
 
