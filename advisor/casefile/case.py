@@ -113,9 +113,10 @@ class Case:
         if material is None:
             missing = sorted(set(section_mesh.regions) - set(self.materials))
             if missing:
-                raise CaseError(
-                    f"{self.path.name}: materials: no material for region(s) {missing}"
-                )
+                message = f"no material for region(s) {missing} of the meshed section"
+                if self.context is not None:
+                    self.context.fail("materials", message)
+                raise CaseError(f"{self.path.name}: materials: {message}")
             material = {region: self.materials[region] for region in section_mesh.regions}
         check_probes(section_mesh, self.probes, self.raw.get("probes", {}), self.context)
         model = ThermalModel(
