@@ -6,7 +6,14 @@ from __future__ import annotations
 from ..analysis.assessment import Assessment
 from ..analysis.verdict import BIOT_NAMES
 from .report_document import Block, Bullets, Callout, Facts, Paragraph, Part, Table, part
-from .report_words import duration, millimetres, number, parameter_words, quantity_words
+from .report_words import (
+    duration,
+    millimetres,
+    number,
+    parameter_words,
+    quantity_words,
+    time_constant_text,
+)
 
 
 def verdict_part(a: Assessment) -> Part:
@@ -138,6 +145,16 @@ def models_part(a: Assessment) -> Part:
         Table(("model", "parameter", "value", "unit"), tuple(_model_rows(a) + _mode_rows(a))),
         Paragraph(f"How β was chosen: {a.correction_note}."),
     ]
+    if not a.lumped.closed_form:  # conditions, radiation or properties change τ
+        end = float(a.solution.times[-1])
+        blocks.insert(
+            2,
+            Paragraph(
+                "The time constants above are those at the start. Over the run: classical "
+                f"lumped {time_constant_text(a.lumped, end)}; corrected lumped "
+                f"{time_constant_text(a.corrected, end)}."
+            ),
+        )
     missing = []
     if a.fitted is None:
         missing.append("a single exponential (conditions change during the run)")
