@@ -68,9 +68,12 @@ def summary_lines(summary: dict) -> list[str]:
     for bi in summary.get("biot_numbers", []):
         low, high = bi["range_over_run"]
         spread = "constant" if f"{low:.3g}" == f"{high:.3g}" else f"{low:.3g} to {high:.3g}"
+        regions = bi.get("per_region") or {}
+        each = "; per region " + ", ".join(f"{r} {v:.3g}" for r, v in regions.items())
         lines.append(
             f"Biot number ({BIOT_NAMES.get(bi['name'], bi['name'])} = "
-            f"{1000 * bi['length_m']:.3g} mm): {bi['value']:.3g} (over the run: {spread})"
+            f"{1000 * bi['length_m']:.3g} mm): {bi['value']:.3g} (over the run: {spread}"
+            f"{each if regions else ''})"
         )
     lines += [f"Check: {warning}" for warning in summary.get("checks", {}).get("warnings", [])]
     lines.append(f"Caution: {summary['caution']}")
