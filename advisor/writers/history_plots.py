@@ -343,7 +343,7 @@ def _ledger_axes(axes, assessment: Assessment, t: np.ndarray, largest: float) ->
         label="stored, classical lumped estimate",
     )
     axes.axhline(0.0, color=TARGET, lw=0.6)
-    axes.set_ylabel(f"energy since the start ({energy_unit})")
+    axes.set_ylabel(f"energy since the start\n({energy_unit})")  # two lines: per depth is long
     axes.legend(fontsize=8, frameon=False)
     sign = "positive: heat taken up" if assessment.heating else "negative: heat given off"
     axes.set_title(f"Energy ledger ({sign})", fontsize=10, loc="left")
