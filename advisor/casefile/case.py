@@ -235,9 +235,10 @@ def _one_element_order(root: Table, mesh_options: dict, element_order: int) -> t
     line = line_of(root.context.lines, "section.order")
     where = root.context.name + (f", line {line}" if line else "")
     if isinstance(run, dict) and "element_order" in run:
+        curved = " (and a quadratic mesh with them)" if element_order == 2 else ""
         warnings.warn(
             f"{where}: section.order is deprecated: [run] element_order = {element_order} "
-            "sets the elements (and a quadratic mesh with them); remove section.order",
+            f"sets the elements{curved}; remove section.order",
             FutureWarning,
             stacklevel=2,
         )
