@@ -18,7 +18,7 @@ import numpy as np
 
 from .checks import check_name, check_point
 from .errors import GeometryError
-from .primitives import EdgePrimitive, EdgeSegment, Placement
+from .primitives import EdgeArc, EdgeEllipse, EdgePrimitive, EdgeSegment, Placement
 
 SAMPLES_PER_PIECE = 24  # samples of each edge primitive for bounds and outline checks
 
@@ -93,9 +93,15 @@ class Shape:
         """The shape with edge groups renamed by ``names`` (old → new; merging is allowed)."""
         return Renamed(self, dict(names))
 
+    def outline_points(self) -> np.ndarray:
+        """Sample points (n, 2) in m that span the shape's outline: every edge primitive's
+        samples, with symmetry cuts' lines clipped to the part they bound (a nested cut's
+        line reaches far beyond the part, so its samples never count)."""
+        return np.vstack([edge_points(e) for e in self.edges()])
+
     def bounds(self) -> tuple[float, float, float, float]:
         """(x_min, y_min, x_max, y_max) of the outline in m."""
-        points = np.vstack([e.sample(SAMPLES_PER_PIECE) for e in self.edges()])
+        points = self.outline_points()
         return (*points.min(axis=0), *points.max(axis=0))  # type: ignore[return-value]
 
     @property
@@ -109,6 +115,31 @@ class Shape:
         from .meshing import mesh_section  # gmsh is loaded only when something is meshed
 
         return mesh_section(self, size, **options)
+
+
+def edge_points(edge: EdgePrimitive) -> np.ndarray:
+    """Samples of ``edge`` (n, 2) in m, with the points where a curved edge reaches its
+    extreme x and y, so that bounds built from them are exact."""
+    points = edge.sample(SAMPLES_PER_PIECE)
+    if isinstance(edge, EdgeArc):
+        low, high = sorted((edge.start_angle, edge.start_angle + edge.sweep))
+        quarters = np.arange(math.ceil(low / (math.pi / 2)), math.floor(high / (math.pi / 2)) + 1)
+        angles = quarters * (math.pi / 2)
+        extremes = np.asarray(edge.centre) + edge.radius * np.column_stack(
+            [np.cos(angles), np.sin(angles)]
+        )
+        return np.vstack([points, extremes])
+    if isinstance(edge, EdgeEllipse):
+        # x(t) = cx + cos·a·cos t − sin·b·sin t is extreme where tan t = −sin·b / (cos·a);
+        # y(t) = cy + sin·a·cos t + cos·b·sin t where tan t = cos·b / (sin·a).
+        c, s = math.cos(edge.angle), math.sin(edge.angle)
+        a, b = edge.semi_x, edge.semi_y
+        t = np.array([math.atan2(-s * b, c * a), math.atan2(c * b, s * a)])
+        t = np.concatenate([t, t + math.pi])
+        x, y = a * np.cos(t), b * np.sin(t)
+        extremes = np.asarray(edge.centre) + np.column_stack([c * x - s * y, s * x + c * y])
+        return np.vstack([points, extremes])
+    return points
 
 
 def _shapes(shapes, what: str) -> tuple[Shape, ...]:
@@ -140,6 +171,9 @@ class _Combination(Shape):
 
     def edges(self):
         return tuple(e for s in self.shapes for e in s.edges())
+
+    def outline_points(self) -> np.ndarray:
+        return np.vstack([s.outline_points() for s in self.shapes])
 
     def placed(self, placement):
         return type(self)(tuple(s.placed(placement) for s in self.shapes), self.region)
@@ -175,6 +209,9 @@ class Difference(Shape):
 
     def edges(self):
         return self.base.edges() + tuple(e for t in self.tools for e in t.edges())
+
+    def outline_points(self) -> np.ndarray:
+        return np.vstack([self.base.outline_points(), *(t.outline_points() for t in self.tools)])
 
     def placed(self, placement):
         return Difference(
@@ -217,6 +254,9 @@ class Composite(Shape):
 
     def edges(self):
         return tuple(e for s in self.parts for e in s.edges())
+
+    def outline_points(self) -> np.ndarray:
+        return np.vstack([s.outline_points() for s in self.parts])
 
     def placed(self, placement):
         return Composite(tuple(s.placed(placement) for s in self.parts))
@@ -261,16 +301,16 @@ class SymmetryCut(Shape):
     def edges(self):
         return self.shape.edges() + (self.cut_line(),)
 
-    def bounds(self):
+    def outline_points(self) -> np.ndarray:
         # The kept side's samples, and every sample projected onto the cut line: never
-        # beyond the cut, at most a little generous along it.
-        points = np.vstack([e.sample(SAMPLES_PER_PIECE) for e in self.shape.edges()])
+        # beyond the cut and, the shape being its own mirror image, never beyond the kept
+        # half along it. The inner shape's points are already clipped by its own cuts.
+        points = self.shape.outline_points()
         p, n = np.asarray(self.point), self.normal
         side = (points - p) @ n
         kept = points[side >= 0]
         projected = points - side[:, None] * n
-        both = np.vstack([kept, projected])
-        return (*both.min(axis=0), *both.max(axis=0))
+        return np.vstack([kept, projected])
 
     def placed(self, placement):
         return SymmetryCut(
@@ -315,8 +355,8 @@ class Renamed(Shape):
     def placed(self, placement):
         return Renamed(self.shape.placed(placement), self.names)
 
-    def bounds(self):
-        return self.shape.bounds()
+    def outline_points(self) -> np.ndarray:
+        return self.shape.outline_points()
 
     def symmetry_multiplier(self, axisymmetric: bool = False) -> int:
         return self.shape.symmetry_multiplier(axisymmetric)

@@ -31,6 +31,7 @@ import advisor.pipeline
 import advisor.results_folder
 from advisor import AdvisorError, assess, write_results
 from advisor.cli.progress import RunProgress
+from advisor.time_words import duration_text
 from advisor.writers import animation as animation_writer
 from advisor.writers.field_plots import snapshot_figure, snapshot_indices
 from advisor.writers.history_plots import lumped_error_figure
@@ -468,7 +469,7 @@ def test_report_says_what_the_assessment_says(run, folder):
     assert "licensed professional practice" in text
     assert "time to target" in text
     slowest = run.time_to_target["slowest"]
-    assert f"{slowest:.4g} s" in text
+    assert duration_text(slowest) in text  # as a person reads it
 
 
 def test_report_escapes_every_name(folder):
@@ -605,7 +606,7 @@ def test_progress_shows_simulated_time_steps_and_time_left():
     solution = solve(_small_model(), end_time=60.0, time_step=1.0, progress=RunProgress(stream))
     shown = stream.getvalue()
     last = shown.replace("\r", "\n").strip().splitlines()[-1]
-    assert "60/60 s simulated" in last
+    assert "simulated, 1 min of 1 min, " in last  # times as a person reads them
     assert f"{solution.stats.steps} steps" in last
     assert "left" in last and "100%" in last
 

@@ -55,6 +55,7 @@ def assess(
     cooling_range: Sequence[float] | None = None,
     freezing: FreezingProduct | None = None,
     freeze_to: float | None = None,
+    process: str | None = None,
 ) -> Assessment:
     """Judge the lumped family against the field of ``solution``.
 
@@ -89,6 +90,9 @@ def assess(
         from the model's material with latent heat (:meth:`FreezingProduct.of_material`).
     freeze_to : float, optional
         The temperature in °C the slowest point must pass through to count as frozen.
+    process : str, optional
+        The kind of process the verdict's words are chosen for: ``"heat-treatment"``,
+        ``"food"``, ``"electronics"`` or ``"general"``; inferred from the model when None.
 
     Returns
     -------
@@ -140,7 +144,7 @@ def assess(
         time_to_target=_times_to_target(solution, lumped, family, target, drive),
         **family,
     )
-    verdict = judge(findings, quantity, tolerance, drive)
+    verdict = judge(findings, quantity, tolerance, drive, process)
     slowest = solution.minimum if drive < 0 else solution.maximum
     quench = None
     if cooling_rates or times_to or cooling_range is not None:

@@ -11,6 +11,7 @@ from ..errors import AdvisorError
 from .freezing import FreezingProduct
 from .lumped import LumpedModel
 from .process_readings import check_outputs, freezing_product
+from .process_words import check_process
 from .verdict import QUANTITIES
 
 
@@ -25,8 +26,10 @@ def check_request(
     cooling_range: Sequence[float] | None = None,
     freezing: FreezingProduct | None = None,
     freeze_to: float | None = None,
+    process: str | None = None,
 ) -> None:
     """Refuse, before any solve, an assessment that :func:`assess` would refuse."""
+    check_process(process)
     lumped = LumpedModel.of(model)
     drive = lumped.initial_temperature - lumped.equilibrium
     check_arguments(lumped, drive, target, tolerance, quantity)
@@ -35,10 +38,15 @@ def check_request(
 
 
 def check_options(
-    *, target: float | None = None, tolerance: float = 0.05, quantity: str = "slowest"
+    *,
+    target: float | None = None,
+    tolerance: float = 0.05,
+    quantity: str = "slowest",
+    process: str | None = None,
 ) -> None:
     """Refuse what :func:`assess` refuses of its options without a model (a case file checks
     them before meshing); :func:`check_request` adds what needs the model."""
+    check_process(process)
     if quantity not in QUANTITIES:
         raise AdvisorError(
             f"quantity must be one of {QUANTITIES}, got {quantity!r}", argument="quantity"

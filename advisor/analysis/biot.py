@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 from scipy.optimize import minimize_scalar
@@ -13,6 +13,8 @@ from ..errors import AdvisorError
 from .lumped import mean_coefficient, mean_initial
 
 COMMON_LIMIT = 0.1  # common practice: lumped estimates are usually accepted below Bi = 0.1
+EXPOSED_SHARE = 0.05  # our rule: an edge below 5 % of the largest coefficient is insulated
+# for the conduction distance (h = 5 inside a hollow profile against 800 outside)
 
 
 @dataclass(frozen=True)
@@ -30,10 +32,14 @@ class BiotNumber:
     heat_transfer_coefficient : float
         The surface-weighted mean h (radiation linearised) at the start, W/(m²·K).
     low, high : float
-        The range of the number over the run, as coefficients and conductivity vary with time
-        and temperature; ``high`` is the worst case.
+        The range of the number over the run, as coefficients and the conductivity vary with
+        time and temperature (the same region's conductivity as ``value``: the range is over
+        time, never across regions); ``high`` is the worst case.
     explanation : str
         What the length is and how to read the number.
+    regions : dict of str to float
+        The number at the start with each region's own conductivity (several regions only;
+        ``value`` uses the lowest).
     """
 
     name: str
@@ -43,6 +49,7 @@ class BiotNumber:
     low: float
     high: float
     explanation: str
+    regions: dict[str, float] = field(default_factory=dict)
 
 
 def biot_numbers(
@@ -58,8 +65,11 @@ def biot_numbers(
     surface temperature (radiation as εσ(T² + T_s²)(T + T_s)). The value is for the
     start; the range covers coefficients over [0, ``end_time``] and temperatures in
     ``temperature_range`` (°C; default the initial temperature). With several materials the
-    lowest conductivity is used (the worst case). V and A_s are the section's volume and
-    exchanging surface (per metre of depth for planar sections, revolved for axisymmetric ones).
+    lowest conductivity is used (the worst case), at every temperature, and each region's own
+    number is kept in ``regions``. V and A_s are the section's volume and exchanging surface
+    (per metre of depth for planar sections, revolved for axisymmetric ones). The conduction
+    distance counts an edge as insulated when its coefficient is below :data:`EXPOSED_SHARE`
+    of the largest edge's (its explanation names the edges left out).
     """
     groups = model.exchange_groups
     if not groups:
@@ -67,10 +77,18 @@ def biot_numbers(
     t0 = mean_initial(model)
     low_t, high_t = temperature_range or (t0, t0)
     h0 = mean_coefficient(model, t0, 0.0)
-    k0 = min(float(m.conductivity_at(t0)) for m in model.materials.values())
+    conductivities = {r: float(m.conductivity_at(t0)) for r, m in model.materials.items()}
+    k0 = min(conductivities.values())
     hs, ks = _coefficient_range(model, end_time, low_t, high_t)
+    lengths, left_out = _lengths(model, t0)
 
     def number(name: str, length: float) -> BiotNumber:
+        explanation = EXPLANATIONS[name]
+        if name == "conduction_distance" and left_out:
+            explanation += (
+                f"; edges whose coefficient is below {100 * EXPOSED_SHARE:g} % of the "
+                f"largest count as insulated here: {', '.join(left_out)}"
+            )
         return BiotNumber(
             name,
             h0 * length / k0,
@@ -78,10 +96,13 @@ def biot_numbers(
             h0,
             min(hs) * length / max(ks),
             max(hs) * length / min(ks),
-            EXPLANATIONS[name],
+            explanation,
+            {r: h0 * length / k for r, k in conductivities.items()}
+            if len(conductivities) > 1
+            else {},
         )
 
-    return tuple(number(name, length) for name, length in _lengths(model).items())
+    return tuple(number(name, length) for name, length in lengths.items())
 
 
 EXPLANATIONS = {
@@ -102,8 +123,9 @@ EXPLANATIONS = {
 }
 
 
-def _lengths(model: ThermalModel) -> dict[str, float]:
-    """The length scales in m, in report order (4A/P only for planar sections)."""
+def _lengths(model: ThermalModel, temperature: float) -> tuple[dict[str, float], list[str]]:
+    """The length scales in m, in report order (4A/P only for planar sections), and the
+    exchanging edge groups the conduction distance counts as insulated."""
     groups = model.exchange_groups
     facts = model.section.facts
     exposed_surface = sum(facts.surface_areas[g] for g in groups)
@@ -111,8 +133,27 @@ def _lengths(model: ThermalModel) -> dict[str, float]:
     if not facts.axisymmetric:
         exposed_length = sum(facts.edge_lengths[g] for g in groups)
         lengths["four_area_over_perimeter"] = 4 * facts.area / exposed_length
-    lengths["conduction_distance"] = model.section.max_distance_to(groups)
-    return lengths
+    exposed, left_out = exposed_groups(model, temperature)
+    lengths["conduction_distance"] = model.section.max_distance_to(exposed)
+    return lengths, left_out
+
+
+def exposed_groups(model: ThermalModel, temperature: float) -> tuple[list[str], list[str]]:
+    """The exchanging edge groups whose coefficient at the start (each condition linearised
+    at ``temperature`` °C) is at least :data:`EXPOSED_SHARE` of the largest, and the others
+    described as "name (h = 5 W/(m²·K))"."""
+    coefficients = dict.fromkeys(model.exchange_groups, 0.0)
+    for name, condition in model.conditions():
+        if name in coefficients and condition.flows:
+            coefficients[name] += condition.linearised(temperature, 0.0).coefficient
+    largest = max(coefficients.values(), default=0.0)
+    kept = [g for g, h in coefficients.items() if h >= EXPOSED_SHARE * largest]
+    left = [
+        f"{g} (h = {h:.3g} W/(m²·K))"
+        for g, h in coefficients.items()
+        if h < EXPOSED_SHARE * largest
+    ]
+    return (kept or list(model.exchange_groups)), left
 
 
 def _coefficient_range(model, end_time, low_t, high_t):
@@ -144,9 +185,10 @@ def _coefficient_range(model, end_time, low_t, high_t):
                 options={"xatol": 1e-6 * (high_t - low_t)},
             )
             hs.append(-sign * float(best.fun))
+    # The lowest conductivity at each temperature, as the value uses: a range over time and
+    # temperature, not across regions (those are BiotNumber.regions).
     ks = [
-        float(m.conductivity_at(float(t_)))
-        for m in model.materials.values()
+        min(float(m.conductivity_at(float(t_))) for m in model.materials.values())
         for t_ in np.linspace(low_t, high_t, 9)
     ]
     return hs, ks

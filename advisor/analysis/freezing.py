@@ -34,6 +34,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..errors import AdvisorError
+from ..time_words import duration_text
 
 SHAPES = {"slab": 1.0, "cylinder": 2.0, "sphere": 3.0}  # Plank's E: d·A/V
 
@@ -341,17 +342,20 @@ def direction(name: str, hand: float | None, field_time: float | None) -> str:
     if hand is None:
         return f"{name}: outside its range of use here."
     if field_time is None:
-        return f"{name}: {hand:.4g} s; the field does not finish freezing within the run."
+        return f"{name}: {duration_text(hand)}; the field does not finish freezing within the run."
     gap = (hand - field_time) / field_time
     if abs(gap) < 0.005:
-        return f"{name}: {hand:.4g} s, within 0.5 % of the field's {field_time:.4g} s."
+        return (
+            f"{name}: {duration_text(hand)}, within 0.5 % of the field's "
+            f"{duration_text(field_time)}."
+        )
     way = (
         "too short: it would stop the freezer before the slowest point is frozen "
         "(non-conservative)"
         if gap < 0
         else "too long: a safe but costly estimate (conservative)"
     )
-    return f"{name}: {hand:.4g} s, {abs(gap):.1%} {way}."
+    return f"{name}: {duration_text(hand)}, {abs(gap):.1%} {way}."
 
 
 def compare_freezing(

@@ -26,6 +26,7 @@ from .assessment import check_request, correction
 from .biot import COMMON_LIMIT, BiotNumber, biot_numbers
 from .lumped import LumpedModel
 from .modes import SlowestMode, slowest_mode
+from .process_words import infer_process, process_words
 
 LATENT_PEAK = 3.0  # a specific-heat table peaking above 3× its lowest value holds latent heat
 
@@ -61,10 +62,14 @@ class QuickCheck:
     assumptions_broken: tuple[str, ...] = field(default=())
 
 
-def quick_check(model: ThermalModel, *, target: float | None = None) -> QuickCheck:
+def quick_check(
+    model: ThermalModel, *, target: float | None = None, process: str | None = None
+) -> QuickCheck:
     """Judge the lumped estimate from the model alone (no time stepping).
 
     Use a coarse mesh: the Biot numbers and the slowest mode converge fast with the mesh.
+    ``process`` chooses the words of the expected direction
+    (:data:`.process_words.PROCESSES`; inferred from the model when None).
 
     Examples
     --------
@@ -77,7 +82,7 @@ def quick_check(model: ThermalModel, *, target: float | None = None) -> QuickChe
     >>> check.time_to_target["classical"] < check.time_to_target["slowest (modal estimate)"]
     True
     """
-    check_request(model, target=target)
+    check_request(model, target=target, process=process)
     lumped = LumpedModel.of(model)
     drive = lumped.initial_temperature - lumped.equilibrium
     # the surface passes between the initial and the driving temperatures: a coefficient
@@ -109,10 +114,10 @@ def quick_check(model: ThermalModel, *, target: float | None = None) -> QuickChe
             "part is "
             + ("heated through" if heating else "cooled")
             + " too early — "
-            + (
-                "non-conservative for a soak or hold time"
-                if heating
-                else "non-conservative for the end of a quench or a safe-to-handle time"
+            + process_words(
+                process
+                or infer_process(model, lumped.initial_temperature, lumped.equilibrium, target),
+                "heating" if heating else "cooling",
             )
         )
     reasons = assumptions_broken(model, lumped.initial_temperature)

@@ -6,7 +6,9 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from ..errors import AdvisorError
+from ..time_words import duration_text
 from .biot import COMMON_LIMIT
+from .process_words import check_process, infer_process, process_words
 
 QUANTITIES = ("slowest", "mean", "peak_difference", "time_to_target")
 RATINGS = ("adequate", "marginal", "inadequate")
@@ -15,6 +17,11 @@ SUBJECTS = {
     "mean": "the field mean",
     "peak_difference": "the internal temperature difference",
     "time_to_target": "the slowest point's time to target",
+}
+BIOT_NAMES = {  # a Biot number's length scale in words
+    "volume_to_surface": "L = V/A_s",
+    "four_area_over_perimeter": "L = 4A/P",
+    "conduction_distance": "L = largest conduction distance",
 }
 ADVICE_CANDIDATES = (
     ("corrected", "the corrected lumped model"),
@@ -45,6 +52,14 @@ class Verdict:
         What to use instead (or that the lumped estimate will do).
     reasons : tuple of str
         The figures behind the rating.
+    recommended : str or None
+        The model the advice recommends, a key of :attr:`Assessment.model_temperatures`
+        (``"classical"`` when adequate, ``"corrected"``, ``"two-node"``, ``"fitted
+        exponential"``), or None when only the field will do.
+    process : str
+        The kind of process the words are chosen for (:data:`.process_words.PROCESSES`).
+    process_inferred : bool
+        True when the process was inferred from the model rather than named by the case.
     """
 
     rating: str
@@ -54,6 +69,9 @@ class Verdict:
     direction: str
     advice: str
     reasons: tuple[str, ...]
+    recommended: str | None = None
+    process: str = "general"
+    process_inferred: bool = True
 
     @property
     def adequate(self) -> bool:
@@ -72,24 +90,54 @@ def rating(error: float, tolerance: float) -> str:
     return "marginal" if error <= 2 * tolerance else "inadequate"
 
 
-def judge(findings: dict, quantity: str, tolerance: float, drive: float) -> Verdict:
+def judge(
+    findings: dict,
+    quantity: str,
+    tolerance: float,
+    drive: float,
+    process: str | None = None,
+) -> Verdict:
     """The verdict on ``quantity`` from the assessment's ``findings`` (its fields by name);
-    ``drive`` = T0 − T_eq in K (> 0 cooling, < 0 heating)."""
+    ``drive`` = T0 − T_eq in K (> 0 cooling, < 0 heating); the words chosen for ``process``
+    (None: inferred by :func:`.process_words.infer_process`)."""
+    check_process(process)
+    inferred = process is None
+    if process is None:
+        lumped = findings["lumped"]
+        process = infer_process(
+            findings["solution"].model,
+            lumped.initial_temperature,
+            lumped.equilibrium,
+            findings["target"],
+        )
     if quantity in ("slowest", "mean"):
-        error, direction, reasons = _temperature_error(findings, quantity, tolerance, drive)
+        error, direction, reasons = _temperature_error(
+            findings, quantity, tolerance, drive, process
+        )
     elif quantity == "peak_difference":
-        error, direction, reasons = _difference_error(findings, drive)
+        error, direction, reasons = _difference_error(findings, drive, process)
     else:
         error, direction, reasons = _time_error(findings, tolerance)
     rated = rating(error, tolerance)
     reasons += _context(findings, quantity)
-    advice = _advice(findings, rated, quantity, tolerance)
+    advice, recommended = _advice(findings, rated, quantity, tolerance)
     return Verdict(
-        rated, quantity, float(tolerance), float(error), direction, advice, tuple(reasons)
+        rated,
+        quantity,
+        float(tolerance),
+        float(error),
+        direction,
+        advice,
+        tuple(reasons),
+        recommended,
+        process,
+        inferred,
     )
 
 
-def _temperature_error(findings, quantity, tolerance, drive) -> tuple[float, str, list[str]]:
+def _temperature_error(
+    findings, quantity, tolerance, drive, process
+) -> tuple[float, str, list[str]]:
     heating = drive < 0
     verb = "heats" if heating else "cools"
     subject = SUBJECTS[quantity]
@@ -97,17 +145,13 @@ def _temperature_error(findings, quantity, tolerance, drive) -> tuple[float, str
     reasons = [
         f"largest lumped error against {subject}: {e.largest:.3g} K, "
         f"{100 * e.fraction:.2f} % of the driving difference of {abs(drive):.4g} K (at "
-        f"t = {e.time:.4g} s); the tolerance is {100 * tolerance:.3g} %"
+        f"t = {duration_text(e.time)}); the tolerance is {100 * tolerance:.3g} %"
     ]
     if e.lumped_ahead:
         direction = (
             f"the lumped estimate runs ahead of {subject}: it says the part "
             f"{verb} faster than it does — "
-            + (
-                "non-conservative for a soak or hold time"
-                if heating
-                else "non-conservative for the end of a quench or a safe-to-handle time"
-            )
+            + process_words(process, "heating" if heating else "cooling")
         )
     else:
         direction = (
@@ -117,18 +161,18 @@ def _temperature_error(findings, quantity, tolerance, drive) -> tuple[float, str
     return e.fraction, direction, reasons
 
 
-def _difference_error(findings, drive) -> tuple[float, str, list[str]]:
+def _difference_error(findings, drive, process) -> tuple[float, str, list[str]]:
     peak = findings["peak_internal_difference"]
     error = peak / abs(drive)
     reasons = [
         f"the section's largest internal temperature difference is "
         f"{peak:.3g} K ({100 * error:.2f} % of the driving "
         f"difference of {abs(drive):.4g} K) at t = "
-        f"{findings['peak_internal_difference_time']:.4g} s; a lumped model has none"
+        f"{duration_text(findings['peak_internal_difference_time'])}; a lumped model has none"
     ]
     direction = (
-        "the lumped estimate says the part stays uniform: it hides the "
-        "internal temperature difference that drives distortion and cracking"
+        "the lumped estimate says the part stays uniform: it hides the internal temperature "
+        f"difference {process_words(process, 'difference')}"
     )
     return error, direction, reasons
 
@@ -144,8 +188,8 @@ def _time_error(findings, tolerance) -> tuple[float, str, list[str]]:
     error = abs(lumped_time - field_time) / field_time
     early = lumped_time < field_time
     reasons = [
-        f"the lumped estimate reaches {findings['target']:g} degC at {lumped_time:.4g} s, the "
-        f"slowest point at {field_time:.4g} s ({100 * error:.1f} % "
+        f"the lumped estimate reaches {findings['target']:g} °C at {duration_text(lumped_time)}, "
+        f"the slowest point at {duration_text(field_time)} ({100 * error:.1f} % "
         f"{'early' if early else 'late'}); the tolerance is {100 * tolerance:.3g} %"
     ]
     direction = (
@@ -154,6 +198,21 @@ def _time_error(findings, tolerance) -> tuple[float, str, list[str]]:
         else "the lumped estimate says the part is through later than it is — conservative"
     )
     return error, direction, reasons
+
+
+def biot_spread_words(bi) -> str:
+    """How a Biot number varies: across regions (each region's own conductivity) and over
+    the run (coefficients and conductivity over time and temperature), kept apart."""
+    words = []
+    if bi.regions:
+        least = max(bi.regions, key=bi.regions.get, default="")
+        each = ", ".join(f"{r} {v:.3g}" for r, v in bi.regions.items())
+        words.append(f"with the least conductive region's k ({least}); per region {each}")
+    if f"{bi.low:.3g}" == f"{bi.high:.3g}":
+        words.append("constant over the run")
+    else:
+        words.append(f"over the run {bi.low:.3g} to {bi.high:.3g}")
+    return " (" + "; ".join(words) + ")"
 
 
 def _context(findings, quantity) -> list[str]:
@@ -170,11 +229,10 @@ def _context(findings, quantity) -> list[str]:
     else:
         against = f"not below the common-practice limit of {COMMON_LIMIT}"
     reasons = [
-        f"Biot number (V/A_s) = {bi.value:.3g} (over the run {bi.low:.3g} to "
-        f"{bi.high:.3g}): {against}",
+        f"Biot number (V/A_s) = {bi.value:.3g}{biot_spread_words(bi)}: {against}",
         f"slowest-mode ratio {mode.ratio:.3g}: the part's last temperature difference decays "
         f"at {100 * mode.ratio:.3g} % of the lumped rate (a lumped model would need h = "
-        f"{mode.equivalent_coefficient:.4g} W/(m^2*K))",
+        f"{mode.equivalent_coefficient:.4g} W/(m²·K))",
     ]
     target = findings["target"]
     if target is not None and quantity != "time_to_target":
@@ -185,14 +243,15 @@ def _context(findings, quantity) -> list[str]:
         elif lumped_time is not None and field_time > 0:
             change = 100 * (lumped_time - field_time) / field_time
             reasons.append(
-                f"the lumped estimate reaches {target:g} degC at {lumped_time:.4g} s, "
+                f"the lumped estimate reaches {target:g} °C at {duration_text(lumped_time)}, "
                 f"{abs(change):.1f} % {'earlier' if change < 0 else 'later'} than the slowest "
-                f"point ({field_time:.4g} s)"
+                f"point ({duration_text(field_time)})"
             )
     return reasons
 
 
-def _advice(findings: dict, rated: str, quantity: str, tolerance: float) -> str:
+def _advice(findings: dict, rated: str, quantity: str, tolerance: float) -> tuple[str, str | None]:
+    """The advice in words and the key of the model it recommends (None: the field)."""
     tail = (
         " The run's own checks flagged problems (see the checks): refine the mesh or the "
         "step before relying on these figures."
@@ -200,7 +259,7 @@ def _advice(findings: dict, rated: str, quantity: str, tolerance: float) -> str:
         else ""
     )
     if rated == "adequate":
-        return "The classical lumped estimate will do for this quantity." + tail
+        return "The classical lumped estimate will do for this quantity." + tail, "classical"
     if quantity in ("slowest", "mean"):
         for key, label in ADVICE_CANDIDATES:
             e = findings["errors"].get(f"{key} vs {quantity}")
@@ -208,9 +267,10 @@ def _advice(findings: dict, rated: str, quantity: str, tolerance: float) -> str:
                 extra = ""
                 if key == "corrected":
                     h = findings["corrected"].surface_coefficient
-                    extra = f", h_eff = {h:.4g} W/(m^2*K)"
+                    extra = f", h_eff = {h:.4g} W/(m²·K)"
                 return (
                     f"Use {label} ({100 * e.fraction:.2f} % error{extra}) or the field "
-                    "result." + tail
+                    "result." + tail,
+                    key,
                 )
-    return "Use the field result: no lumped model is within the tolerance." + tail
+    return "Use the field result: no lumped model is within the tolerance." + tail, None

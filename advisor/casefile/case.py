@@ -11,17 +11,29 @@ from __future__ import annotations
 
 import copy
 import sys
+import warnings
 from dataclasses import dataclass, field
 from pathlib import Path
 
 from fem import ThermalModel, bind_correlations
 from geometries import Section, SectionMesh
 
+from .case_checks import check_probes, check_target
 from .conditions import read_boundaries, read_initial, read_probes, read_sources
 from .interfaces import read_interfaces
 from .materials import WHOLE_SECTION, read_materials
 from .options import read_advisor, read_outputs, read_run
-from .reader import DEEPEST, CaseError, Context, Table, check_tree, echo, nesting_key, shown_path
+from .reader import (
+    DEEPEST,
+    CaseError,
+    Context,
+    Table,
+    check_tree,
+    echo,
+    line_of,
+    nesting_key,
+    shown_path,
+)
 from .sections import read_section
 from .validation import LIBRARY_ERRORS
 
@@ -86,9 +98,16 @@ class Case:
     advisor_options: dict
     outputs: dict = field(default_factory=dict)
     interfaces: dict = field(default_factory=dict)
+    context: Context | None = field(default=None, compare=False, repr=False)
+    raw: dict = field(default_factory=dict, compare=False, repr=False)
 
     def model(self) -> ThermalModel:
-        """Mesh the section (or take the imported mesh) and build the thermal model."""
+        """Mesh the section (or take the imported mesh) and build the thermal model.
+
+        A probe outside the meshed section and a target the part does not pass through are
+        refused here as :class:`CaseError` at their key paths (``probes.<name>``,
+        ``advisor.target``), with values in the units the case used.
+        """
         if self.imported is not None:
             section_mesh = self.imported
         else:
@@ -98,11 +117,13 @@ class Case:
         if material is None:
             missing = sorted(set(section_mesh.regions) - set(self.materials))
             if missing:
-                raise CaseError(
-                    f"{self.path.name}: materials: no material for region(s) {missing}"
-                )
+                message = f"no material for region(s) {missing} of the meshed section"
+                if self.context is not None:
+                    self.context.fail("materials", message)
+                raise CaseError(f"{self.path.name}: materials: {message}")
             material = {region: self.materials[region] for region in section_mesh.regions}
-        return ThermalModel(
+        check_probes(section_mesh, self.probes, self.raw.get("probes", {}), self.context)
+        model = ThermalModel(
             section_mesh,
             material,
             bind_correlations(self.boundaries, section_mesh, self.initial),
@@ -112,6 +133,9 @@ class Case:
             heat_sources=self.sources,
             interfaces=self.interfaces,
         )
+        raw_target = self.raw.get("advisor", {}).get("target")
+        check_target(model, self.advisor_options.get("target"), raw_target, self.context)
+        return model
 
 
 def load_case(path: str | Path, overrides: dict | None = None) -> Case:
@@ -198,6 +222,42 @@ def _overridden(data: dict, overrides: dict, name: str) -> dict:
     return data
 
 
+def _one_element_order(root: Table, mesh_options: dict, element_order: int) -> tuple[dict, int]:
+    """One key for the element order: ``[run] element_order``, which also makes the mesh
+    follow curved edges (quadratic geometry) when the elements are quadratic.
+
+    ``[section] order``, the older key for the mesh's geometric order, is still accepted but
+    deprecated (a :class:`FutureWarning` naming its line): alone, it sets the element order
+    too; beside ``[run] element_order`` the latter wins for the elements.
+    """
+    options = dict(mesh_options)
+    section, run = root.data.get("section", {}), root.data.get("run", {})
+    if not isinstance(section, dict) or "order" not in section or "file" in section:
+        if element_order == 2 and "file" not in section:
+            options["order"] = 2
+        return options, element_order
+    order = int(options.get("order", 1))
+    line = line_of(root.context.lines, "section.order")
+    where = root.context.name + (f", line {line}" if line else "")
+    if isinstance(run, dict) and "element_order" in run:
+        curved = " (and a quadratic mesh with them)" if element_order == 2 else ""
+        warnings.warn(
+            f"{where}: section.order is deprecated: [run] element_order = {element_order} "
+            f"sets the elements{curved}; remove section.order",
+            FutureWarning,
+            stacklevel=2,
+        )
+        options["order"] = max(order, element_order)
+        return options, element_order
+    warnings.warn(
+        f"{where}: section.order is deprecated: it now sets the element order too; write "
+        f"[run] element_order = {order} instead",
+        FutureWarning,
+        stacklevel=2,
+    )
+    return options, order
+
+
 def _read_case(root: Table, path: Path) -> Case:
     title = root.text("title", "untitled case")
     section_table = root.table("section")
@@ -211,6 +271,7 @@ def _read_case(root: Table, path: Path) -> Case:
     probes = read_probes(root)
     parts = {"materials": materials, "boundaries": boundaries, "sources": sources}
     end_time, run_options, element_order = read_run(root, {**parts, "probes": probes})
+    mesh_options, element_order = _one_element_order(root, plan.mesh_options, element_order)
     advisor_options = read_advisor(root)
     outputs = read_outputs(root)
     root.raw("study", None)  # a study's table, read by advisor.studies
@@ -220,7 +281,7 @@ def _read_case(root: Table, path: Path) -> Case:
         title=title,
         section=plan.section,
         imported=plan.imported,
-        mesh_options=plan.mesh_options,
+        mesh_options=mesh_options,
         materials=materials,
         boundaries=boundaries,
         initial=initial,
@@ -232,4 +293,6 @@ def _read_case(root: Table, path: Path) -> Case:
         advisor_options=advisor_options,
         outputs=outputs,
         interfaces=interfaces,
+        context=root.context,
+        raw={key: root.data[key] for key in ("probes", "advisor") if key in root.data},
     )

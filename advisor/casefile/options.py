@@ -62,6 +62,8 @@ def read_advisor(root: Table) -> dict:
         options["target"] = target
     options["tolerance"] = advisor.get("tolerance", "number", 0.05)
     options["quantity"] = advisor.text("quantity", "slowest")
+    if advisor.has("process"):
+        options["process"] = advisor.text("process")
     build(advisor, check_options, **options, default="tolerance")
     options.update(read_quench_keys(advisor))
     advisor.done()

@@ -17,7 +17,9 @@ from fem import ModelError
 from geometries import GeometryError
 
 from ..errors import AdvisorError
+from ..time_words import duration_text
 from .reader import CaseError, Table, suggest
+from .units import registry
 
 LIBRARY_ERRORS = (ModelError, GeometryError)
 
@@ -80,9 +82,49 @@ def raise_at(
     key = keys.get(argument, argument) if argument in known else default
     named = argument in keys or (key is not None and key.split(".")[-1] == argument)
     message = _trimmed(message, owner, argument if named else None, key)
+    raw = table.data.get(key.split(".")[-1]) if key and "." not in key else None
+    message = in_case_units(message, raw)
     if key is None:
         table.context.fail(table.path, message)
     table.fail(key, message)
+
+
+_SI_VALUE = re.compile(r"(?<![\w.])(-?\d+(?:\.\d*)?(?:e[+-]?\d+)?) (m|s|degC)\b")
+_DIMENSIONS = {"[length]": "m", "[time]": "s", "[temperature]": "degC"}
+
+
+def in_case_units(message: str, raw) -> str:
+    """``message`` with the library's SI values (m, s, °C) of the offending key's kind written
+    as the case wrote that key: lengths in its unit ("-0.03 m" → "-30 mm"), times as a person
+    reads them ("600 s" → "10 min"), temperatures in its unit with the degree sign. A value
+    given as a bare number (SI already) or of another kind leaves the message as it is."""
+    from .case_checks import unit_of  # the case's own units module, loaded with the reader
+
+    unit = unit_of(raw)
+    if unit is None:
+        return message
+    try:
+        ureg = registry()
+        parsed = ureg.parse_units(unit.replace("^", "**"))
+        symbol = _DIMENSIONS.get(str(parsed.dimensionality))
+    except Exception:  # noqa: BLE001 - pint fails in many ways; the message stays as it was
+        return message
+    if symbol is None:
+        return message
+
+    def rewritten(found: re.Match) -> str:
+        if found[2] != symbol:
+            return found[0]
+        value = float(found[1])
+        if symbol == "s":
+            return duration_text(value)
+        if symbol == "degC":
+            converted = ureg.Quantity(value, ureg.degC).to(parsed).magnitude
+            shown = {"degC": "°C", "degF": "°F", "kelvin": "K"}.get(unit, unit)
+            return f"{converted:.6g} {shown}"
+        return f"{value / ureg.Quantity(1.0, parsed).to(ureg.m).magnitude:.6g} {unit}"
+
+    return _SI_VALUE.sub(rewritten, message)
 
 
 def _named_argument(message: str, known: set[str], owner: str) -> str | None:

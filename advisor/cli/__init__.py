@@ -67,9 +67,11 @@ def build_parser() -> argparse.ArgumentParser:
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     parser.add_argument("--version", action="version", version=f"soakwise {_version()}")
-    loudness = parser.add_mutually_exclusive_group()
-    loudness.add_argument("-q", "--quiet", action="store_true", help="print errors only")
-    loudness.add_argument("-v", "--verbose", action="store_true", help="print solver details")
+    _loudness(parser, default=False)
+    # -q/-v after the command too (soakwise run case.toml -v); there they default to nothing,
+    # so that a flag given before the command is not undone.
+    after = argparse.ArgumentParser(add_help=False)
+    _loudness(after, default=argparse.SUPPRESS)
     commands = parser.add_subparsers(dest="command", metavar="COMMAND")
     for name, module in COMMANDS.items():
         module.add_arguments(
@@ -79,9 +81,20 @@ def build_parser() -> argparse.ArgumentParser:
                 description=module.DESCRIPTION,
                 epilog=EPILOG,
                 formatter_class=argparse.RawDescriptionHelpFormatter,
+                parents=[after],
             )
         )
     return parser
+
+
+def _loudness(parser: argparse.ArgumentParser, default) -> None:
+    loudness = parser.add_mutually_exclusive_group()
+    loudness.add_argument(
+        "-q", "--quiet", action="store_true", default=default, help="print errors only"
+    )
+    loudness.add_argument(
+        "-v", "--verbose", action="store_true", default=default, help="print solver details"
+    )
 
 
 def main(argv: list[str] | None = None) -> int:
@@ -117,6 +130,8 @@ def console() -> None:
 def _main(argv: list[str] | None) -> int:
     parser = build_parser()
     args = parser.parse_args(argv)
+    if args.quiet and args.verbose:  # one before the command, the other after it
+        parser.error("-q/--quiet and -v/--verbose cannot be used together")
     configure_logging(
         logging.ERROR if args.quiet else logging.DEBUG if args.verbose else logging.INFO
     )

@@ -6,7 +6,8 @@ import argparse
 from pathlib import Path
 
 from ..caution import CAUTION
-from .common import EXIT_OK, log
+from ..time_words import duration_text
+from .common import EXIT_OK, biot_lines, log
 
 SUMMARY = "judge the lumped estimate of a case without solving the field"
 DESCRIPTION = (
@@ -25,21 +26,22 @@ def execute(args: argparse.Namespace) -> int:
     from ..casefile.case import load_case
 
     case = load_case(args.case)
-    check = quick_check(case.model(), target=case.advisor_options.get("target"))
-    for bi in check.biot:
-        log.info(f"Biot number ({bi.name}, L = {1000 * bi.length:.3g} mm): {bi.value:.3g}")
+    options = case.advisor_options
+    check = quick_check(case.model(), target=options.get("target"), process=options.get("process"))
+    for line in biot_lines(check.biot):
+        log.info(line)
     mode = check.mode
     log.info(
         f"Slowest-mode ratio: {mode.ratio:.3g} (a lumped model would need h = "
-        f"{mode.equivalent_coefficient:.4g} W/(m^2*K))"
+        f"{mode.equivalent_coefficient:.4g} W/(m²·K))"
     )
     log.info(
-        f"Lumped time constant: classical {check.lumped.time_constant:.4g} s, corrected "
-        f"{check.corrected.time_constant:.4g} s"
+        f"Lumped time constant: classical {duration_text(check.lumped.time_constant)}, "
+        f"corrected {duration_text(check.corrected.time_constant)}"
     )
     for name, value in check.time_to_target.items():
-        shown = "not reached" if value is None else f"{value:.4g} s"
-        log.info(f"Time to {check.target:g} degC, {name}: {shown}")
+        shown = "not reached" if value is None else duration_text(value)
+        log.info(f"Time to {check.target:g} °C, {name}: {shown}")
     log.info(f"Expected direction: {check.expected_direction}.")
     for reason in check.assumptions_broken:
         log.warning(f"The modal estimate does not hold here: {reason}.")

@@ -14,6 +14,7 @@ import warnings
 from pathlib import Path
 
 from ..caution import CAUTION
+from ..time_words import duration_text
 
 EXIT_OK, EXIT_FAILED, EXIT_USAGE, EXIT_INTERRUPTED = 0, 1, 2, 130
 EPILOG = (
@@ -59,11 +60,11 @@ def report_run(assessment, folder: Path, files: list[Path]) -> None:
         f"{stats.newton_iterations} Newton iterations, "
         f"stepping {stats.stepping_seconds:.2f} s"
     )
-    for bi in assessment.biot:
-        log.info(f"Biot number ({bi.name}, L = {1000 * bi.length:.3g} mm): {bi.value:.3g}")
+    for line in biot_lines(assessment.biot):
+        log.info(line)
     log.info(
         f"Peak internal temperature difference: {assessment.peak_internal_difference:.3g} K "
-        f"at {assessment.peak_internal_difference_time:.4g} s"
+        f"at {duration_text(assessment.peak_internal_difference_time)}"
     )
     verdict = assessment.verdict
     log.info(f"Classical lumped estimate {verdict.rating.upper()} for {verdict.subject}:")
@@ -73,10 +74,45 @@ def report_run(assessment, folder: Path, files: list[Path]) -> None:
     log.info(f"Advice: {verdict.advice}")
     for warning in solution.checks.warnings:
         log.warning(f"check: {warning}")
-    log.info(
-        f"Wrote {len(files)} files to {folder}/: open report.html, or fields/ in a VTK viewer"
-    )
+    log.info(closing_line(folder, files))
     log.info(f"Caution: {CAUTION}")
+
+
+def closing_line(folder: Path, files: list[Path]) -> str:
+    """Where the files went and what to open, naming only what was written."""
+    names = {Path(f).as_posix() for f in files}
+    tops = {n.split("/", 1)[0] for n in names}
+    pages = [n for n in ("report.html", "animation.gif") if n in names]
+    if not pages:
+        pages = [n for n in ("plots/", "summary.json") if n.rstrip("/") in tops]
+    words = [f"open {' or '.join(pages)}"] if pages else []
+    if any(n.startswith("fields/") and n.endswith((".vtu", ".pvd", ".xdmf")) for n in names):
+        words.append("fields/ opens in a VTK viewer")
+    return f"Wrote {len(files)} files to {folder}/" + (": " + "; ".join(words) if words else "")
+
+
+def refuse_existing(folder: Path, force: bool) -> None:
+    """Refuse an existing results folder unless ``--force`` was given, in the command line's
+    words (the library's own check then decides whether it may be replaced)."""
+    if not force and (folder.exists() or folder.is_symlink()):
+        from ..errors import AdvisorError
+
+        raise AdvisorError(
+            f"results folder {str(folder)!r} already exists; choose another with --out DIR "
+            "or replace it with --force"
+        )
+
+
+def biot_lines(biot) -> list[str]:
+    """One line per Biot number: its length scale in words and mm, the value, and how it
+    varies across regions and over the run."""
+    from ..analysis.verdict import BIOT_NAMES, biot_spread_words
+
+    return [
+        f"Biot number ({BIOT_NAMES.get(bi.name, bi.name)} = {1000 * bi.length:.3g} mm): "
+        f"{bi.value:.3g}{biot_spread_words(bi)}"
+        for bi in biot
+    ]
 
 
 class Interrupted(KeyboardInterrupt):
@@ -127,4 +163,4 @@ class SolvePosition:
             return " while writing the results"
         if self.time is None:
             return " before the solve"
-        return f" at t = {self.time:.4g} s of {self.end_time:.4g} s"
+        return f" at t = {duration_text(self.time)} of {duration_text(self.end_time)}"

@@ -5,7 +5,7 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
-from .common import EXIT_OK, Interrupted, log, rearm_terminate, report_run
+from .common import EXIT_OK, Interrupted, log, rearm_terminate, refuse_existing, report_run
 
 DEFAULT_FOLDER = "soakwise-demo"
 SUMMARY = "run the built-in example (a steel bar quenched in oil) into a results folder"
@@ -36,6 +36,7 @@ def execute(args: argparse.Namespace) -> int:
     from ..pipeline import write_results
     from ..results_folder import check_results_folder
 
+    refuse_existing(args.out, args.force)
     check_results_folder(args.out, force=args.force)  # fail before the solve, not after
     try:
         with results_lock(args.out):

@@ -13,8 +13,12 @@ from typing import TextIO
 
 from tqdm import tqdm
 
+from ..time_words import duration_text
+
+# The simulated time goes in the postfix, as a person reads it ("1 h 5 min of 4 h"); tqdm
+# puts ", " before a postfix, so the first word after the bar is our own.
 BAR_FORMAT = (
-    "{desc} {percentage:3.0f}%|{bar}| {n:.4g}/{total:.4g} s simulated{postfix} "
+    "{desc} {percentage:3.0f}%|{bar}| simulated{postfix} "
     "[{elapsed} elapsed, about {remaining} left]"
 )
 
@@ -73,7 +77,8 @@ class RunProgress:
                 mininterval=0.2,
             )
         bar = self._bar
-        bar.set_postfix_str(f"{self.steps} steps", refresh=False)
+        simulated = f"{duration_text(self.time)} of {duration_text(bar.total)}"
+        bar.set_postfix_str(f"{simulated}, {self.steps} steps", refresh=False)
         bar.update(min(self.time, bar.total) - bar.n)
         if self.time >= bar.total:
             self.close()

@@ -12,6 +12,7 @@ from .common import (
     log,
     progress_display,
     rearm_terminate,
+    refuse_existing,
     report_run,
 )
 
@@ -45,6 +46,7 @@ def execute(args: argparse.Namespace) -> int:
 
     case = load_case(args.case)  # every check that needs no mesh, before anything is written
     out = results_folder(args.case, args.out)
+    refuse_existing(out, args.force)
     check_results_folder(out, force=args.force, keep=(args.case,))
     position = SolvePosition(progress_display())
     try:

@@ -152,11 +152,7 @@ def _progress_line():
 
 
 def _duration(seconds: float) -> str:
-    seconds = int(round(seconds))
-    if seconds < 60:
-        return f"{seconds} s"
-    minutes, seconds = divmod(seconds, 60)
-    if minutes < 60:
-        return f"{minutes} min {seconds:02d} s"
-    hours, minutes = divmod(minutes, 60)
-    return f"{hours} h {minutes:02d} min"
+    """Wall-clock time left, in whole seconds at most (the project's one time formatter)."""
+    from ..time_words import duration_text
+
+    return duration_text(round(seconds))

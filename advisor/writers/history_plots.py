@@ -7,6 +7,8 @@ import numpy as np
 from matplotlib.figure import Figure
 
 from ..analysis.assessment import Assessment
+from ..time_words import duration_text
+from .plot_labels import place_clear
 from .plot_style import (
     BAND,
     COOL,
@@ -14,6 +16,7 @@ from .plot_style import (
     INK,
     LUMPED,
     PROBE_COLOURS,
+    RECOMMENDED,
     TARGET,
     WARM,
     clock,
@@ -22,6 +25,7 @@ from .plot_style import (
     scaled_times,
     tidy,
 )
+from .report_words import time_constant_text
 
 
 def history_figure(assessment: Assessment) -> Figure:
@@ -30,8 +34,11 @@ def history_figure(assessment: Assessment) -> Figure:
     figure = new_figure(8.0, 6.4)
     top, bottom = figure.subplots(2, 1, sharex=True, height_ratios=(2.2, 1.0))
     _temperature_axes(top, assessment, t)
-    _difference_axes(bottom, assessment, t, scale, unit)
     tidy(top, t)
+    peak_label = _difference_axes(bottom, assessment, t, scale, unit)
+    if assessment.target is not None:
+        _target_line(top, assessment.target)
+    peak_label()
     return figure
 
 
@@ -47,13 +54,17 @@ def _temperature_axes(axes, assessment: Assessment, t: np.ndarray) -> None:
     axes.plot(t, solution.mean, color=INK, lw=2.0, label="field mean")
     for colour, (name, history) in zip(PROBE_COLOURS * 4, solution.probes.items(), strict=False):
         axes.plot(t, history, color=colour, lw=1.0, ls=(0, (1, 1.5)), label=f"probe {name}")
+    end = float(solution.times[-1])
+    recommended = assessment.verdict.recommended
+    mark = {recommended: " (recommended)"} if recommended else {}
     axes.plot(
         t,
         assessment.lumped_temperature,
         color=LUMPED,
         lw=1.8,
         ls=(0, (6, 3)),
-        label=f"classical lumped, τ = {assessment.lumped.time_constant:.4g} s",
+        label=f"classical lumped, {time_constant_text(assessment.lumped, end)}"
+        + mark.get("classical", ""),
     )
     axes.plot(
         t,
@@ -61,18 +72,12 @@ def _temperature_axes(axes, assessment: Assessment, t: np.ndarray) -> None:
         color=CORRECTED,
         lw=1.2,
         ls=(0, (1.5, 1.5)),
-        label=f"corrected lumped, τ = {assessment.corrected.time_constant:.4g} s",
+        label=f"corrected lumped, {time_constant_text(assessment.corrected, end)}"
+        + mark.get("corrected", ""),
     )
-    if assessment.target is not None:
+    _recommended_curves(axes, assessment, t)
+    if assessment.target is not None:  # its line counts where the legend goes
         axes.axhline(assessment.target, color=TARGET, lw=0.8, ls="-.")
-        axes.annotate(
-            f"target {assessment.target:g} °C",
-            (t[-1], assessment.target),
-            ha="right",
-            va="bottom",
-            fontsize=8,
-            color=TARGET,
-        )
     axes.set_ylabel("temperature (°C)")
     axes.legend(fontsize=8, frameon=False, ncols=2)
     verdict = assessment.verdict
@@ -84,25 +89,97 @@ def _temperature_axes(axes, assessment: Assessment, t: np.ndarray) -> None:
     )
 
 
-def _difference_axes(axes, assessment: Assessment, t, scale: float, unit: str) -> None:
-    """Hottest minus coldest point over time, its peak marked."""
+def _recommended_curves(axes, assessment: Assessment, t: np.ndarray) -> None:
+    """The fitted model the advice recommends, when it is not one already drawn: its mean
+    and, for the two-node model, its core node (the slowest point's stand-in)."""
+    key = assessment.verdict.recommended
+    if key == "two-node" and assessment.two_node is not None:
+        core, _, mean = assessment.two_node.states(assessment.solution.times)
+        axes.plot(t, mean, color=RECOMMENDED, lw=1.6, label="fitted two-node, mean (recommended)")
+        axes.plot(
+            t,
+            core,
+            color=RECOMMENDED,
+            lw=1.6,
+            ls=(0, (3, 1.5, 1, 1.5)),
+            label="fitted two-node, core (recommended)",
+        )
+    elif key == "fitted exponential" and assessment.fitted is not None:
+        axes.plot(
+            t,
+            assessment.model_temperatures["fitted exponential"],
+            color=RECOMMENDED,
+            lw=1.6,
+            label="fitted single exponential, "
+            f"τ = {duration_text(assessment.fitted.time_constant)} (recommended)",
+        )
+
+
+def _target_line(axes, target: float) -> None:
+    """The target as a dash-dot line, its label placed along it where it crosses no curve
+    and is not clipped (right, left or middle; above or below the line); the line itself is
+    drawn with the curves."""
+    label = axes.annotate(
+        f"target {target:g} °C",
+        (0.99, target),
+        xycoords=axes.get_yaxis_transform(),
+        xytext=(0, 3),
+        textcoords="offset points",
+        fontsize=8,
+        color=TARGET,
+    )
+    label.set_in_layout(False)
+    place_clear(
+        label,
+        [
+            {"xy": (x, target), "offset": (0, dy), "ha": ha, "va": va}
+            for dy, va in ((3, "bottom"), (-3, "top"))
+            for x, ha in ((0.99, "right"), (0.01, "left"), (0.5, "center"), (0.75, "center"))
+        ],
+    )
+
+
+def _difference_axes(axes, assessment: Assessment, t, scale: float, unit: str):
+    """Hottest minus coldest point over time, its peak marked; returns the function that
+    places the peak's label, to be called once everything else is drawn."""
     spread = assessment.solution.internal_difference
     axes.plot(t, spread, color=INK, lw=1.6)
     peak_t = assessment.peak_internal_difference_time / scale
     axes.plot([peak_t], [assessment.peak_internal_difference], "o", color=WARM, ms=5)
-    axes.annotate(
-        f"peak {assessment.peak_internal_difference:.3g} K at "
-        f"{clock(assessment.peak_internal_difference_time)}",
-        (peak_t, assessment.peak_internal_difference),
-        xytext=(8, -4),
-        textcoords="offset points",
-        fontsize=8,
-        va="top",
-    )
     axes.set_ylabel("internal ΔT (K)")
     axes.set_xlabel(f"time ({unit})")
-    axes.set_ylim(0, 1.15 * max(float(np.max(spread)), 1e-12))
+    axes.set_ylim(0, 1.3 * max(float(np.max(spread)), 1e-12))
     tidy(axes, t)
+    peak = (peak_t, assessment.peak_internal_difference)
+    label = axes.annotate(
+        f"peak {assessment.peak_internal_difference:.3g} K at "
+        f"{clock(assessment.peak_internal_difference_time)}",
+        peak,
+        xytext=(6, 4),
+        textcoords="offset points",
+        fontsize=8,
+    )
+    label.set_in_layout(False)
+    return lambda: place_clear(
+        label,
+        [
+            {"xy": peak, "offset": offset, "ha": ha, "va": va}
+            for offset, ha, va in (
+                ((6, 4), "left", "bottom"),
+                ((-6, 4), "right", "bottom"),
+                ((0, 6), "center", "bottom"),
+                ((6, -6), "left", "top"),
+                ((-6, -6), "right", "top"),
+                # farther out, to the right then to the left, when the peak is crowded
+                *(
+                    ((side * dx, dy), "left" if side > 0 else "right", "bottom")
+                    for side in (1, -1)
+                    for dx in (16, 40, 80, 160)
+                    for dy in (6, -12, -30)
+                ),
+            )
+        ],
+    )
 
 
 def internal_difference_figure(assessment: Assessment) -> Figure:
@@ -112,21 +189,33 @@ def internal_difference_figure(assessment: Assessment) -> Figure:
     figure = new_figure(8.0, 3.6)
     axes = figure.subplots()
     axes.fill_between(t, 0, assessment.solution.internal_difference, color=BAND, lw=0)
-    _difference_axes(axes, assessment, t, scale, unit)
+    peak_label = _difference_axes(axes, assessment, t, scale, unit)
     through = assessment.time_to_target.get("slowest")
     if through is not None:
-        axes.axvline(through / scale, color=TARGET, lw=0.8, ls="-.")
-        axes.annotate(
+        x = through / scale
+        axes.axvline(x, color=TARGET, lw=0.8, ls="-.")
+        label = axes.annotate(
             f"slowest point at {assessment.target:g} °C",
-            (through / scale, 0),
-            xytext=(4, 4),
+            (x, 0.02),
+            xycoords=axes.get_xaxis_transform(),
+            xytext=(4, 0),
             textcoords="offset points",
             fontsize=8,
             color=TARGET,
             rotation=90,
-            va="bottom",
         )
+        label.set_in_layout(False)
     axes.set_title("Internal temperature difference in the section", fontsize=10, loc="left")
+    peak_label()
+    if through is not None:  # beside the line, low or high, where the curve is not
+        place_clear(
+            label,
+            [
+                {"xy": (x, y), "offset": (dx, 0), "ha": ha, "va": va}
+                for y, va in ((0.02, "bottom"), (0.98, "top"))
+                for dx, ha in ((4, "left"), (-4, "right"))
+            ],
+        )
     return figure
 
 
@@ -156,14 +245,17 @@ def lumped_error_figure(assessment: Assessment) -> Figure:
     axes.set_ylim(-1.15 * largest, 1.15 * largest)
     axes.set_ylabel("field − lumped (% of T0 − T∞)")
     axes.set_xlabel(f"time ({unit})")
-    axes.annotate(
+    note = axes.annotate(
         "above 0: the lumped estimate runs ahead of the field",
         (0.01, 0.98),
         xycoords="axes fraction",
+        xytext=(0, 0),
+        textcoords="offset points",
         va="top",
         fontsize=8,
         color=TARGET,
     )
+    note.set_in_layout(False)
     axes.legend(fontsize=8, frameon=False, loc="lower right", ncols=2)
     axes.set_title(
         "Lumped error against the field, as a share of the initial driving difference",
@@ -171,7 +263,24 @@ def lumped_error_figure(assessment: Assessment) -> Figure:
         loc="left",
     )
     tidy(axes, t)
+    place_clear(note, _corners())
     return figure
+
+
+def _corners() -> list[dict]:
+    """Candidate places for a note given in axes fractions: the four corners, then the
+    middles of the top and bottom edges."""
+    return [
+        {"xy": xy, "offset": (0, 0), "ha": ha, "va": va}
+        for xy, ha, va in (
+            ((0.01, 0.98), "left", "top"),
+            ((0.99, 0.98), "right", "top"),
+            ((0.01, 0.02), "left", "bottom"),
+            ((0.99, 0.02), "right", "bottom"),
+            ((0.5, 0.98), "center", "top"),
+            ((0.5, 0.02), "center", "bottom"),
+        )
+    ]
 
 
 def energy_figure(assessment: Assessment) -> Figure:
@@ -189,16 +298,22 @@ def energy_figure(assessment: Assessment) -> Figure:
     bottom.plot(t, imbalance, color=INK, lw=1.2)
     bottom.set_ylabel("imbalance\n(share of largest)")
     bottom.set_xlabel(f"time ({unit})")
-    bottom.annotate(
+    note = bottom.annotate(
         f"the run's own balance check: {solution.checks.energy_balance_error:.2g}",
         (0.99, 0.06),
         xycoords="axes fraction",
+        xytext=(0, 0),
+        textcoords="offset points",
         ha="right",
         fontsize=8,
         color=TARGET,
     )
+    note.set_in_layout(False)
     for axes in (top, bottom):
         tidy(axes, t)
+    place_clear(
+        note, [{"xy": (0.99, 0.06), "offset": (0, 0), "ha": "right", "va": "bottom"}] + _corners()
+    )
     return figure
 
 
@@ -228,7 +343,7 @@ def _ledger_axes(axes, assessment: Assessment, t: np.ndarray, largest: float) ->
         label="stored, classical lumped estimate",
     )
     axes.axhline(0.0, color=TARGET, lw=0.6)
-    axes.set_ylabel(f"energy since the start ({energy_unit})")
+    axes.set_ylabel(f"energy since the start\n({energy_unit})")  # two lines: per depth is long
     axes.legend(fontsize=8, frameon=False)
     sign = "positive: heat taken up" if assessment.heating else "negative: heat given off"
     axes.set_title(f"Energy ledger ({sign})", fontsize=10, loc="left")

@@ -16,6 +16,7 @@ import numpy as np
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
 
+from ..time_words import duration_text
 from .atomic import write_with
 
 INK = "#1d3557"
@@ -26,6 +27,7 @@ CORRECTED = "#6b8f23"
 BAND = "#dfe7ef"
 TARGET = "#5c5c5c"
 GRID = "#e6e6e6"
+RECOMMENDED = "#7b2d8b"  # the model the advice recommends, when it is a fitted one
 PROBE_COLOURS = ("#2a9d8f", "#8e6c8a", "#6b8f23", "#d19c1d", "#4f6d7a")
 FIELD_MAP = "cividis"
 FORMATS = ("png", "svg")
@@ -42,19 +44,14 @@ def time_axis(end_time: float) -> tuple[float, str]:
 
 
 def clock(seconds: float) -> str:
-    """A time a person reads at a glance: ``"45 s"``, ``"3 min 40 s"``, ``"2 h 05 min"``."""
-    if seconds < 120:
-        return f"{seconds:.3g} s"
-    if seconds < 2 * 3600:
-        minutes, rest = divmod(round(seconds), 60)
-        return f"{minutes} min {rest:02d} s"
-    hours, rest = divmod(round(seconds / 60), 60)
-    return f"{hours} h {rest:02d} min"
+    """A time a person reads at a glance: ``"45 s"``, ``"3 min 40 s"``, ``"2 h 5 min"``
+    (:func:`advisor.time_words.duration_text`)."""
+    return duration_text(seconds)
 
 
 def energy_axis(largest: float, per_depth: bool) -> tuple[float, str]:
     """A divisor and unit label for energies whose largest magnitude is ``largest`` J."""
-    suffix = "/m" if per_depth else ""
+    suffix = " per metre of depth" if per_depth else ""
     for scale, unit in ((1e9, "GJ"), (1e6, "MJ"), (1e3, "kJ")):
         if largest >= scale:
             return scale, unit + suffix

@@ -130,7 +130,7 @@ def _curve_axes(axes, condition, groups: tuple[str, ...], bands: list[SurfaceBan
     colours = iter((INK, *PROBE_COLOURS * 4))
     for start, curve in condition.curve:
         colour = next(colours)
-        stage = f" from {start:g} s" if len(condition.curve) > 1 else ""
+        stage = f" from {clock(start)}" if len(condition.curve) > 1 else ""
         points = temperatures
         if isinstance(curve, SurfaceCurve):  # the table's own points fall on the line
             points = np.union1d(temperatures, curve.surface_temperatures)

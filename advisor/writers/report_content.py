@@ -25,7 +25,7 @@ from .report_results import (
     target_part,
     verdict_part,
 )
-from .report_words import condition_text
+from .report_words import condition_text, file_summary
 
 # HEADINGS, Picture and condition_text are also read from here by the results folder and tests.
 __all__ = ["HEADINGS", "Picture", "Report", "build_report", "condition_text"]
@@ -55,7 +55,7 @@ def build_report(
         checks_part(assessment),
     ]
     if files:
-        parts.append(part("files", (Bullets(tuple(files)),)))
+        parts.append(part("files", (Bullets(tuple(file_summary(files))),)))
     parts.append(part("caution", (Callout("Caution", CAUTION, "caution"),)))
     heating = assessment.heating
     return Report(

@@ -71,6 +71,15 @@ figcaption { color: var(--muted); font-size: .88rem; max-width: 60rem; }
 .tone-caution .title { color: var(--caution); }
 footer { color: var(--muted); font-size: .8rem; padding: 1rem 2rem 2rem;
   border-top: 1px solid var(--line); }
+p, li, dd, dt, figcaption, h1 { overflow-wrap: anywhere; }
+.scroll { max-width: 100%; -webkit-overflow-scrolling: touch; }
+@media (max-width: 600px) {
+  header, nav, footer { padding-left: 1rem; padding-right: 1rem; }
+  main { padding: 0 1rem 1.5rem; }
+  header h1 { font-size: 1.35rem; }
+  dl.facts { grid-template-columns: 1fr; gap: 0; }
+  dl.facts dt { margin-top: .5rem; font-weight: 600; }
+}
 """
 
 

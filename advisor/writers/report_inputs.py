@@ -6,6 +6,7 @@ from __future__ import annotations
 from fem.schedules import schedule_text
 
 from ..analysis.assessment import Assessment
+from ..analysis.process_words import process_words
 from .report_document import Block, Facts, Part, Table, part
 from .report_words import (
     condition_text,
@@ -29,7 +30,27 @@ def inputs_part(a: Assessment) -> Part:
 
 def _per_depth(a: Assessment) -> str:
     """How the section's sizes are counted: planar ones per metre of depth."""
-    return "" if a.solution.model.section.facts.axisymmetric else " per m of depth"
+    return "" if a.solution.model.section.facts.axisymmetric else " per metre of depth"
+
+
+def copies_words(copies: int, declared: bool = False) -> str:
+    """How many copies of the modelled piece make the whole part, and what the energies are
+    of. ``declared`` is for copies the case states (mirror lines or a count for a piece drawn
+    by hand); without it only symmetry cuts count, and a single copy is said to be the
+    modelled piece, since a hand-drawn quarter cannot be told from a whole part."""
+    if copies > 1:
+        how = "declared in the case" if declared else "symmetry cuts"
+        return (
+            f"{copies} ({how}); energies and heat flows here are those of the modelled "
+            f"piece (× {copies} for the whole part)"
+        )
+    return "1 as modelled: energies and heat flows here are those of the modelled piece"
+
+
+def process_line(verdict) -> str:
+    """The kind of process the verdict's words are chosen for, and whether it was inferred."""
+    how = "inferred; set [advisor] process to change" if verdict.process_inferred else "as set"
+    return f"{process_words(verdict.process, 'name')} ({how})"
 
 
 def _end_time(a: Assessment) -> float:
@@ -50,12 +71,7 @@ def _general_facts(a: Assessment) -> Facts:
             ),
             ("Modelled area", f"{facts.area * 1e6:.5g} mm²"),
             ("Volume", f"{facts.volume:.5g} m³{_per_depth(a)}"),
-            (
-                "Copies that make the whole part",
-                f"{facts.symmetry_multiplier} (symmetry cuts)"
-                if facts.symmetry_multiplier > 1
-                else "1",
-            ),
+            ("Copies that make the whole part", copies_words(facts.symmetry_multiplier)),
             (
                 "Mesh",
                 f"{section.mesh.p.shape[1]} nodes, {section.mesh.t.shape[1]} triangles, "
@@ -65,6 +81,7 @@ def _general_facts(a: Assessment) -> Facts:
             ("Simulated time", duration(_end_time(a))),
             ("Target", f"{a.target:g} °C" if a.target is not None else "none"),
             ("Judged quantity", a.verdict.subject),
+            ("Words chosen for", process_line(a.verdict)),
             ("Tolerance", f"{100 * a.verdict.tolerance:.3g} %"),
         )
     )

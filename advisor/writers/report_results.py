@@ -7,8 +7,16 @@ from fem.interfaces import largest_jumps, probe_sides
 
 from ..analysis.assessment import Assessment
 from ..analysis.biot import COMMON_LIMIT
+from ..analysis.verdict import BIOT_NAMES
 from .report_document import Block, Bullets, Callout, Facts, Paragraph, Part, Table, part
-from .report_words import duration, millimetres, number, parameter_words, quantity_words
+from .report_words import (
+    duration,
+    millimetres,
+    number,
+    parameter_words,
+    quantity_words,
+    time_constant_text,
+)
 
 
 def verdict_part(a: Assessment) -> Part:
@@ -66,29 +74,39 @@ def _against(time: float | None, reference: float | None, key: str) -> str:
 
 def biot_part(a: Assessment) -> Part:
     """Every Biot number with its length scale and what it measures."""
+    regions = bool(a.biot) and bool(a.biot[0].regions)
     rows = tuple(
         (
-            b.name.replace("_", " "),
+            BIOT_NAMES.get(b.name, b.name),
             f"{b.value:.3g}",
-            f"{b.low:.3g} to {b.high:.3g}",
+            *((", ".join(f"{r} {v:.3g}" for r, v in b.regions.items()),) if regions else ()),
+            "constant" if f"{b.low:.3g}" == f"{b.high:.3g}" else f"{b.low:.3g} to {b.high:.3g}",
             millimetres(b.length),
             f"{b.heat_transfer_coefficient:.4g} W/(m²·K)",
             b.explanation,
         )
         for b in a.biot
     )
-    return part(
-        "biot",
-        (
-            Paragraph(
-                "Bi = h·L/k compares the resistance to conduction inside the part with the "
-                "resistance to heat exchange at its surface; each length L answers a different "
-                "question."
-            ),
-            Table(("length scale", "Bi", "over the run", "L", "mean h", "what it measures"), rows),
-            *_interface_blocks(a),
+    columns = ("length scale", "Bi", *(("per region",) if regions else ()), "over the run")
+    blocks: list[Block] = [
+        Paragraph(
+            "Bi = h·L/k compares the resistance to conduction inside the part with the "
+            "resistance to heat exchange at its surface; each length L answers a different "
+            "question."
         ),
-    )
+        Table((*columns, "L", "mean h", "what it measures"), rows),
+        *_interface_blocks(a),
+    ]
+    if regions:
+        blocks.insert(
+            1,
+            Paragraph(
+                "With several materials Bi uses the least conductive region's k (the worst "
+                'case); "per region" gives each region\'s own number at the start, and "over '
+                'the run" how the worst case changes with time and temperature.'
+            ),
+        )
+    return part("biot", blocks)
 
 
 def _interface_blocks(a: Assessment) -> list[Block]:
@@ -208,6 +226,16 @@ def models_part(a: Assessment) -> Part:
         Table(("model", "parameter", "value", "unit"), tuple(_model_rows(a) + _mode_rows(a))),
         Paragraph(f"How β was chosen: {a.correction_note}."),
     ]
+    if not a.lumped.closed_form:  # conditions, radiation or properties change τ
+        end = float(a.solution.times[-1])
+        blocks.insert(
+            2,
+            Paragraph(
+                "The time constants above are those at the start. Over the run: classical "
+                f"lumped {time_constant_text(a.lumped, end)}; corrected lumped "
+                f"{time_constant_text(a.corrected, end)}."
+            ),
+        )
     missing = []
     if a.fitted is None:
         missing.append("a single exponential (conditions change during the run)")
@@ -222,10 +250,17 @@ def _model_rows(a: Assessment) -> list[tuple[str, str, str, str]]:
     """(model, parameter, value, unit) of every lumped model there is."""
     rows: list[tuple[str, str, str, str]] = []
 
+    per_depth = not a.solution.model.section.facts.axisymmetric
+
     def add(model: str, parameters: dict) -> None:
         for key, value in parameters.items():
             words, unit = parameter_words(key)
-            rows.append((model, words, number(value, 5), unit))
+            shown = number(value, 5)
+            if unit == "s" and value is not None:
+                shown += f" ({duration(value)})"
+            if per_depth and unit in ("J/K", "W/K"):  # planar capacities and conductances
+                unit += " per metre of depth"
+            rows.append((model, words, shown, unit))
 
     add("classical lumped", a.lumped.parameters())
     add("corrected lumped", a.corrected.parameters())
@@ -289,8 +324,9 @@ def checks_part(a: Assessment) -> Part:
             ),
             (
                 "Wall-clock time",
-                f"assembly {stats.assembly_seconds:.3g} s, factorisation "
-                f"{stats.factorisation_seconds:.3g} s, stepping {stats.stepping_seconds:.3g} s",
+                f"assembly {duration(stats.assembly_seconds)}, factorisation "
+                f"{duration(stats.factorisation_seconds)}, stepping "
+                f"{duration(stats.stepping_seconds)}",
             ),
         )
     )
@@ -312,7 +348,7 @@ def _stepping(stats) -> str:
         )
     return (
         f"{stats.method}, {'adaptive' if stats.adaptive else 'fixed'} step "
-        f"{stats.smallest_step:.4g} to {stats.largest_step:.4g} s, {stats.steps} steps "
+        f"{duration(stats.smallest_step)} to {duration(stats.largest_step)}, {stats.steps} steps "
         f"({stats.rejected_steps} rejected, {stats.startup_steps} start-up)" + _retries(stats)
     )
 

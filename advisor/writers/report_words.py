@@ -2,9 +2,14 @@
 
 from __future__ import annotations
 
+import math
+import re
+from collections.abc import Sequence
+
 import numpy as np
 
-from .plot_style import clock
+from ..analysis.lumped_terms import exchange_conductance, heat_capacity
+from ..time_words import duration_text
 
 _UNIT_SUFFIXES = (
     ("_J_per_K", "J/K"),
@@ -33,16 +38,19 @@ def number(value: float | None, digits: int = 4) -> str:
     """``value`` to ``digits`` significant figures; a dash for None."""
     if value is None:
         return "—"
-    return f"{float(value):.{digits}g}"
+    value = float(value)
+    if value != 0 and 1e-4 <= abs(value) < 1e9:  # positional: no scientific notation here
+        return np.format_float_positional(
+            value, precision=digits, unique=False, fractional=False, trim="-"
+        )
+    return f"{value:.{digits}g}"
 
 
 def duration(seconds: float | None) -> str:
-    """A time as seconds and, when long, as minutes and hours too."""
+    """A time as a person reads it (``"3 h 10 min"``, ``"4 min 12 s"``, ``"38.2 s"``)."""
     if seconds is None:
         return "not within the run"
-    if seconds < 120:
-        return f"{seconds:.4g} s"
-    return f"{seconds:.5g} s ({clock(seconds)})"
+    return duration_text(seconds)
 
 
 def millimetres(length: float) -> str:
@@ -87,3 +95,79 @@ def initial_text(value) -> str:
         return "; ".join(f"{region}: {t:.4g} °C" for region, t in value.items())
     values = np.asarray(value, dtype=float)
     return f"the field of an earlier run, {values.min():.4g} to {values.max():.4g} °C"
+
+
+def time_constant_text(lumped, end_time: float) -> str:
+    """A lumped model's τ in words: one value when it is constant, one per stage when the
+    conditions change in steps (at most four stages), else its range ("τ varies").
+
+    τ = ρcV / Σ h·A at the model's initial temperature, each stage's coefficients taken in the
+    middle of the stage (a stage counts as constant when its quarter and three-quarter points
+    agree); with radiation or a temperature-dependent h or property τ also varies with
+    temperature, and the text says so.
+    """
+    if lumped.closed_form:
+        return f"τ = {duration_text(lumped.time_constant)}"
+    model, t0 = lumped.model, lumped.initial_temperature
+    capacity = heat_capacity(model, t0)
+
+    def tau(time: float) -> float:
+        conductance, _ = exchange_conductance(model, t0, time, lumped.coefficient_scale)
+        return capacity / conductance
+
+    points = [0.0, *(t for t in model.breakpoints(end_time) if 0.0 < t < end_time), end_time]
+    stages = list(zip(points[:-1], points[1:], strict=True))
+    values = [tau(a + 0.5 * (b - a)) for a, b in stages]
+    steady = all(
+        math.isclose(tau(a + 0.25 * (b - a)), tau(a + 0.75 * (b - a)), rel_tol=1e-9)
+        for a, b in stages
+    )
+    linear = model.is_linear
+    if linear and steady and len(stages) <= 4:
+        changes = [(0.0, values[0])]
+        for (start, _), value in zip(stages[1:], values[1:], strict=True):
+            if not math.isclose(value, changes[-1][1], rel_tol=1e-9):  # only the ambient moved
+                changes.append((start, value))
+        later = [f"{duration_text(v)} from t = {duration_text(a)}" for a, v in changes[1:]]
+        return ", then ".join([f"τ = {duration_text(values[0])}", *later])
+    sampled = [tau(t) for t in np.linspace(0.0, end_time, 65)] + values
+    low, high = min(sampled), max(sampled)
+    if math.isclose(low, high, rel_tol=1e-3):  # steady in time: it moves with temperature
+        return f"τ ≈ {duration_text(values[0])} at the start (changes with temperature)"
+    spread = f"{duration_text(low)} to {duration_text(high)}"
+    return f"τ varies ({spread}" + ("" if linear else " at the start temperature") + ")"
+
+
+_FILE_KINDS = {
+    ".vtu": "VTK frames",
+    ".png": "PNG pictures",
+    ".svg": "SVG pictures",
+    ".csv": "CSV tables",
+    ".h5": "HDF5 files",
+}
+_NUMBERED = re.compile(r"^(?P<stem>.*?)(?P<number>\d+)(?P<suffix>\.[^./]+)$")
+
+
+def file_summary(names: Sequence[str], least: int = 4) -> list[str]:
+    """The files of a results folder as a person reads the list: a numbered series of at
+    least ``least`` files in one line ("51 VTK frames, fields/temperature_0000–0050.vtu"),
+    every other file by name, in the order given."""
+    series: dict[tuple[str, str, int], list[str]] = {}
+    for name in names:
+        found = _NUMBERED.match(name)
+        if found:
+            key = (found["stem"], found["suffix"], len(found["number"]))
+            series.setdefault(key, []).append(found["number"])
+    lines: list[str] = []
+    done: set[tuple[str, str, int]] = set()
+    for name in names:
+        found = _NUMBERED.match(name)
+        key = (found["stem"], found["suffix"], len(found["number"])) if found else None
+        if key is None or len(series[key]) < least:
+            lines.append(name)
+        elif key not in done:
+            done.add(key)
+            numbers = sorted(series[key])
+            kind = _FILE_KINDS.get(key[1].lower(), f"{key[1]} files")
+            lines.append(f"{len(numbers)} {kind}, {key[0]}{numbers[0]}–{numbers[-1]}{key[1]}")
+    return lines

@@ -36,6 +36,7 @@ def summary(assessment: Assessment, files: list[str]) -> dict:
         "peak_internal_difference_K": assessment.peak_internal_difference,
         "peak_internal_difference_time_s": assessment.peak_internal_difference_time,
         "time_to_target_s": assessment.time_to_target,
+        "stop_time_s": solution.stop_time,
         "verdict": _verdict(assessment),
         "quench": _quench(assessment),
         "freezing": _freezing(assessment),
@@ -98,6 +99,7 @@ def _biot_numbers(assessment: Assessment) -> list[dict]:
             "length_m": b.length,
             "heat_transfer_coefficient_W_per_m2_K": b.heat_transfer_coefficient,
             "explanation": b.explanation,
+            "per_region": b.regions,
         }
         for b in assessment.biot
     ]
@@ -136,6 +138,9 @@ def _verdict(assessment: Assessment) -> dict:
         "direction": verdict.direction,
         "advice": verdict.advice,
         "reasons": list(verdict.reasons),
+        "recommended_model": verdict.recommended,
+        "process": verdict.process,
+        "process_inferred": verdict.process_inferred,
     }
 
 
