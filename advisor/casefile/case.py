@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import copy
 import sys
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 from fem import ThermalModel
@@ -65,6 +65,10 @@ class Case:
         Keyword arguments of :func:`fem.solve` and :func:`advisor.assess`.
     outputs : dict of str to bool
         Which optional files to write.
+    mirrors : tuple of advisor.whole_part.Mirror
+        The whole part's mirror lines (``[section] mirror_lines``, then the symmetry cuts).
+    declared_mirrors : int
+        How many of them ``mirror_lines`` declared; each doubles the copies of the piece.
     """
 
     path: Path
@@ -82,6 +86,20 @@ class Case:
     run_options: dict
     advisor_options: dict
     outputs: dict = field(default_factory=dict)
+    mirrors: tuple = ()
+    declared_mirrors: int = 0
+
+    def whole_part(self, section_mesh: SectionMesh) -> tuple:
+        """The mirror lines, each turned towards the meshed piece; a line the section
+        crosses is refused naming ``section.mirror_lines``."""
+        from ..whole_part import oriented
+
+        vertices = section_mesh.vertices
+        size = float((vertices.max(axis=1) - vertices.min(axis=1)).max())
+        try:
+            return oriented(self.mirrors, section_mesh.vertices, 1e-6 * size)
+        except ValueError as error:
+            raise CaseError(f"{self.path.name}: section.mirror_lines: {error}") from None
 
     def model(self) -> ThermalModel:
         """Mesh the section (or take the imported mesh) and build the thermal model."""
@@ -90,6 +108,10 @@ class Case:
         else:
             options = dict(self.mesh_options)
             section_mesh = self.section.mesh(options.pop("size"), **options)
+        if self.declared_mirrors:  # copies the geometry cannot know: a piece drawn by hand
+            facts = section_mesh.facts
+            copies = facts.symmetry_multiplier * 2**self.declared_mirrors
+            section_mesh = replace(section_mesh, facts=replace(facts, symmetry_multiplier=copies))
         material = self.materials.get(WHOLE_SECTION)
         if material is None:
             missing = sorted(set(section_mesh.regions) - set(self.materials))
@@ -225,4 +247,6 @@ def _read_case(root: Table, path: Path) -> Case:
         run_options=run_options,
         advisor_options=advisor_options,
         outputs=outputs,
+        mirrors=plan.mirrors,
+        declared_mirrors=plan.declared_mirrors,
     )

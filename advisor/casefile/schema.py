@@ -224,4 +224,4 @@ RUN_QUANTITIES = {
 }
 # The library's run arguments → [run] keys, where they differ.
 RUN_KEYS = {"stop": "stop.quantity", "stop.quantity": "stop.quantity"}
-OUTPUTS = ("animation", "report", "vtk")
+OUTPUTS = ("animation", "report", "vtk", "plots", "svg", "mp4", "xdmf")
