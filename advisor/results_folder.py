@@ -37,6 +37,8 @@ from __future__ import annotations
 
 import importlib.util
 import json
+import multiprocessing
+import os
 import shutil
 import tempfile
 import time
@@ -47,8 +49,9 @@ from .analysis.assessment import Assessment
 from .errors import AdvisorError, ResultsFolderExistsError
 from .folder_lock import results_lock
 from .writers.animation import mp4_available, write_animation
+from .writers.field_plots import write_snapshots
 from .writers.histories_csv import write_histories_csv
-from .writers.plots import PLOTS, write_plots, written_plots
+from .writers.plots import PLOTS, in_plot_order, write_line_plots, written_plots
 from .writers.report_content import Picture, build_report
 from .writers.report_html import write_html_report
 from .writers.report_markdown import write_markdown_report
@@ -204,23 +207,35 @@ def _write_files(
     assessment: Assessment, staging: Path, choices: Choices, mirrors: tuple
 ) -> list[Path]:
     """Write every file into ``staging``; return their paths relative to it, summary first."""
-    written: list[Path] = []
-    write_histories_csv(assessment, staging / "histories.csv")
-    written.append(staging / "histories.csv")
     formats = ("png", "svg") if choices.svg else ("png",)
-    if choices.plots:
-        written += write_plots(assessment, staging / PLOT_FOLDER, formats, mirrors)
-    if choices.animation:
-        written += write_animation(
-            assessment.solution,
-            staging / "animation.gif",
-            staging / "animation.mp4" if choices.mp4 else None,
-            mirrors=mirrors,
-        )
-    if choices.vtk:
-        written += write_vtk_series(assessment.solution, staging / FIELD_FOLDER)
-        if choices.xdmf:
-            written += write_xdmf_series(assessment.solution, staging / FIELD_FOLDER)
+    plots = staging / PLOT_FOLDER
+
+    def line_plots() -> list[Path]:
+        return write_line_plots(assessment, plots, formats) if choices.plots else []
+
+    def the_rest() -> list[Path]:
+        written = [staging / "histories.csv"]
+        write_histories_csv(assessment, written[0])
+        if choices.plots:
+            written += write_snapshots(assessment, plots / "field_snapshots", formats, mirrors)
+        if choices.animation:
+            written += write_animation(
+                assessment.solution,
+                staging / "animation.gif",
+                staging / "animation.mp4" if choices.mp4 else None,
+                mirrors=mirrors,
+            )
+        if choices.vtk:
+            written += write_vtk_series(assessment.solution, staging / FIELD_FOLDER)
+            if choices.xdmf:
+                written += write_xdmf_series(assessment.solution, staging / FIELD_FOLDER)
+        return written
+
+    drawn, rest = side_by_side(line_plots, the_rest)
+    in_plots = [p for p in rest if p.parent == plots]
+    written = (
+        rest[:1] + in_plot_order(drawn + in_plots) + [p for p in rest[1:] if p.parent != plots]
+    )
 
     files = [Path("summary.json")]
     if choices.report:
@@ -235,6 +250,58 @@ def _write_files(
     write_summary_json(assessment, staging / "summary.json", names)
     _write_marker(staging / MARKER, names)
     return files
+
+
+def side_by_side(first, second) -> tuple:
+    """``first()`` in a forked process while ``second()`` runs here; their results.
+
+    The writers are independent and the solve is over, so the matplotlib plots (``first``)
+    and the pixel pictures and field files (``second``) share the cores. Where processes
+    cannot be forked (Windows) or no core is free (the load average is within one of the
+    cores: a second process then only takes turns with this one, measured slower), one runs
+    after the other. An error in either is raised here.
+    """
+    cores = os.cpu_count() or 1
+    load = os.getloadavg()[0] if hasattr(os, "getloadavg") else 0.0
+    if "fork" not in multiprocessing.get_all_start_methods() or load + 1 > cores:
+        return first(), second()
+    receiver, sender = multiprocessing.get_context("fork").Pipe(duplex=False)
+    child = multiprocessing.get_context("fork").Process(
+        target=_send_result, args=(first, sender), daemon=True
+    )
+    child.start()
+    sender.close()
+    try:
+        here = second()
+        try:
+            kind, value = receiver.recv()
+        except EOFError:
+            child.join()
+            raise AdvisorError(
+                f"the plot writer stopped without an answer (exit code {child.exitcode})"
+            ) from None
+        child.join()
+    finally:
+        if child.is_alive():
+            child.terminate()
+            child.join()
+        receiver.close()
+    if kind == "error":
+        raise value
+    return value, here
+
+
+def _send_result(task, sender) -> None:
+    """Run ``task`` in the forked process; send ("done", result) or ("error", exception)."""
+    try:
+        sender.send(("done", task()))
+    except BaseException as error:  # noqa: BLE001 - every failure goes back to the parent
+        try:
+            sender.send(("error", error))
+        except Exception:  # noqa: BLE001 - an exception that does not pickle
+            sender.send(("error", AdvisorError(f"the plot writer failed: {error!r}")))
+    finally:
+        sender.close()
 
 
 def _write_marker(path: Path, names: list[str]) -> None:

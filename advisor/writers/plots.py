@@ -21,7 +21,7 @@ from .history_plots import (
     lumped_error_figure,
 )
 from .plot_style import FORMATS, save_figure
-from .process_plots import process_plots
+from .process_plots import PROCESS_PLOTS, process_plots
 
 # The plots :func:`write_plots` writes: file stem -> (title, what it shows). The report uses
 # them as headings and captions.
@@ -72,15 +72,32 @@ def write_plots(
     process plots the assessment has (:data:`.process_plots.PROCESS_PLOTS`: cooling rates,
     surface curves); return the paths in that order, formats within each. The field
     snapshots show the whole part unfolded across ``mirrors``."""
+    drawn = write_line_plots(assessment, folder, formats)
+    drawn += write_snapshots(assessment, Path(folder) / "field_snapshots", formats, mirrors)
+    return in_plot_order(drawn)
+
+
+def write_line_plots(
+    assessment: Assessment, folder: Path, formats: Sequence[str] = FORMATS
+) -> list[Path]:
+    """Write the plots matplotlib draws (every plot but the field snapshots, and the process
+    plots); return their paths."""
     paths = []
-    for stem in PLOTS:
-        if stem == "field_snapshots":
-            paths += write_snapshots(assessment, Path(folder) / stem, formats, mirrors)
-        else:
-            paths += save_figure(BUILDERS[stem](assessment), Path(folder) / stem, formats)
+    for stem, build in BUILDERS.items():
+        paths += save_figure(build(assessment), Path(folder) / stem, formats)
     for stem, figure in process_plots(assessment).items():
         paths += save_figure(figure, Path(folder) / stem, formats)
     return paths
+
+
+def in_plot_order(paths: Sequence[Path]) -> list[Path]:
+    """``paths`` of plot files in the order of :data:`PLOTS`, then the process plots, each
+    stem's formats together (PNG first)."""
+    order = {stem: k for k, stem in enumerate([*PLOTS, *PROCESS_PLOTS])}
+    return sorted(
+        paths,
+        key=lambda p: (order.get(p.stem, len(order)), p.suffix != ".png"),
+    )
 
 
 def written_plots(names: Sequence[str], folder: str) -> set[str]:

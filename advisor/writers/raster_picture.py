@@ -198,19 +198,25 @@ def draw_stamp(picture: np.ndarray, canvas: Canvas, box: Box, text: str) -> tupl
 
 
 def draw_marker(picture: np.ndarray, canvas: Canvas, x: float, y: float, up: bool) -> None:
-    """A triangle (▲ hottest in warm, ▼ coldest in cool) centred on pixel (x, y)."""
+    """A triangle (▲ hottest in warm, ▼ coldest in cool) centred on pixel (x, y), drawn on
+    the small patch of ``picture`` it covers."""
     from PIL import ImageDraw
 
-    image = _indexed(picture)
     r = 6
+    top, left = max(int(y) - r - 2, 0), max(int(x) - r - 2, 0)
+    patch = picture[top : int(y) + r + 3, left : int(x) + r + 3]
+    if patch.size == 0:
+        return
+    image = _indexed(patch)
+    cx, cy = x - left, y - top
     points = (
-        [(x, y - r), (x - r, y + r * 0.7), (x + r, y + r * 0.7)]
+        [(cx, cy - r), (cx - r, cy + r * 0.7), (cx + r, cy + r * 0.7)]
         if up
-        else [(x, y + r), (x - r, y - r * 0.7), (x + r, y - r * 0.7)]
+        else [(cx, cy + r), (cx - r, cy - r * 0.7), (cx + r, cy - r * 0.7)]
     )
     fill = canvas.palette.warm if up else canvas.palette.cool
     ImageDraw.Draw(image).polygon(points, fill=fill, outline=canvas.palette.white)
-    picture[:, :] = np.array(image)
+    patch[:, :] = np.array(image)
 
 
 def to_pixel(canvas: Canvas, panel: int, x: float, y: float) -> tuple[float, float]:
