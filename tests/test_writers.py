@@ -548,7 +548,7 @@ def test_a_required_extra_that_is_missing_stops_before_writing(run, tmp_path, mo
     files = write_results(asked, tmp_path / "out", report=False, vtk=False)
     assert Path("animation.gif") in files and Path("animation.mp4") not in files
     assert files.notes == [
-        'animation.mp4 skipped: it needs the \'mp4\' extra (pip install "soakwise[mp4]")'
+        "animation.mp4 skipped: it needs the 'mp4' extra (pip install \"soakwise[mp4]\")"
     ]
 
 
