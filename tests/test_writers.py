@@ -33,9 +33,9 @@ from advisor import AdvisorError, assess, write_results
 from advisor.cli.progress import RunProgress
 from advisor.writers import animation as animation_writer
 from advisor.writers.field_plots import snapshot_canvas, snapshot_indices
-from advisor.writers.raster_picture import to_pixel
 from advisor.writers.history_plots import lumped_error_figure
 from advisor.writers.plots import PLOTS
+from advisor.writers.raster_picture import to_pixel
 from advisor.writers.report_content import HEADINGS
 from advisor.writers.report_document import PROCESS_PARTS
 from fem import Convection, Insulated, Material, Radiation, ThermalModel, solve
