@@ -20,6 +20,7 @@ from .exact import SquareBarExact, largest_error
 from .machine import FactorSpy, factor_size, peak_rss, read_bandwidth, time_solves
 from .startup import task_startup
 from .study import task_study
+from .whole_run import task_whole_run
 
 PLUNGE_REMAINING = 0.01  # the run ends when the centre is 99 % of the way to the fluid
 TEMPERATURE_DROP = models.INITIAL - models.AMBIENT
@@ -401,4 +402,5 @@ TASKS = {
     "profile": task_profile,
     "startup": task_startup,
     "study": task_study,
+    "whole_run": task_whole_run,
 }

@@ -597,6 +597,7 @@ def test_an_axisymmetric_run_with_radiation_and_no_target(tmp_path):
     assert "radiation, emissivity 0.7" in text and "PiecewiseLinear schedule, 10 to 30" in text
     legend = json.loads((out / "fields" / "legend.json").read_text(encoding="utf-8"))
     assert "(r, z, 0)" in legend["point_data"]["heat_flux"]
+    assert legend["extent"].startswith("the modelled section only")
     assert legend["edge_group"] == {"0": "axis", "1": "bottom", "2": "right", "3": "top"}
 
 
