@@ -21,7 +21,14 @@ from ..whole_part import Mirror, copies, drawn_mirrors
 from .atomic import write_with
 from .plot_style import COOL, FIELD_MAP, WARM, clock
 from .raster import PixelMap, levels, pixel_map, whole_extent
-from .raster_chrome import Lines, PanelArt, plain_ticks, render_chrome, titled_layout
+from .raster_chrome import (
+    UNIFORM_BELOW,
+    Lines,
+    PanelArt,
+    plain_ticks,
+    render_chrome,
+    titled_layout,
+)
 from .raster_layout import Layout, part_extent
 from .raster_picture import Canvas, image_of, make_canvas, paint_bar
 from .section_fields import whole_part_lines
@@ -110,13 +117,14 @@ def snapshot_canvas(assessment: Assessment, mirrors: Sequence[Mirror] = (), coun
     arts, maps = [], []
     for k, (index, field) in enumerate(zip(indices, fields, strict=True)):
         low, high = float(field.min()), float(field.max())
-        hot, cold = int(np.argmax(field)), int(np.argmin(field))
-        caption = (
-            f"t = {clock(float(solution.output_times[index]))}: {low:.4g} to {high:.4g} °C, "
-            f"ΔT {high - low:.3g} K"
-        )
+        when = f"t = {clock(float(solution.output_times[index]))}: "
         ticks = plain_ticks(low, high, layout.panels[k].bar.width)
-        markers = [((x[hot], y[hot]), WARM, "^"), ((x[cold], y[cold]), COOL, "v")]
+        if high - low < UNIFORM_BELOW:  # no colours, no extremes: rounding is not a gradient
+            caption, markers = when + f"uniform at {(low + high) / 2:.2f} °C", []
+        else:
+            caption = when + f"{low:.4g} to {high:.4g} °C, ΔT {high - low:.3g} K"
+            hot, cold = int(np.argmax(field)), int(np.argmin(field))
+            markers = [((x[hot], y[hot]), WARM, "^"), ((x[cold], y[cold]), COOL, "v")]
         arts.append(whole.art(layout, k, caption, ticks, markers))
         maps.append(maps[0] if maps else whole.pixel_map(layout, k))  # boxes of one size
     chrome, boxes = render_chrome(layout, title, arts)
@@ -126,6 +134,7 @@ def snapshot_canvas(assessment: Assessment, mirrors: Sequence[Mirror] = (), coun
     shown = []
     for pixel_map_, field in zip(maps, fields, strict=True):
         low, high = float(field.min()), float(field.max())
+        high = high if high - low >= UNIFORM_BELOW else low  # uniform: the middle level
         shown.append(levels(pixel_map_.values(field), low, high, canvas.palette.levels))
     return canvas, canvas.frame(shown, [0] * len(shown))
 

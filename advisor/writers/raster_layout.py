@@ -19,7 +19,7 @@ CAPTION_HEIGHT = 18  # px, a panel's caption line
 BAR_GAP = 8  # px between the part and its colour bar
 BAR_HEIGHT = 12  # px
 TICK_HEIGHT = 16  # px, tick labels under a colour bar
-MIN_PANEL_WIDTH = 300  # px: room for a caption and a readable colour bar
+MIN_PANEL_WIDTH = 280  # px: room for a caption and a readable colour bar
 MIN_PART = 8  # px: the thinnest part still drawn
 EDGE_PIXELS = 3  # px between the part's extreme points and its box
 
@@ -86,6 +86,8 @@ def arrange(
     header = MARGIN + TITLE_HEIGHT * title_lines + (STAMP_HEIGHT if stamp else 0)
     best = None
     for columns in range(1, count + 1):
+        if MARGIN * (columns + 1) + columns * MIN_PANEL_WIDTH > largest[0] and columns > 1:
+            break  # no room for that many colour bars side by side
         rows = -(-count // columns)
         across = (largest[0] - MARGIN * (columns + 1)) / columns
         down = (largest[1] - header - rows * _panel_extra()) / rows
