@@ -41,12 +41,16 @@ class Results:
         :func:`write_results` follows it unless told otherwise.
     wall_seconds : float
         Wall-clock time of the run (meshing, solve and assessment), s.
+    mirrors : tuple of advisor.whole_part.Mirror
+        The lines the modelled piece is mirrored across to make the whole part (pictures
+        show the whole part; see :mod:`advisor.whole_part`).
     """
 
     assessment: Assessment
     title: str = ""
     outputs: Mapping[str, bool] = field(default_factory=dict)
     wall_seconds: float = 0.0
+    mirrors: tuple = ()
 
     @property
     def solution(self) -> Solution:
@@ -96,6 +100,7 @@ def run_case(
     """
     started = time.perf_counter()
     model = case.model()
+    mirrors = case.whole_part(model.section)
     results = run_model(
         model,
         case.end_time,
@@ -106,7 +111,7 @@ def run_case(
         progress=progress,
         system=None if system_for is None else system_for(model),
     )
-    return replace(results, wall_seconds=time.perf_counter() - started)
+    return replace(results, wall_seconds=time.perf_counter() - started, mirrors=mirrors)
 
 
 def run_model(
@@ -119,6 +124,7 @@ def run_model(
     outputs: Mapping[str, bool] | None = None,
     progress: Progress | None = None,
     system: ConductionSystem | None = None,
+    mirrors: tuple = (),
 ) -> Results:
     """Check the advisor's request, solve and assess a model built in Python; write nothing.
 
@@ -134,12 +140,15 @@ def run_model(
     advisor_options : mapping, optional
         Keyword arguments of :func:`advisor.assess` (target, tolerance, quantity).
     outputs : mapping of str to bool, optional
-        The optional outputs to write by default (``report``, ``animation``, ``vtk``).
+        The optional outputs to write by default (the keys of ``[outputs]``: ``report``,
+        ``animation``, ``vtk``, ``plots``, ``svg``, ``mp4``, ``xdmf``).
     progress : callable, optional
         Passed to :func:`fem.solve`.
     system : fem.ConductionSystem, optional
         An assembled system whose matrices serve ``model`` (see
         :meth:`fem.ConductionSystem.for_model`); the run then assembles nothing.
+    mirrors : tuple of advisor.whole_part.Mirror
+        Lines the section is mirrored across in pictures of the whole part.
 
     Returns
     -------
@@ -154,7 +163,8 @@ def run_model(
         model if system is None else system, end_time, progress=progress, **dict(run_options or {})
     )
     assessment = assess(solution, system=system, **advisor_options)
-    return Results(assessment, title, dict(outputs or {}), time.perf_counter() - started)
+    wall = time.perf_counter() - started
+    return Results(assessment, title, dict(outputs or {}), wall, tuple(mirrors))
 
 
 def write_results(
@@ -167,16 +177,19 @@ def write_results(
     vtk: bool | None = None,
     mp4: bool | None = None,
     xdmf: bool | None = None,
+    plots: bool | None = None,
+    svg: bool | None = None,
 ) -> list[Path]:
     """Write the results folder; return the paths of its files (relative to ``folder``).
 
     The folder is written whole under a temporary name beside it, then renamed, so an
-    interrupted run leaves no half-written results.
+    interrupted run leaves no half-written results. The list returned has a ``notes``
+    attribute: one line for each optional output skipped because its extra is missing.
 
     Parameters
     ----------
     results : Results or Assessment
-        What to write; an :class:`Assessment` alone is written with every output on.
+        What to write; an :class:`Assessment` alone is written with the defaults below.
     folder : path
         The results folder.
     force : bool
@@ -190,11 +203,17 @@ def write_results(
         Write the field files under fields/ (VTK series, legend, XDMF). None: as the case
         says, else True.
     mp4 : bool or None
-        Write animation.mp4: None when imageio-ffmpeg is installed, True always (an error if
-        it is not), False never.
+        Write animation.mp4 (with imageio-ffmpeg, the ``mp4`` extra). None: as the case
+        says (skipped with a note when the extra is missing), else not; True always (an
+        error if the extra is missing); False never.
     xdmf : bool or None
-        Write fields/temperature.xdmf and .h5: None when h5py is installed, True always, False
-        never.
+        Write fields/temperature.xdmf and .h5 (with h5py, the ``xdmf`` extra). None: as the
+        case says, else when h5py is installed (skipped with a note when it is not); True
+        always (an error if it is missing); False never.
+    plots : bool or None
+        Write the plots under plots/. None: as the case says, else True.
+    svg : bool or None
+        Write each plot as SVG beside its PNG. None: as the case says, else False.
 
     Raises
     ------
@@ -220,23 +239,29 @@ def write_results(
     >>> [f.as_posix() for f in files][:3]
     ['summary.json', 'histories.csv', 'plots/histories.png']
     """
-    from .results_folder import write_folder  # matplotlib and Pillow only when writing
+    from .results_folder import Choices, write_folder  # matplotlib and Pillow only here
 
     if isinstance(results, Results):
-        assessment, chosen = results.assessment, results.outputs
+        assessment, chosen, mirrors = results.assessment, results.outputs, results.mirrors
     else:
-        assessment, chosen = results, {}
+        assessment, chosen, mirrors = results, {}, ()
 
-    def wanted(name: str, given: bool | None) -> bool:
-        return bool(chosen.get(name, True)) if given is None else given
+    def wanted(name: str, given: bool | None, default: bool) -> bool:
+        return bool(chosen.get(name, default)) if given is None else given
 
-    return write_folder(
-        assessment,
-        Path(folder),
-        force=force,
-        report=wanted("report", report),
-        animation=wanted("animation", animation),
-        vtk=wanted("vtk", vtk),
-        mp4=mp4,
-        xdmf=xdmf,
+    def optional(name: str, given: bool | None, default: bool) -> bool | None:
+        """True/False as given; None (when available) where the case or default asks."""
+        if given is not None:
+            return given
+        return None if chosen.get(name, default) else False
+
+    choices = Choices(
+        report=wanted("report", report, True),
+        animation=wanted("animation", animation, True),
+        vtk=wanted("vtk", vtk, True),
+        plots=wanted("plots", plots, True),
+        svg=wanted("svg", svg, False),
+        mp4=optional("mp4", mp4, False),
+        xdmf=optional("xdmf", xdmf, True),
     )
+    return write_folder(assessment, Path(folder), force=force, choices=choices, mirrors=mirrors)

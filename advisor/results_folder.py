@@ -6,15 +6,16 @@ Layout::
     report.html                  the report as one self-contained page (images embedded)
     report.md                    the same report in Markdown, images by relative path
     histories.csv                every per-step history with the lumped models, units in the header
-    plots/histories.png|svg      temperature histories with the lumped estimates, internal ΔT
+    plots/histories.png[|svg]    temperature histories with the lumped estimates, internal ΔT
+                                 (every plot as PNG; SVG beside it with ``[outputs] svg``)
     plots/internal_difference.png|svg    internal ΔT over time, peak marked
     plots/lumped_error.png|svg   lumped error against the tolerance band
     plots/field_snapshots.png|svg        the field at a few output times
     plots/energy.png|svg         stored energy against heat taken in
     plots/cooling_rates.png|svg  cooling rate against temperature (when quench readings are asked)
     plots/surface_curves.png|svg the curves of surface temperature used (when a case has them)
-    animation.gif                the field over time on one colour scale
-    animation.mp4                the same as an MP4 film (with imageio-ffmpeg, the ``mp4`` extra)
+    animation.gif                the field over time: one colour scale, and each frame's range
+    animation.mp4                the same as an MP4 film (``[outputs] mp4``, the ``mp4`` extra)
     fields/legend.json           region and edge group names by id
     fields/temperature.pvd       VTK collection with the physical times
     fields/temperature_NNNN.vtu  one unstructured grid per output time, t = 0 first
@@ -36,17 +37,21 @@ from __future__ import annotations
 
 import importlib.util
 import json
+import multiprocessing
+import os
 import shutil
 import tempfile
 import time
+from dataclasses import dataclass
 from pathlib import Path
 
 from .analysis.assessment import Assessment
 from .errors import AdvisorError, ResultsFolderExistsError
 from .folder_lock import results_lock
 from .writers.animation import mp4_available, write_animation
+from .writers.field_plots import write_snapshots
 from .writers.histories_csv import write_histories_csv
-from .writers.plots import PLOTS, write_plots
+from .writers.plots import PLOTS, in_plot_order, write_line_plots, written_plots
 from .writers.report_content import Picture, build_report
 from .writers.report_html import write_html_report
 from .writers.report_markdown import write_markdown_report
@@ -123,8 +128,35 @@ def xdmf_available() -> bool:
     return importlib.util.find_spec("h5py") is not None
 
 
-def _optional(wanted: bool | None, available: bool, what: str, extra: str) -> bool:
+@dataclass(frozen=True)
+class Choices:
+    """Which files to write (see :func:`advisor.pipeline.write_results`); ``mp4`` and
+    ``xdmf`` None: when their extra is installed, else skipped with a note."""
+
+    report: bool = True
+    animation: bool = True
+    vtk: bool = True
+    plots: bool = True
+    svg: bool = False
+    mp4: bool | None = False
+    xdmf: bool | None = None
+
+
+class WrittenFiles(list):
+    """The paths written (relative to the folder), with ``notes``: one line for each
+    optional output skipped because its extra is missing."""
+
+    def __init__(self, paths=(), notes=()):
+        super().__init__(paths)
+        self.notes = list(notes)
+
+
+def _optional(wanted: bool | None, available: bool, what: str, extra: str, notes: list) -> bool:
     if wanted is None:
+        if not available:
+            notes.append(
+                f'{what} skipped: it needs the {extra!r} extra (pip install "soakwise[{extra}]")'
+            )
         return available
     if wanted and not available:
         raise AdvisorError(
@@ -139,70 +171,137 @@ def write_folder(
     folder: Path,
     *,
     force: bool,
-    report: bool,
-    animation: bool,
-    vtk: bool,
-    mp4: bool | None,
-    xdmf: bool | None,
-) -> list[Path]:
+    choices: Choices,
+    mirrors: tuple = (),
+) -> WrittenFiles:
     """Write the results folder; return the paths of its files (relative to ``folder``).
 
     The options are those of :func:`advisor.pipeline.write_results`, all given.
     """
     folder = Path(folder)
     check_results_folder(folder, force=force)
-    mp4 = animation and _optional(mp4, mp4_available(), "mp4", "mp4")
-    xdmf = vtk and _optional(xdmf, xdmf_available(), "xdmf", "xdmf")
+    notes: list[str] = []
+    mp4 = choices.animation and _optional(
+        choices.mp4, mp4_available(), "animation.mp4", "mp4", notes
+    )
+    xdmf = choices.vtk and _optional(
+        choices.xdmf, xdmf_available(), "fields/temperature.xdmf", "xdmf", notes
+    )
+    choices = Choices(
+        choices.report, choices.animation, choices.vtk, choices.plots, choices.svg, mp4, xdmf
+    )
     with results_lock(folder):
         check_results_folder(folder, force=force)  # as it is now that no one else writes it
         staging = Path(
             tempfile.mkdtemp(dir=folder.parent, prefix=f".{folder.name}.", suffix=".part")
         )
         try:
-            files = _write_files(assessment, staging, report, animation, vtk, mp4, xdmf)
+            files = _write_files(assessment, staging, choices, mirrors)
             _put_in_place(staging, folder)
         finally:
             shutil.rmtree(staging, ignore_errors=True)
-    return files
+    return WrittenFiles(files, notes)
 
 
 def _write_files(
-    assessment: Assessment,
-    staging: Path,
-    report: bool,
-    animation: bool,
-    vtk: bool,
-    mp4: bool,
-    xdmf: bool,
+    assessment: Assessment, staging: Path, choices: Choices, mirrors: tuple
 ) -> list[Path]:
     """Write every file into ``staging``; return their paths relative to it, summary first."""
-    written: list[Path] = []
-    write_histories_csv(assessment, staging / "histories.csv")
-    written.append(staging / "histories.csv")
-    written += write_plots(assessment, staging / PLOT_FOLDER)
-    if animation:
-        written += write_animation(
-            assessment.solution,
-            staging / "animation.gif",
-            staging / "animation.mp4" if mp4 else None,
-        )
-    if vtk:
-        written += write_vtk_series(assessment.solution, staging / FIELD_FOLDER)
-        if xdmf:
-            written += write_xdmf_series(assessment.solution, staging / FIELD_FOLDER)
+    formats = ("png", "svg") if choices.svg else ("png",)
+    plots = staging / PLOT_FOLDER
+
+    def line_plots() -> list[Path]:
+        return write_line_plots(assessment, plots, formats) if choices.plots else []
+
+    def the_rest() -> list[Path]:
+        written = [staging / "histories.csv"]
+        write_histories_csv(assessment, written[0])
+        if choices.plots:
+            written += write_snapshots(assessment, plots / "field_snapshots", formats, mirrors)
+        if choices.animation:
+            written += write_animation(
+                assessment.solution,
+                staging / "animation.gif",
+                staging / "animation.mp4" if choices.mp4 else None,
+                mirrors=mirrors,
+            )
+        if choices.vtk:
+            written += write_vtk_series(assessment.solution, staging / FIELD_FOLDER)
+            if choices.xdmf:
+                written += write_xdmf_series(assessment.solution, staging / FIELD_FOLDER)
+        return written
+
+    drawn, rest = side_by_side(line_plots, the_rest)
+    in_plots = [p for p in rest if p.parent == plots]
+    written = (
+        rest[:1] + in_plot_order(drawn + in_plots) + [p for p in rest[1:] if p.parent != plots]
+    )
 
     files = [Path("summary.json")]
-    if report:
+    if choices.report:
         files += [Path("report.html"), Path("report.md")]
     files += [p.relative_to(staging) for p in written] + [Path(MARKER)]
     names = [f.as_posix() for f in files]
-    if report:
-        content = build_report(assessment, _pictures(animation), names)
+    if choices.report:
+        pictures = _pictures(choices.animation, written_plots(names, PLOT_FOLDER))
+        content = build_report(assessment, pictures, names)
         write_html_report(content, staging / "report.html")
         write_markdown_report(content, staging / "report.md")
     write_summary_json(assessment, staging / "summary.json", names)
     _write_marker(staging / MARKER, names)
     return files
+
+
+def side_by_side(first, second) -> tuple:
+    """``first()`` in a forked process while ``second()`` runs here; their results.
+
+    The writers are independent and the solve is over, so the matplotlib plots (``first``)
+    and the pixel pictures and field files (``second``) share the cores. Where processes
+    cannot be forked (Windows) or no core is free (the load average is within one of the
+    cores: a second process then only takes turns with this one, measured slower), one runs
+    after the other. An error in either is raised here.
+    """
+    cores = os.cpu_count() or 1
+    load = os.getloadavg()[0] if hasattr(os, "getloadavg") else 0.0
+    if "fork" not in multiprocessing.get_all_start_methods() or load + 1 > cores:
+        return first(), second()
+    receiver, sender = multiprocessing.get_context("fork").Pipe(duplex=False)
+    child = multiprocessing.get_context("fork").Process(
+        target=_send_result, args=(first, sender), daemon=True
+    )
+    child.start()
+    sender.close()
+    try:
+        here = second()
+        try:
+            kind, value = receiver.recv()
+        except EOFError:
+            child.join()
+            raise AdvisorError(
+                f"the plot writer stopped without an answer (exit code {child.exitcode})"
+            ) from None
+        child.join()
+    finally:
+        if child.is_alive():
+            child.terminate()
+            child.join()
+        receiver.close()
+    if kind == "error":
+        raise value
+    return value, here
+
+
+def _send_result(task, sender) -> None:
+    """Run ``task`` in the forked process; send ("done", result) or ("error", exception)."""
+    try:
+        sender.send(("done", task()))
+    except BaseException as error:  # noqa: BLE001 - every failure goes back to the parent
+        try:
+            sender.send(("error", error))
+        except Exception:  # noqa: BLE001 - an exception that does not pickle
+            sender.send(("error", AdvisorError(f"the plot writer failed: {error!r}")))
+    finally:
+        sender.close()
 
 
 def _write_marker(path: Path, names: list[str]) -> None:
@@ -218,18 +317,21 @@ def _write_marker(path: Path, names: list[str]) -> None:
     path.write_text(text + "\n", encoding="utf-8")
 
 
-def _pictures(animation: bool) -> list[Picture]:
-    """The report's pictures: every plot, and the animation when it is written."""
+def _pictures(animation: bool, stems: set[str]) -> list[Picture]:
+    """The report's pictures: the plots written (``stems``), and the animation."""
     pictures = [
         Picture(f"{PLOT_FOLDER}/{stem}.png", title, caption)
         for stem, (title, caption) in PLOTS.items()
+        if stem in stems
     ]
     if animation:
         pictures.append(
             Picture(
                 "animation.gif",
                 "The field over the run",
-                "Every output time on one colour scale, hottest and coldest points marked.",
+                "Left, every output time on one colour scale; right, each frame spread over its "
+                "own range, so the internal difference stays visible. Hottest (▲) and "
+                "coldest (▼) points marked; the stamp gives each frame's extremes.",
             )
         )
     return pictures

@@ -28,6 +28,7 @@ from .machine import (
 from .peers import task_peer
 from .startup import task_startup
 from .study import task_study
+from .whole_run import task_whole_run
 
 PLUNGE_REMAINING = 0.01  # the run ends when the centre is 99 % of the way to the fluid
 TEMPERATURE_DROP = models.INITIAL - models.AMBIENT
@@ -414,4 +415,5 @@ TASKS = {
     "startup": task_startup,
     "study": task_study,
     "peer": task_peer,
+    "whole_run": task_whole_run,
 }

@@ -336,8 +336,14 @@ def evaluate_targets(suite, rows, outcomes, bandwidth) -> list[dict]:
     # 8. start-up of the small commands, and what importing the packages loads
     from .startup import startup_targets
     from .study import study_targets
+    from .whole_run import whole_run_targets
 
-    return targets + startup_targets(outcomes, _target) + study_targets(outcomes, _target)
+    return (
+        targets
+        + startup_targets(outcomes, _target)
+        + study_targets(outcomes, _target)
+        + whole_run_targets(outcomes, _target)
+    )
 
 
 def _verdict(value, passes, row) -> bool | None:
@@ -541,7 +547,7 @@ def print_report(report: dict) -> None:
     others = [
         (k, t)
         for k, t in report["tasks"].items()
-        if t["meta"].get("task") in ("startup", "mesh", "demo", "bandwidth", "study")
+        if t["meta"].get("task") in ("startup", "mesh", "demo", "bandwidth", "study", "whole_run")
     ]
     if others:
         print()
@@ -567,6 +573,10 @@ def print_report(report: dict) -> None:
                 from .study import describe as describe_study
 
                 extra = describe_study(d)
+            elif t["meta"].get("task") == "whole_run":
+                from .whole_run import describe as describe_whole_run
+
+                extra = describe_whole_run(d)
             elif t["meta"].get("task") == "bandwidth" and "read_bytes_per_s" in d:
                 extra = (
                     f"read {d['read_bytes_per_s'] / 1e9:.2f} GB/s, copy "

@@ -63,7 +63,7 @@ def test_the_quench_report_has_its_part_table_and_picture(quench):
     assert slowest.times_to[20.0] is None and "not within the run" in text
     markdown = (out / "report.md").read_text(encoding="utf-8")
     assert "(plots/cooling_rates.png)" in markdown and f"## {HEADINGS['quench']}" in markdown
-    assert (out / "plots" / "cooling_rates.svg").is_file()
+    assert (out / "plots" / "cooling_rates.png").is_file()
 
 
 def test_the_quench_report_renders_in_chromium(quench, tmp_path):

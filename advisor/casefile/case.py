@@ -12,7 +12,7 @@ from __future__ import annotations
 import copy
 import sys
 import warnings
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 from fem import ThermalModel, bind_correlations
@@ -80,6 +80,10 @@ class Case:
         Which optional files to write.
     interfaces : dict of str to fem.Interface
         The contact resistances between regions, by name.
+    mirrors : tuple of advisor.whole_part.Mirror
+        The whole part's mirror lines (``[section] mirror_lines``, then the symmetry cuts).
+    declared_mirrors : int
+        How many of them ``mirror_lines`` declared; each doubles the copies of the piece.
     """
 
     path: Path
@@ -100,6 +104,20 @@ class Case:
     interfaces: dict = field(default_factory=dict)
     context: Context | None = field(default=None, compare=False, repr=False)
     raw: dict = field(default_factory=dict, compare=False, repr=False)
+    mirrors: tuple = ()
+    declared_mirrors: int = 0
+
+    def whole_part(self, section_mesh: SectionMesh) -> tuple:
+        """The mirror lines, each turned towards the meshed piece; a line the section
+        crosses is refused naming ``section.mirror_lines``."""
+        from ..whole_part import oriented
+
+        vertices = section_mesh.vertices
+        size = float((vertices.max(axis=1) - vertices.min(axis=1)).max())
+        try:
+            return oriented(self.mirrors, section_mesh.vertices, 1e-6 * size)
+        except ValueError as error:
+            raise CaseError(f"{self.path.name}: section.mirror_lines: {error}") from None
 
     def model(self) -> ThermalModel:
         """Mesh the section (or take the imported mesh) and build the thermal model.
@@ -113,6 +131,10 @@ class Case:
         else:
             options = dict(self.mesh_options)
             section_mesh = self.section.mesh(options.pop("size"), **options)
+        if self.declared_mirrors:  # copies the geometry cannot know: a piece drawn by hand
+            facts = section_mesh.facts
+            copies = facts.symmetry_multiplier * 2**self.declared_mirrors
+            section_mesh = replace(section_mesh, facts=replace(facts, symmetry_multiplier=copies))
         material = self.materials.get(WHOLE_SECTION)
         if material is None:
             missing = sorted(set(section_mesh.regions) - set(self.materials))
@@ -295,4 +317,6 @@ def _read_case(root: Table, path: Path) -> Case:
         interfaces=interfaces,
         context=root.context,
         raw={key: root.data[key] for key in ("probes", "advisor") if key in root.data},
+        mirrors=plan.mirrors,
+        declared_mirrors=plan.declared_mirrors,
     )

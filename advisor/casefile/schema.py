@@ -238,7 +238,7 @@ RUN_QUANTITIES = {
 }
 # The library's run arguments → [run] keys, where they differ.
 RUN_KEYS = {"stop": "stop.quantity", "stop.quantity": "stop.quantity"}
-OUTPUTS = ("animation", "report", "vtk")
+OUTPUTS = ("animation", "report", "vtk", "plots", "svg", "mp4", "xdmf")
 
 # [interfaces.<name>]: regions = [first, second] and one of these (the key → its kind)
 INTERFACE_VALUES = {"conductance": "heat_transfer_coefficient", "resistance": "contact_resistance"}

@@ -7,6 +7,7 @@ mesh will have are known while the file is read.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field
 
 from geometries import (
@@ -22,6 +23,7 @@ from geometries import (
     read_section_mesh,
 )
 
+from ..whole_part import Mirror
 from .reader import Table, suggest
 from .schema import COMBINE_FIRST, COMBINE_LATER, MESH_FILE_UNITS
 from .shapes import direction, read_shape
@@ -42,6 +44,12 @@ class SectionPlan:
         ``size`` in m and the keyword arguments of :meth:`geometries.Section.mesh`.
     groups, regions : frozenset of str
         The edge groups and regions the mesh will have.
+    mirrors : tuple of Mirror
+        The whole part's mirror lines, in folding order: ``mirror_lines`` first, then the
+        symmetry cuts in the order they were made.
+    declared_mirrors : int
+        How many of ``mirrors`` come from ``mirror_lines`` (the cuts' copies are counted by
+        the geometry already).
     """
 
     section: Section | None
@@ -49,12 +57,15 @@ class SectionPlan:
     mesh_options: dict = field(default_factory=dict)
     groups: frozenset[str] = frozenset()
     regions: frozenset[str] = frozenset()
+    mirrors: tuple[Mirror, ...] = ()
+    declared_mirrors: int = 0
 
 
 def read_section(table: Table) -> SectionPlan:
     """The section of the ``[section]`` table (which is left for the caller to close)."""
     axisymmetric = table.flag("axisymmetric", False)
     mesh_options = _mesh_options(table)
+    declared = mirror_lines(table, axisymmetric)
     file_table = table.table("file", None)
     drawing = None
     if file_table is not None and _is_drawing(file_table):
@@ -68,9 +79,13 @@ def read_section(table: Table) -> SectionPlan:
             mesh_options,
             frozenset(imported.edge_groups),
             frozenset(imported.regions),
+            declared,
+            len(declared),
         )
     shape = _combined(table, drawing)
+    cuts = []
     for cut in table.tables("cut"):
+        cuts.append(Mirror(cut.point("point", (0.0, 0.0)), direction(cut, "keep")))
         shape = build(
             cut,
             shape.symmetry_cut,
@@ -92,7 +107,46 @@ def read_section(table: Table) -> SectionPlan:
     refine = _refinement(table, groups)
     if refine is not None:
         mesh_options["refine"] = refine
-    return SectionPlan(section, None, mesh_options, groups, frozenset(_regions(shape)))
+    regions = frozenset(_regions(shape))
+    mirrors = declared + tuple(cuts)
+    return SectionPlan(section, None, mesh_options, groups, regions, mirrors, len(declared))
+
+
+_MIRROR_LINE = re.compile(r"^\s*([xyrz])\s*=\s*(.+?)\s*$")
+
+
+def mirror_lines(table: Table, axisymmetric: bool) -> tuple[Mirror, ...]:
+    """``mirror_lines = ["x = 0 mm", "y = 0 mm"]``: the lines a section drawn as a piece of a
+    symmetric part is mirrored across to make the whole part (each doubles the copies); for
+    sections cut with ``[[section.cut]]`` the cuts say so themselves. Axisymmetric sections
+    take ``z = ...`` lines only (the axis r = 0 is whole already)."""
+    given = table.raw("mirror_lines", None)
+    if given is None:
+        return ()
+    if not isinstance(given, list):
+        table.fail("mirror_lines", f'expected a list such as ["x = 0 mm"], got {given!r}')
+    lines = []
+    for text in given:
+        found = _MIRROR_LINE.match(text) if isinstance(text, str) else None
+        if found is None:
+            table.fail(
+                "mirror_lines",
+                f'{text!r} is not a line: write "x = <length>" (a vertical line) or '
+                '"y = <length>" (a horizontal one); r and z for axisymmetric sections',
+            )
+        axis, value = found.groups()
+        at = table.quantity("mirror_lines", value, "length")
+        vertical = axis in "xr"
+        if axisymmetric and vertical:
+            table.fail(
+                "mirror_lines",
+                f"{text!r}: an axisymmetric section is whole about its axis already; only "
+                '"z = <length>" lines (across the axis) make copies',
+            )
+        lines.append(Mirror((at, 0.0), (1.0, 0.0)) if vertical else Mirror((0.0, at), (0.0, 1.0)))
+    if len(set(lines)) != len(lines):
+        table.fail("mirror_lines", f"a line is given twice in {given!r}")
+    return tuple(lines)
 
 
 # The mesher's arguments → the keys of [section].

@@ -1,33 +1,47 @@
 """The field as an animation: a GIF through Pillow and, with the ``mp4`` extra
 (imageio-ffmpeg), an MP4.
 
-Every frame shares one colour scale (the lowest and highest temperature of all output fields),
-carries its time stamp and the colour bar, and marks the hottest and coldest vertex. At most
-:data:`MAX_FRAMES` frames are drawn, spread evenly over the output times, whatever their
-number; the clip lasts a few seconds.
+Each frame has two panels of the whole part: the temperature on one colour scale for the whole
+run, and beside it the same field spread over its own frame's range (coldest to hottest), so
+an internal difference stays visible when the run spans hundreds of kelvin. The stamp gives
+the time and the frame's coldest and hottest temperatures; both panels mark the hottest and
+coldest vertex. At most :data:`MAX_FRAMES` frames, spread evenly over the output times; the
+clip lasts a few seconds.
+
+Frames are indices into one palette that holds every colour level (no quantising, no bands);
+the still parts are drawn once, each frame is a gather of the field, a colour lookup and
+Pillow's text and encoding (see :mod:`.raster_picture`).
 """
 
 from __future__ import annotations
 
 import importlib.util
-from collections.abc import Iterator
+from collections.abc import Iterator, Sequence
 from pathlib import Path
 
 import numpy as np
-from matplotlib.figure import Figure
-from matplotlib.tri import Triangulation
-from PIL import Image
 
 from fem import Solution
 
+from ..whole_part import Mirror
 from .atomic import write_with
-from .field_plots import axis_names, draw_outline, section_triangulation
-from .plot_style import COOL, FIELD_MAP, INK, WARM, clock, new_figure
+from .field_plots import scene
+from .plot_style import FIELD_MAP, clock
+from .raster import dither_thresholds, levels
+from .raster_chrome import UNIFORM_BELOW, plain_ticks, render_chrome, titled_layout
+from .raster_picture import (
+    Canvas,
+    draw_marker,
+    draw_stamp,
+    make_canvas,
+    paint_bar,
+    to_pixel,
+)
 
 MAX_FRAMES = 60
 CLIP_SECONDS = 6.0  # how long the whole clip plays
-FRAME_SIZE = (768, 576)  # pixels; multiples of 16 as MP4 encoders want
-PALETTE_COLOURS = 255
+FRAME_LIMIT = (960, 720)  # px: the largest frame; sides are multiples of 16 (MP4 encoders)
+RANGE_MAP = "inferno"  # the second panel's map, unlike the first so the two are not confused
 
 
 def mp4_available() -> bool:
@@ -51,114 +65,100 @@ def frame_duration(frames: int) -> int:
     return int(np.clip(round(1000 * CLIP_SECONDS / max(frames, 1)), 80, 500))
 
 
-def render_frames(solution: Solution, max_frames: int = MAX_FRAMES) -> Iterator[np.ndarray]:
-    """RGB frames (height, width, 3) of uint8, one per :func:`frame_indices` output.
+def film_canvas(solution: Solution, mirrors: Sequence[Mirror] = ()) -> Canvas:
+    """The film's still picture: title, the two panels' captions, colour bars and lines."""
+    fields = solution.fields
+    low = min(float(np.min(fields[i])) for i in range(len(fields)))
+    high = max(float(np.max(fields[i])) for i in range(len(fields)))
+    whole = scene(solution, mirrors)
+    title = f"Temperature over the run — {whole.view}"
+    layout, title = titled_layout(title, whole.extent, 2, FRAME_LIMIT, True, multiple=16)
+    arts = [
+        whole.art(
+            layout,
+            0,
+            "temperature (°C), one scale for the run",
+            plain_ticks(low, high, layout.panels[0].bar.width),
+        ),
+        whole.art(
+            layout,
+            1,
+            "within this frame: coldest to hottest",
+            ((0.0, "coldest"), (1.0, "hottest")),
+        ),
+    ]
+    shared = whole.pixel_map(layout, 0)  # the panels' part boxes are the same size
+    maps = [shared, shared]
+    chrome, boxes = render_chrome(layout, title, arts)
+    canvas = make_canvas(layout, chrome, [FIELD_MAP, RANGE_MAP], maps, boxes)
+    paint_bar(canvas, layout.panels[0].bar, 0)
+    paint_bar(canvas, layout.panels[1].bar, 1)
+    canvas.scale = (low, high)
+    return canvas
 
-    The figure is drawn once without the field, the outline, the markers and the time stamp;
-    each frame restores that background and draws only those on it, so the layout and the
-    colour scale stay put and a frame costs a fraction of a full draw.
-    """
+
+def render_frames(
+    solution: Solution, max_frames: int = MAX_FRAMES, mirrors: Sequence[Mirror] = ()
+) -> Iterator[np.ndarray]:
+    """Index frames (height, width) of uint8 into the film's palette, one per
+    :func:`frame_indices` output; the first item yielded is the :class:`Canvas`."""
     fields = solution.fields
     indices = frame_indices(len(fields), max_frames)
     if not indices:
         return
-    low = min(float(np.min(fields[i])) for i in range(len(fields)))
-    high = max(float(np.max(fields[i])) for i in range(len(fields)))
-    high = max(high, low + 1e-9 * max(abs(low), 1.0))
-
-    width, height = FRAME_SIZE
-    figure = new_figure(width / 120, height / 120)
-    axes = figure.subplots()
-    triangulation = section_triangulation(solution)
-    xs, ys = triangulation.x, triangulation.y
-    first = np.asarray(fields[indices[0]], dtype=float)
-    image, outline, hot, cold, stamp = _frame_artists(
-        figure, axes, solution, triangulation, first, (low, high)
-    )
+    canvas = film_canvas(solution, mirrors)
+    yield canvas
+    low, high = canvas.scale
     end = clock(float(solution.output_times[-1]))
-    changing = (image, outline, hot, cold, stamp)
-    for artist in changing:
-        artist.set_animated(True)
-    canvas = figure.canvas
-    canvas.draw()
-    figure.set_layout_engine("none")  # the first layout holds for every frame
-    background = canvas.copy_from_bbox(figure.bbox)
+    x, y = solution.model.section.vertices
+    thresholds = dither_thresholds(canvas.panels[0][0])
     for index in indices:
         field = np.asarray(fields[index], dtype=float)
-        image.set_array(field)
-        i_hot, i_cold = int(np.argmax(field)), int(np.argmin(field))
-        hot.set_data([xs[i_hot]], [ys[i_hot]])
-        cold.set_data([xs[i_cold]], [ys[i_cold]])
-        stamp.set_text(f"t = {clock(float(solution.output_times[index]))} of {end}")
-        canvas.restore_region(background)
-        for artist in changing:
-            axes.draw_artist(artist)
-        rgba = np.asarray(canvas.buffer_rgba())
-        yield np.ascontiguousarray(rgba[:height, :width, :3])
+        coldest, hottest = float(field.min()), float(field.max())
+        values = canvas.panels[0][0].values(field)
+        uniform = hottest - coldest < UNIFORM_BELOW
+        spread = (coldest, coldest) if uniform else (coldest, hottest)  # uniform: mid level
+        count = canvas.palette.levels
+        shown = [
+            levels(values, low, high, count, thresholds),
+            levels(values, *spread, count, thresholds),
+        ]
+        picture = canvas.frame(shown, [0, 1])
+        when = f"t = {clock(float(solution.output_times[index]))} of {end}"
+        if uniform:
+            text = f"{when}   ·   uniform at {coldest:.2f} °C"
+        else:
+            text = (
+                f"{when}   ·   coldest {coldest:.4g} °C, hottest {hottest:.4g} °C, "
+                f"ΔT {hottest - coldest:.3g} K"
+            )
+        draw_stamp(picture, canvas, canvas.layout.stamp, text)
+        if not uniform:
+            i_hot, i_cold = int(np.argmax(field)), int(np.argmin(field))
+            for panel in (0, 1):
+                draw_marker(picture, canvas, *to_pixel(canvas, panel, x[i_hot], y[i_hot]), True)
+                draw_marker(picture, canvas, *to_pixel(canvas, panel, x[i_cold], y[i_cold]), False)
+        yield picture
 
 
-def _frame_artists(
-    figure: Figure,
-    axes,
-    solution: Solution,
-    triangulation: Triangulation,
-    first: np.ndarray,
-    scale: tuple[float, float],
-) -> tuple:
-    """Draw the frame's fixed parts (labels, colour bar, legend) and return the artists each
-    frame changes: the field image on the run's colour ``scale`` (low, high) in °C, the
-    outline, the hottest and coldest markers and the time stamp."""
-    low, high = scale
-    image = axes.tripcolor(
-        triangulation,
-        first,
-        shading="gouraud",
-        cmap=FIELD_MAP,
-        vmin=low,
-        vmax=high,
-    )
-    outline = draw_outline(axes, solution)
-    (hot,) = axes.plot([], [], "^", color=WARM, mec="white", mew=0.8, ms=9, label="hottest")
-    (cold,) = axes.plot([], [], "v", color=COOL, mec="white", mew=0.8, ms=9, label="coldest")
-    axes.set_aspect("equal")
-    x_name, y_name = axis_names(solution)
-    axes.set_xlabel(x_name)
-    axes.set_ylabel(y_name)
-    axes.set_title("Temperature in the section", fontsize=10, loc="left")
-    stamp = axes.text(
-        0.99,
-        1.01,
-        "",
-        transform=axes.transAxes,
-        ha="right",
-        va="bottom",
-        fontsize=10,
-        color=INK,
-        family="monospace",
-    )
-    figure.colorbar(image, ax=axes, label="temperature (°C)", shrink=0.9)
-    figure.legend(loc="outside lower center", ncols=2, fontsize=8, frameon=False)
-    return image, outline, hot, cold, stamp
+def write_gif(frames: list[np.ndarray], canvas: Canvas, path: Path) -> None:
+    """Write index ``frames`` as a looping GIF on the film's palette (every colour level
+    exact: nothing is quantised), atomically."""
+    from .raster_picture import image_of
 
-
-def write_gif(frames: list[np.ndarray], path: Path) -> None:
-    """Write RGB ``frames`` as a looping GIF on one shared palette (no flicker between
-    frames), atomically."""
     if not frames:
         raise ValueError("an animation needs at least one frame")
-    pictures = [Image.fromarray(frame) for frame in frames]
-    sample = np.concatenate([frames[0], frames[len(frames) // 2], frames[-1]], axis=0)
-    palette = Image.fromarray(sample).quantize(colors=PALETTE_COLOURS)
-    indexed = [p.quantize(palette=palette, dither=Image.Dither.NONE) for p in pictures]
+    pictures = [image_of(frame, canvas.palette) for frame in frames]
     write_with(
         Path(path),
-        lambda p: indexed[0].save(
+        lambda p: pictures[0].save(
             p,
             format="GIF",
             save_all=True,
-            append_images=indexed[1:],
+            append_images=pictures[1:],
             duration=frame_duration(len(frames)),
             loop=0,
+            optimize=False,
         ),
     )
 
@@ -192,7 +192,7 @@ def write_mp4(frames: list[np.ndarray], path: Path) -> None:
         )
         writer.send(None)
         for frame in frames:
-            writer.send(np.ascontiguousarray(frame).tobytes())
+            writer.send(np.ascontiguousarray(frame).tobytes())  # RGB
         writer.close()
 
     write_with(Path(path), encode)
@@ -203,17 +203,24 @@ def write_animation(
     gif: Path | None,
     mp4: Path | None = None,
     max_frames: int = MAX_FRAMES,
+    mirrors: Sequence[Mirror] = (),
 ) -> list[Path]:
-    """Render the field once and write it as a GIF (``gif``) and/or an MP4 (``mp4``).
+    """Render the field once and write it as a GIF (``gif``) and/or an MP4 (``mp4``),
+    the whole part unfolded across ``mirrors``.
 
     Returns the written paths.
     """
-    frames = list(render_frames(solution, max_frames))
+    rendered = render_frames(solution, max_frames, mirrors)
+    canvas = next(rendered, None)
+    if canvas is None:
+        raise ValueError("an animation needs at least one output field")
+    frames = list(rendered)
     written = []
     if gif is not None:
-        write_gif(frames, gif)
+        write_gif(frames, canvas, gif)
         written.append(Path(gif))
     if mp4 is not None:
-        write_mp4(frames, mp4)
+        colours = canvas.palette.colours
+        write_mp4([colours[frame] for frame in frames], mp4)
         written.append(Path(mp4))
     return written

@@ -1,18 +1,40 @@
-"""Figures of the temperature field over the section: a few snapshots, each on its own colour
-scale, and the drawing pieces the animation shares (triangulation, axis names, outline)."""
+"""Pictures of the temperature field over the section, without a matplotlib figure per
+picture: a few snapshots, each on its own colour scale, and the scene the animation shares
+(the whole part's extent, its lines and a pixel map per panel).
+
+A symmetric model is drawn as the whole part it stands for: the modelled piece mirrored
+across its symmetry lines (dashed), an axisymmetric one as the full r–z section.
+"""
 
 from __future__ import annotations
 
+from collections.abc import Sequence
+from dataclasses import dataclass
+from pathlib import Path
+
 import numpy as np
-from matplotlib.collections import LineCollection
-from matplotlib.figure import Figure
-from matplotlib.tri import Triangulation
 
 from fem import Solution
 
 from ..analysis.assessment import Assessment
-from .plot_style import COOL, FIELD_MAP, INK, WARM, clock, new_figure
-from .section_fields import outline_segments
+from ..whole_part import Mirror, copies, drawn_mirrors
+from .atomic import write_with
+from .plot_style import COOL, FIELD_MAP, WARM, clock
+from .raster import PixelMap, levels, pixel_map, whole_extent
+from .raster_chrome import (
+    UNIFORM_BELOW,
+    Lines,
+    PanelArt,
+    plain_ticks,
+    render_chrome,
+    titled_layout,
+)
+from .raster_layout import Layout, part_extent
+from .raster_picture import Canvas, image_of, make_canvas, paint_bar
+from .section_fields import whole_part_lines
+
+SNAPSHOT_SIZE = (1200, 960)  # px: the largest snapshot picture
+PIECES = {2: "half", 4: "quarter", 8: "eighth"}
 
 
 def snapshot_indices(output_times: np.ndarray, peak_time: float, count: int = 4) -> list[int]:
@@ -27,78 +49,133 @@ def snapshot_indices(output_times: np.ndarray, peak_time: float, count: int = 4)
     return sorted({int(i) for i in picks})
 
 
-def section_triangulation(solution: Solution) -> Triangulation:
-    """The section's triangles in mm for matplotlib."""
+@dataclass(frozen=True)
+class Scene:
+    """The part as pictures show it: vertices and triangles of the modelled piece, the lines
+    it unfolds across, the whole part's extent (m) and lines, and a phrase saying what is
+    drawn."""
+
+    vertices: np.ndarray
+    triangles: np.ndarray
+    mirrors: tuple[Mirror, ...]
+    extent: tuple[float, float, float, float]
+    lines: Lines
+    view: str
+
+    def pixel_map(self, layout: Layout, panel: int) -> PixelMap:
+        box = layout.panels[panel].part
+        extent = part_extent(self.extent, box)
+        return pixel_map(
+            self.vertices, self.triangles, (box.height, box.width), extent, self.mirrors
+        )
+
+    def art(self, layout: Layout, panel: int, caption: str, ticks, markers=()) -> PanelArt:
+        extent = part_extent(self.extent, layout.panels[panel].part)
+        return PanelArt(caption, ticks, extent, self.lines, tuple(markers))
+
+
+def scene(solution: Solution, mirrors: Sequence[Mirror] = ()) -> Scene:
+    """The whole part of ``solution``'s section unfolded across ``mirrors`` (and the axis,
+    for an axisymmetric section)."""
     section = solution.model.section
-    x, y = 1000 * section.vertices
-    return Triangulation(x, y, section.mesh.t.T)
+    axisymmetric = section.axisymmetric
+    unfolded = drawn_mirrors(mirrors, axisymmetric)
+    outline, borders, dashed = whole_part_lines(section, unfolded)
+    extent = whole_extent(section.vertices, unfolded)
+    count = copies(mirrors, axisymmetric)
+    if count > 1:
+        piece = PIECES.get(count, f"1/{count}")
+        whole_of = "full r–z section" if axisymmetric else "whole part"
+        view = f"{whole_of} mirrored from the modelled {piece}"
+    elif axisymmetric:
+        view = "full r–z section, mirrored about the axis"
+    else:
+        view = "the modelled section"
+    if len(dashed):
+        view += " (dashed: symmetry lines)"
+    return Scene(
+        section.vertices,
+        np.asarray(section.mesh.t),
+        unfolded,
+        extent,
+        Lines(outline, borders, dashed),
+        view,
+    )
 
 
-def axis_names(solution: Solution) -> tuple[str, str]:
-    """The axes' labels: r and z for axisymmetric sections, x and y for planar ones, in mm."""
-    return ("r (mm)", "z (mm)") if solution.model.section.axisymmetric else ("x (mm)", "y (mm)")
-
-
-def draw_outline(axes, solution: Solution) -> LineCollection:
-    """Draw the section's boundary edges in ink; return them."""
-    segments = 1000 * outline_segments(solution.model.section)
-    return axes.add_collection(LineCollection(segments, colors=INK, linewidths=0.9))
-
-
-def snapshot_figure(assessment: Assessment, count: int = 4) -> Figure:
-    """Fields at :func:`snapshot_indices`, each on its own colour scale, with the outline and
-    the hottest (▲) and coldest (▼) vertices marked."""
+def snapshot_canvas(assessment: Assessment, mirrors: Sequence[Mirror] = (), count: int = 4):
+    """The snapshot picture's :class:`Canvas` and its index picture."""
     solution = assessment.solution
     indices = snapshot_indices(
         solution.output_times, assessment.peak_internal_difference_time, count
     )
-    columns = 1 if len(indices) == 1 else 2
-    rows = -(-len(indices) // columns)
-    triangulation = section_triangulation(solution)
-    # a panel as wide as the section's shape needs (plus its colour bar), so tall sections do
-    # not leave a gap between the columns
-    aspect = np.ptp(triangulation.x) / max(np.ptp(triangulation.y), 1e-300)
-    panel = float(np.clip(2.6 * aspect + 2.0, 3.0, 4.2))
-    figure = new_figure(panel * columns, 3.4 * rows + 0.4)
-    grid = np.atleast_1d(figure.subplots(rows, columns, squeeze=False).ravel())
-    for axes, index in zip(grid, indices, strict=False):
-        _snapshot_panel(figure, axes, solution, triangulation, index)
-    for axes in grid[len(indices) :]:
-        axes.set_visible(False)
-    handles, labels = grid[0].get_legend_handles_labels()
-    figure.legend(handles, labels, loc="outside lower center", ncols=2, fontsize=8, frameon=False)
-    return figure
+    whole = scene(solution, mirrors)
+    title = f"Temperature (°C), each on its own scale; ▲ hottest, ▼ coldest — {whole.view}"
+    layout, title = titled_layout(title, whole.extent, len(indices), SNAPSHOT_SIZE, False)
+    fields = [np.asarray(solution.fields[i], dtype=float) for i in indices]
+    x, y = solution.model.section.vertices
+    arts, maps = [], []
+    for k, (index, field) in enumerate(zip(indices, fields, strict=True)):
+        low, high = float(field.min()), float(field.max())
+        when = f"t = {clock(float(solution.output_times[index]))}: "
+        ticks = plain_ticks(low, high, layout.panels[k].bar.width)
+        if high - low < UNIFORM_BELOW:  # no colours, no extremes: rounding is not a gradient
+            caption, markers = when + f"uniform at {(low + high) / 2:.2f} °C", []
+        else:
+            caption = when + f"{low:.4g} to {high:.4g} °C, ΔT {high - low:.3g} K"
+            hot, cold = int(np.argmax(field)), int(np.argmin(field))
+            markers = [((x[hot], y[hot]), WARM, "^"), ((x[cold], y[cold]), COOL, "v")]
+        arts.append(whole.art(layout, k, caption, ticks, markers))
+        maps.append(maps[0] if maps else whole.pixel_map(layout, k))  # boxes of one size
+    chrome, boxes = render_chrome(layout, title, arts)
+    canvas = make_canvas(layout, chrome, [FIELD_MAP], maps, boxes)
+    for panel in layout.panels:
+        paint_bar(canvas, panel.bar, 0)
+    shown = []
+    for pixel_map_, field in zip(maps, fields, strict=True):
+        low, high = float(field.min()), float(field.max())
+        high = high if high - low >= UNIFORM_BELOW else low  # uniform: the middle level
+        shown.append(levels(pixel_map_.values(field), low, high, canvas.palette.levels))
+    return canvas, canvas.frame(shown, [0] * len(shown))
 
 
-def _snapshot_panel(
-    figure: Figure, axes, solution: Solution, triangulation: Triangulation, index: int
-) -> None:
-    """The output field ``index`` on its own colour scale with its extremes marked."""
-    xs, ys = triangulation.x, triangulation.y
-    field = np.asarray(solution.fields[index], dtype=float)
-    low, high = float(field.min()), float(field.max())
-    span = max(high - low, 1e-9 * max(abs(high), 1.0))
-    image = axes.tripcolor(
-        triangulation,
-        field,
-        shading="gouraud",
-        cmap=FIELD_MAP,
-        vmin=low,
-        vmax=low + span,
-        rasterized=True,  # the field as an image inside the SVG; lines and text stay vector
-    )
-    draw_outline(axes, solution)
-    hot, cold = int(np.argmax(field)), int(np.argmin(field))
-    axes.plot(xs[hot], ys[hot], "^", color=WARM, mec="white", mew=0.8, ms=8, label="hottest")
-    axes.plot(xs[cold], ys[cold], "v", color=COOL, mec="white", mew=0.8, ms=8, label="coldest")
-    axes.set_aspect("equal")
-    x_name, y_name = axis_names(solution)
-    axes.set_xlabel(x_name)
-    axes.set_ylabel(y_name)
-    axes.set_title(
-        f"t = {clock(float(solution.output_times[index]))}\n"
-        f"{low:.4g} to {high:.4g} °C, ΔT {high - low:.3g} K",
-        fontsize=9,
-        loc="left",
-    )
-    figure.colorbar(image, ax=axes, label="temperature (°C)", shrink=0.9)
+def write_snapshots(
+    assessment: Assessment,
+    stem: Path,
+    formats: Sequence[str] = ("png",),
+    mirrors: Sequence[Mirror] = (),
+) -> list[Path]:
+    """Write the snapshot picture as ``stem.png`` (and ``stem.svg``, the same picture inside
+    an SVG, when asked); return the paths."""
+    canvas, picture = snapshot_canvas(assessment, mirrors)
+    return save_picture(picture, canvas, Path(stem), formats)
+
+
+def save_picture(picture: np.ndarray, canvas: Canvas, stem: Path, formats) -> list[Path]:
+    """Save an index picture as PNG and, if asked, as an SVG that embeds the PNG."""
+    import base64
+    import io
+
+    image = image_of(picture, canvas.palette)
+    buffer = io.BytesIO()
+    image.save(buffer, format="PNG", optimize=False, compress_level=3)
+    data = buffer.getvalue()
+    stem.parent.mkdir(parents=True, exist_ok=True)
+    paths = []
+    for kind in formats:
+        path = stem.with_name(f"{stem.name}.{kind}")
+        if kind == "png":
+            write_with(path, lambda p: p.write_bytes(data))
+        elif kind == "svg":
+            width, height = image.size
+            encoded = base64.b64encode(data).decode("ascii")
+            text = (
+                f'<svg xmlns="http://www.w3.org/2000/svg" width="{width}" height="{height}" '
+                f'viewBox="0 0 {width} {height}"><image width="{width}" height="{height}" '
+                f'href="data:image/png;base64,{encoded}"/></svg>\n'
+            )
+            write_with(path, lambda p, t=text: p.write_text(t, encoding="utf-8"))
+        else:
+            raise ValueError(f"unknown picture format {kind!r}; expected 'png' or 'svg'")
+        paths.append(path)
+    return paths

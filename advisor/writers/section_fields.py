@@ -52,3 +52,36 @@ def outline_segments(section: SectionMesh) -> np.ndarray:
     pairs, _ = boundary_lines(section)
     vertices = section.vertices.T
     return vertices[pairs]
+
+
+def region_borders(section: SectionMesh) -> np.ndarray:
+    """Edges between triangles of different regions as line segments in m, shape (n, 2, 2)."""
+    mesh = section.mesh
+    regions = triangle_regions(section)
+    left, right = mesh.f2t
+    inner = right >= 0
+    differ = np.zeros(left.size, dtype=bool)
+    differ[inner] = regions[left[inner]] != regions[right[inner]]
+    return section.vertices.T[mesh.facets[:, differ].T]
+
+
+def whole_part_lines(section: SectionMesh, mirrors) -> tuple[np.ndarray, ...]:
+    """The outline, the region borders and the symmetry lines of the whole part, each a
+    (n, 2, 2) array of segments in m: the modelled piece's lines copied across ``mirrors``
+    (:mod:`advisor.whole_part`); boundary edges on a mirror line become symmetry lines."""
+    from ..whole_part import unfold
+
+    outline = outline_segments(section)
+    borders = region_borders(section)
+    size = float(np.ptp(section.vertices, axis=1).max())
+    on_line = np.zeros(len(outline), dtype=bool)
+    for mirror in mirrors:
+        ends = outline.reshape(-1, 2).T
+        near = np.abs(mirror.distance(ends)).reshape(-1, 2) <= 1e-9 * size
+        on_line |= near.all(axis=1)
+    pieces = []
+    for segments in (outline[~on_line], borders, outline[on_line]):
+        flat = segments.reshape(-1, 2).T
+        copies = [c.T.reshape(-1, 2, 2) for c in unfold(flat, mirrors)]
+        pieces.append(np.concatenate(copies) if copies else segments)
+    return tuple(pieces)

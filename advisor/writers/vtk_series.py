@@ -62,6 +62,19 @@ def _points(solution: Solution) -> np.ndarray:
     return np.column_stack([vertices.T, np.zeros(vertices.shape[1])])
 
 
+def _extent_note(section) -> str:
+    """What the field files cover: the modelled piece, whatever the pictures show."""
+    copies = section.facts.symmetry_multiplier
+    note = "the modelled section only"
+    if copies > 1:
+        note += (
+            f" (one of {copies} symmetric copies of the whole part; the pictures show them all)"
+        )
+    if section.axisymmetric:
+        note += "; the r-z half-plane (r >= 0), to be revolved about r = 0"
+    return note
+
+
 def write_field_legend(solution: Solution, path: Path) -> None:
     """Write the id → name tables of the field files (and the units of their arrays)."""
     section = solution.model.section
@@ -76,6 +89,7 @@ def write_field_legend(solution: Solution, path: Path) -> None:
             + (" = (r, z, 0)" if section.axisymmetric else ""),
         },
         "cell_data": {"region": "region id", "edge_group": "edge group id"},
+        "extent": _extent_note(section),
     }
     write_text(Path(path), json.dumps(legend, indent=2, ensure_ascii=False) + "\n")
 

@@ -1,0 +1,223 @@
+"""Field pictures as a reader meets them: no text over other text on flat and tall sections,
+the part large in its picture, GIF frames without colour bands, and the whole part a
+symmetric model stands for (its copies counted, its picture mirrored).
+
+Text boxes come from the renderers that draw them: matplotlib's window extents for the still
+text, Pillow's text box for the per-frame stamp.
+"""
+
+from __future__ import annotations
+
+import textwrap
+from pathlib import Path
+from types import SimpleNamespace
+
+import numpy as np
+import pytest
+from PIL import Image
+
+from advisor.casefile import CaseError
+from advisor.casefile.case import case_from_toml
+from advisor.writers import animation
+from advisor.writers.field_plots import snapshot_canvas
+from advisor.writers.raster_picture import colour_levels, draw_stamp
+from geometries import Rectangle
+
+
+def fake_run(
+    width: float, height: float, size: float, times=(0.0, 30.0, 60.0, 90.0, 120.0), shift=3.0
+):
+    """A run-like object over a width × height (m) rectangle whose fields rise linearly in x
+    (a ramp of 100 K, lowered by ``shift`` K each output), for pictures alone."""
+    section = Rectangle(width, height).mesh(size)
+    x, y = section.vertices
+    fields = [400.0 - shift * k + 100.0 * x / width + 0.0 * y for k in range(len(times))]
+    solution = SimpleNamespace(
+        model=SimpleNamespace(section=section),
+        fields=fields,
+        output_times=np.asarray(times, dtype=float),
+    )
+    return SimpleNamespace(solution=solution, peak_internal_difference_time=60.0)
+
+
+def overlapping(boxes) -> list:
+    """Pairs of (left, top, right, bottom) boxes that share any area."""
+    found = []
+    for i, a in enumerate(boxes):
+        for b in boxes[i + 1 :]:
+            if min(a[2], b[2]) > max(a[0], b[0]) and min(a[3], b[3]) > max(a[1], b[1]):
+                found.append((a, b))
+    return found
+
+
+def within(box, width: int, height: int) -> bool:
+    return box[0] >= 0 and box[1] >= 0 and box[2] <= width and box[3] <= height
+
+
+FLAT = (0.060, 0.002, 0.0005)  # a 60 × 2 mm strip (width, height, mesh size in m)
+TALL = (0.005, 0.080, 0.001)  # a 5 × 80 mm fin
+
+
+@pytest.mark.parametrize("shape", [FLAT, TALL], ids=["flat", "tall"])
+def test_snapshots_of_flat_and_tall_sections_keep_text_apart_and_the_part_large(shape):
+    run = fake_run(*shape)
+    canvas, picture = snapshot_canvas(run)
+    layout = canvas.layout
+    height, width = picture.shape
+    assert not overlapping(canvas.text_boxes)
+    assert all(within(b, width, height) for b in canvas.text_boxes)
+    parts = [panel.part for panel in layout.panels]
+    # the part's long side spans most of the picture's matching side (common practice for a
+    # figure about the part: the part, not the margins, takes the space)
+    if shape is FLAT:
+        assert min(p.width for p in parts) >= 0.8 * width
+    else:
+        assert min(p.height for p in parts) >= 0.7 * height
+    # colour bars are sized to the panel, not to a thin part
+    assert min(panel.bar.width for panel in layout.panels) >= 280
+    for box in canvas.text_boxes:  # no text over a part
+        for part in parts:
+            assert overlapping([box, (part.left, part.top, part.right, part.bottom)]) == []
+
+
+@pytest.mark.parametrize("shape", [FLAT, TALL], ids=["flat", "tall"])
+def test_an_animation_frame_keeps_its_stamp_apart_from_every_other_text(shape):
+    run = fake_run(*shape)
+    canvas = animation.film_canvas(run.solution)
+    frame = canvas.frame([np.zeros(len(m.pixels), np.uint8) for m, _, _ in canvas.panels], [0, 1])
+    longest = "t = 10 h 59 min of 11 h 00 min   ·   coldest -123.4 °C, hottest 1234 °C, ΔT 1357 K"
+    stamp = draw_stamp(frame, canvas, canvas.layout.stamp, longest)
+    boxes = [*canvas.text_boxes, stamp]
+    height, width = frame.shape
+    assert not overlapping(boxes)
+    assert all(within(b, width, height) for b in boxes)
+    assert stamp[2] <= canvas.layout.stamp.right  # the stamp fits its line
+
+
+def test_gif_frames_show_a_ramp_without_bands(tmp_path):
+    # The field rises linearly across the strip. On the run's colour scale (420 K) the frame
+    # spans about a quarter of the map's levels, where levels rounded to the nearest show
+    # flat bands; ordered dithering between neighbouring exact levels must instead average to
+    # the ramp, and neighbouring pixels may differ by at most one level.
+    run = fake_run(0.040, 0.010, 0.001, shift=80.0)
+    gif = tmp_path / "ramp.gif"
+    animation.write_animation(run.solution, gif)
+    canvas = animation.film_canvas(run.solution)
+    part = canvas.layout.panels[0].part
+    count = canvas.palette.levels
+    lookup = {tuple(c): k for k, c in enumerate(colour_levels("cividis", count))}
+    with Image.open(gif) as image:
+        image.seek(2)
+        rgb = np.asarray(image.convert("RGB"))
+    rows = slice(part.top + part.height // 3, part.top + 2 * part.height // 3)
+    inner = rgb[rows, part.left + 6 : part.right - 6]
+    level = np.array([[lookup.get(tuple(p), -1) for p in row] for row in inner])
+    assert (level >= 0).mean() > 0.99, "panel pixels are exact colour levels of the map"
+    level = np.where(level < 0, np.nan, level)
+    steps = np.abs(np.diff(level, axis=1))
+    assert np.nanmax(steps) <= 1, "a jump of more than one level is a band edge"
+    # expected level at each column from the exact ramp: field = 240 + 100·x/width (the
+    # third output) on the scale of the run (80 to 500 °C)
+    fields = run.solution.fields
+    low = min(f.min() for f in fields)
+    high = max(f.max() for f in fields)
+    pixel_map = canvas.panels[0][0]
+    x_min, x_max = pixel_map.extent[:2]
+    columns = np.arange(part.left + 6, part.right - 6) - part.left
+    x = x_min + (columns + 0.5) * (x_max - x_min) / pixel_map.shape[1]
+    expected = (240.0 + 100.0 * x / 0.040 - low) / (high - low) * (count - 1)
+    # averaged over 4 × 4 dither cells the levels follow the ramp to a tenth of a level plus
+    # the ramp's rise over the cell (16 thresholds average to within 1/32 of a level); the
+    # nearest level without dithering is off by up to half a level, in bands
+    block = 4
+    usable = (level.shape[1] // block) * block
+    averaged = np.nanmean(level[: (level.shape[0] // block) * block, :usable], axis=0)
+    averaged = averaged.reshape(-1, block).mean(axis=1)
+    target = expected[:usable].reshape(-1, block).mean(axis=1)
+    rise = (count - 1) * 100.0 / (high - low) * (block * (x_max - x_min) / pixel_map.shape[1])
+    rise /= 0.040
+    assert rise < 0.2
+    assert np.max(np.abs(averaged - target)) <= 0.1 + rise
+
+
+QUARTER = """
+title = "quarter bar"
+[section]
+mesh_size = "2 mm"
+{mirrors}
+[[section.shape]]
+kind = "rectangle"
+width = "30 mm"
+height = "20 mm"
+edges = {{ left = "symmetry", bottom = "symmetry", right = "cooled", top = "cooled" }}
+[material]
+conductivity = "40 W/(m*K)"
+density = "7800 kg/m^3"
+specific_heat = "460 J/(kg*K)"
+[boundaries.symmetry]
+insulated = "symmetry"
+[boundaries.cooled]
+convection = {{ coefficient = "200 W/(m^2*K)", ambient = "20 degC" }}
+[initial]
+temperature = "500 degC"
+[run]
+end_time = "2 min"
+time_step = "10 s"
+"""
+
+
+def quarter_case(mirrors: str, tmp_path: Path):
+    text = textwrap.dedent(QUARTER).format(mirrors=mirrors)
+    return case_from_toml(text, tmp_path / "quarter.toml")
+
+
+def test_declared_mirror_lines_count_the_copies_and_scale_the_whole_part(tmp_path):
+    bare = quarter_case("", tmp_path).model().section.facts
+    case = quarter_case('mirror_lines = ["x = 0 mm", "y = 0 mm"]', tmp_path)
+    facts = case.model().section.facts
+    assert bare.symmetry_multiplier == 1 and facts.symmetry_multiplier == 4
+    # the whole bar is 60 × 40 mm: its volume per metre of depth, computed here
+    assert facts.part_volume == pytest.approx(0.060 * 0.040, rel=1e-12)
+    assert facts.volume == pytest.approx(bare.volume, rel=1e-12)
+    mirrors = case.whole_part(case.model().section)
+    assert [m.normal for m in mirrors] == [(1.0, 0.0), (0.0, 1.0)]
+
+
+def test_the_whole_quarter_bar_is_drawn_mirrored(tmp_path):
+    from advisor.pipeline import run_case
+
+    results = run_case(quarter_case('mirror_lines = ["x = 0 mm", "y = 0 mm"]', tmp_path))
+    assert len(results.mirrors) == 2
+    canvas, picture = snapshot_canvas(results.assessment, results.mirrors)
+    pixel_map = canvas.panels[0][0]
+    x_min, x_max, y_min, y_max = pixel_map.extent
+    assert x_min < -0.029 and x_max > 0.029 and y_min < -0.019 and y_max > 0.019
+    inside = pixel_map.inside()
+    np.testing.assert_array_equal(inside, inside[:, ::-1])
+    np.testing.assert_array_equal(inside, inside[::-1, :])
+
+
+@pytest.mark.parametrize(
+    "line, words",
+    [
+        ('mirror_lines = ["x = 10 mm"]', "both sides of the mirror line"),
+        ('mirror_lines = ["q = 0 mm"]', "is not a line"),
+        ('mirror_lines = ["x = 0 kg"]', "length"),
+        ('mirror_lines = "x = 0 mm"', "expected a list"),
+    ],
+)
+def test_bad_mirror_lines_name_the_key_and_line(line, words, tmp_path):
+    with pytest.raises(CaseError, match=words) as caught:
+        case = quarter_case(line, tmp_path)
+        case.whole_part(case.model().section)
+    message = str(caught.value)
+    assert "mirror_lines" in message and "quarter.toml" in message
+    if "both sides" not in words:
+        assert "line 5" in message
+
+
+def test_an_axisymmetric_section_takes_only_lines_across_its_axis(tmp_path):
+    text = textwrap.dedent(QUARTER).format(mirrors='mirror_lines = ["r = 0 mm"]')
+    text = text.replace('mesh_size = "2 mm"', 'axisymmetric = true\nmesh_size = "2 mm"')
+    with pytest.raises(CaseError, match="whole about its axis"):
+        case_from_toml(text, tmp_path / "round.toml")
