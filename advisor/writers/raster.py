@@ -110,7 +110,11 @@ def pixel_map(
     origin = vertices.mean(axis=1, keepdims=True)
     scale = max(float(np.ptp(vertices[0])), float(np.ptp(vertices[1])), 1e-300)
     local = (vertices - origin) / scale
-    finder = Triangulation(local[0], local[1], triangles.T).get_trifinder()
+    # A mesh cut along a contact interface has two nodes at each point of it; the trapezoid
+    # map needs one, while the weights below keep each triangle's own nodes (and the jump).
+    merged, corner = np.unique(np.round(local.T, 12), axis=0, return_inverse=True)
+    corner = corner.reshape(-1)
+    finder = Triangulation(merged[:, 0], merged[:, 1], corner[triangles].T).get_trifinder()
     query = (points - origin) / scale
     cells = np.asarray(finder(query[0], query[1]), dtype=np.int64)
     found = np.flatnonzero(cells >= 0)
