@@ -100,7 +100,8 @@ def read_measured(
     Parameters
     ----------
     path : str or Path
-        CSV (comma-separated) or whitespace-separated table; ``#`` starts a comment line.
+        A table separated by semicolons, commas or (when the header has neither) tabs and
+        spaces; ``#`` starts a comment line. Numbers take decimal points.
     probes : mapping of str to (x, y)
         The case's probes (m).
     units : mapping of str to str, optional
@@ -174,16 +175,17 @@ def _rows(path: Path) -> list[tuple[int, list[str]]]:
     content = [(n, s) for n, s in enumerate(lines, 1) if s.strip() and not _is_comment(s)]
     if not content:
         return []
-    comma = "," in content[0][1]
-    if comma:
-        return [(n, [c.strip() for c in _csv_cells(s)]) for n, s in content]
+    header = content[0][1]
+    for delimiter in (";", ","):  # a semicolon first: loggers with decimal commas use it
+        if delimiter in header:
+            return [(n, [c.strip() for c in _csv_cells(s, delimiter)]) for n, s in content]
     rows = [(n, s.split()) for n, s in content]
     return [(rows[0][0], _joined_units(rows[0][1]))] + rows[1:]
 
 
-def _csv_cells(line: str) -> list[str]:
+def _csv_cells(line: str, delimiter: str) -> list[str]:
     """One CSV line's cells (each line alone: a reading never spans lines)."""
-    return next(csv.reader([line], skipinitialspace=True), [])
+    return next(csv.reader([line], delimiter=delimiter, skipinitialspace=True), [])
 
 
 def _is_comment(line: str) -> bool:
@@ -348,8 +350,9 @@ def _numbers(path: Path, rows, names: list[str], units: list[str]) -> np.ndarray
                 value = float(cell)
             except ValueError:
                 shown = cell if len(cell) <= 40 else cell[:37] + "..."
+                hint = " (write decimal points, not commas)" if "," in cell else ""
                 raise MeasuredFileError(
-                    path, line, c + 1, f"{shown!r} in column {names[c]!r} is not a number"
+                    path, line, c + 1, f"{shown!r} in column {names[c]!r} is not a number{hint}"
                 ) from None
             if not math.isfinite(value):
                 raise MeasuredFileError(
