@@ -30,6 +30,12 @@ SENSITIVITY_CHANGE = 0.10  # a 10 % change of a parameter ...
 LAMBDA_SPAN = (1e-10, 1e6)  # λ searched over this span times trace(JᵀJ)/trace(DᵀD)
 ROUNDS = 3  # choices of λ by the discrepancy principle, each followed by a fit
 SETTLED = 4.0  # a new λ within this factor of the last keeps the last fit
+ENDS = {
+    "largest": " (at the top of its span: straight lines fit the readings within the stated "
+    "uncertainty)",
+    "smallest": " (at the bottom of its span: no table brings the residual down to the stated "
+    "uncertainty, so the model misses something or the uncertainty is stated too small)",
+}
 
 
 @dataclass(frozen=True)
@@ -125,14 +131,15 @@ def fit(problem: FitProblem, *, uncertainty: float | None = None) -> FitResult:
     parameters = problem.parameters
     penalty = parameters.curvature()
     check_uncertainty(uncertainty, tables=bool(penalty.shape[0]))
-    values, weight = parameters.stacked("start"), 0.0
+    values, weight, rule = parameters.stacked("start"), 0.0, "none"
     if penalty.shape[0]:
-        values, weight = _regularised(problem, values, penalty, uncertainty)
+        values, weight, end = _regularised(problem, values, penalty, uncertainty)
+        rule = "Tikhonov (second differences), λ by the discrepancy principle" + ENDS.get(end, "")
     else:
         if parameters.size > len(parameters.blocks):
             values = _constant_start(problem)
         values = _least_squares(problem, values, penalty, 0.0)
-    return _result(problem, values, penalty, weight, uncertainty, started)
+    return _result(problem, values, penalty, (weight, rule), uncertainty, started)
 
 
 def check_uncertainty(uncertainty: float | None, *, tables: bool) -> None:
@@ -156,7 +163,7 @@ def check_uncertainty(uncertainty: float | None, *, tables: bool) -> None:
         )
 
 
-def _regularised(problem: FitProblem, values, penalty, uncertainty) -> tuple[np.ndarray, float]:
+def _regularised(problem: FitProblem, values, penalty, uncertainty):
     """Fit the smoothest tables first (the limit λ → ∞: only tables the penalty does not see,
     straight lines, so a well-posed fit of a few values), then take λ by the discrepancy
     principle at that estimate and fit again, until λ settles."""
@@ -172,7 +179,7 @@ def _regularised(problem: FitProblem, values, penalty, uncertainty) -> tuple[np.
             break
         weight, last_end = chosen, end
         values = _least_squares(problem, values, penalty, weight)
-    return values, weight
+    return values, weight, last_end
 
 
 def _smoothest(problem: FitProblem, start, penalty) -> np.ndarray:
@@ -298,9 +305,10 @@ def discrepancy_weight(residual, jacobian, penalty, values, uncertainty) -> floa
     return scale * 10.0 ** (0.5 * (low + high)), None
 
 
-def _result(problem, values, penalty, weight, uncertainty, started) -> FitResult:
+def _result(problem, values, penalty, regularisation, uncertainty, started) -> FitResult:
     from scipy.stats import t as student
 
+    weight, rule = regularisation
     parameters = problem.parameters
     residual = problem.residuals(values)
     jacobian = problem.jacobian(values, problem.difference_step)
@@ -346,9 +354,7 @@ def _result(problem, values, penalty, weight, uncertainty, started) -> FitResult
         scatter,
         freedom,
         float(weight),
-        "Tikhonov (second differences), λ by the discrepancy principle"
-        if penalty.shape[0]
-        else "none",
+        rule,
         condition,
         sensitivities,
         verdict,
