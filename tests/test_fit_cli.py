@@ -228,3 +228,23 @@ def test_the_starter_readings_are_what_their_recipe_makes():
     assert shipped.times.tolist() == times.tolist()
     for name, values in logged.items():
         assert abs(shipped.readings[name] - values).max() <= 0.1 + 1e-9, name
+
+
+def test_fitted_tables_of_every_kind_read_back_as_a_case():
+    # The fragment's text for a curve of surface temperature beside radiation, spliced into
+    # the starter, is read by the case loader into the same conditions.
+    from advisor.casefile.case import case_from_toml
+    from advisor.fitting.fragment import boundary_fragment, spliced_case
+    from fem import Radiation, SurfaceCurve, SurfaceTemperatureConvection
+
+    curve = SurfaceCurve((40.0, 445.0, 850.0), (180.5, 240.25, 310.0))
+    conditions = (SurfaceTemperatureConvection(curve, 30.0), Radiation(0.62, 30.0))
+    fragment = boundary_fragment({"surface": conditions}, ["surface"], "fitted\nby a test")
+    assert fragment.startswith("# fitted\n# by a test\n[boundaries.surface]\n")
+    text = (EXAMPLES / "fit-trial.toml").read_text(encoding="utf-8")
+    spliced = spliced_case(text, fragment, ["surface"])
+    assert spliced.count("[boundaries.surface]") == 1
+    case = case_from_toml(spliced, EXAMPLES / "fit-trial.toml")
+    convection, radiation = case.boundaries["surface"]
+    assert convection.curve[0][1] == curve
+    assert radiation.emissivity == 0.62 and radiation.surroundings(0.0) == 30.0

@@ -54,6 +54,15 @@ def test_a_column_mapped_to_a_point_becomes_a_probe(tmp_path):
     assert curves.positions == {"mid": pytest.approx((0.009, 0.0), abs=1e-15)}
 
 
+def test_semicolons_and_tabs(tmp_path):
+    for text in (
+        "time [s];core [degC]\n0;850\n5;840\n10;830\n",
+        "time [s]\tcore [degC]\n0\t850\n5\t840\n10\t830\n",
+    ):
+        curves = read_measured(write(tmp_path, text), PROBES)
+        assert curves.readings["core"].tolist() == [850.0, 840.0, 830.0]
+
+
 # (file text, options, line, column, words in the message): each a different fault.
 CORPUS = {
     "empty": ("", {}, 0, 0, "empty"),
@@ -77,6 +86,7 @@ CORPUS = {
     "unknown unit": ("time [s], core [degZ]\n0, 1\n1, 2\n2, 3\n", {}, 1, 2, "degZ"),
     "length as time": ("time [mm], core [degC]\n0, 1\n1, 2\n2, 3\n", {}, 1, 1, "mm"),
     "text in a number": ("time [s], core [degC]\n0, 800\n5, 79O\n10, 780\n", {}, 3, 2, "79O"),
+    "decimal comma": ("time [s];core [degC]\n0;850\n5;84,5\n10;830\n", {}, 3, 2, "decimal points"),
     "not a number": ("time [s], core [degC]\n0, 800\n5, nan\n10, 780\n", {}, 3, 2, "finite"),
     "infinite": ("time [s], core [degC]\n0, 800\n5, 790\n10, -inf\n", {}, 4, 2, "finite"),
     "time goes back": (

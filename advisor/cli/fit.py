@@ -88,10 +88,11 @@ def execute(args: argparse.Namespace) -> int:
     out = args.out or args.case.parent / f"{args.case.stem}-fit"
     keep = (args.case, args.measured)
     check_results_folder(out, force=args.force, keep=keep)
-    progress = _progress()
+    progress = None
     try:
         with results_lock(out):
             log.info(f"Fitting {', '.join(requests)} to {measured.path.name} ...")
+            progress = _progress()  # after the message, so the line has its own row
             outcome = fit_case(
                 case, parsed, measured, uncertainty=args.uncertainty, progress=progress
             )

@@ -21,24 +21,20 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..errors import AdvisorError
+from .identifiability import Identifiability, identifiability
 from .problem import FitProblem
 
 CONFIDENCE = 0.95
-CORRELATION_LIMIT = 0.95  # common practice: above this, two parameters trade off
-RELATIVE_ERROR_LIMIT = 0.25  # a standard error above a quarter of the value: weakly determined
 SENSITIVITY_CHANGE = 0.10  # a 10 % change of a parameter ...
 LAMBDA_SPAN = (1e-10, 1e6)  # λ searched over this span times trace(JᵀJ)/trace(DᵀD)
 ROUNDS = 3  # choices of λ by the discrepancy principle, each followed by a fit
 SETTLED = 4.0  # a new λ within this factor of the last keeps the last fit
-
-
-@dataclass(frozen=True)
-class Identifiability:
-    """Whether the readings determine the parameters: ``rating`` is ``"identified"``,
-    ``"weakly identified"`` or ``"not identified"``; ``reasons`` say why in words."""
-
-    rating: str
-    reasons: tuple[str, ...]
+ENDS = {
+    "largest": " (at the top of its span: straight lines fit the readings within the stated "
+    "uncertainty)",
+    "smallest": " (at the bottom of its span: no table brings the residual down to the stated "
+    "uncertainty, so the model misses something or the uncertainty is stated too small)",
+}
 
 
 @dataclass(frozen=True)
@@ -125,14 +121,15 @@ def fit(problem: FitProblem, *, uncertainty: float | None = None) -> FitResult:
     parameters = problem.parameters
     penalty = parameters.curvature()
     check_uncertainty(uncertainty, tables=bool(penalty.shape[0]))
-    values, weight = parameters.stacked("start"), 0.0
+    values, weight, rule = parameters.stacked("start"), 0.0, "none"
     if penalty.shape[0]:
-        values, weight = _regularised(problem, values, penalty, uncertainty)
+        values, weight, end = _regularised(problem, values, penalty, uncertainty)
+        rule = "Tikhonov (second differences), λ by the discrepancy principle" + ENDS.get(end, "")
     else:
         if parameters.size > len(parameters.blocks):
             values = _constant_start(problem)
         values = _least_squares(problem, values, penalty, 0.0)
-    return _result(problem, values, penalty, weight, uncertainty, started)
+    return _result(problem, values, penalty, (weight, rule), uncertainty, started)
 
 
 def check_uncertainty(uncertainty: float | None, *, tables: bool) -> None:
@@ -156,7 +153,7 @@ def check_uncertainty(uncertainty: float | None, *, tables: bool) -> None:
         )
 
 
-def _regularised(problem: FitProblem, values, penalty, uncertainty) -> tuple[np.ndarray, float]:
+def _regularised(problem: FitProblem, values, penalty, uncertainty):
     """Fit the smoothest tables first (the limit λ → ∞: only tables the penalty does not see,
     straight lines, so a well-posed fit of a few values), then take λ by the discrepancy
     principle at that estimate and fit again, until λ settles."""
@@ -172,7 +169,7 @@ def _regularised(problem: FitProblem, values, penalty, uncertainty) -> tuple[np.
             break
         weight, last_end = chosen, end
         values = _least_squares(problem, values, penalty, weight)
-    return values, weight
+    return values, weight, last_end
 
 
 def _smoothest(problem: FitProblem, start, penalty) -> np.ndarray:
@@ -298,9 +295,10 @@ def discrepancy_weight(residual, jacobian, penalty, values, uncertainty) -> floa
     return scale * 10.0 ** (0.5 * (low + high)), None
 
 
-def _result(problem, values, penalty, weight, uncertainty, started) -> FitResult:
+def _result(problem, values, penalty, regularisation, uncertainty, started) -> FitResult:
     from scipy.stats import t as student
 
+    weight, rule = regularisation
     parameters = problem.parameters
     residual = problem.residuals(values)
     jacobian = problem.jacobian(values, problem.difference_step)
@@ -346,54 +344,10 @@ def _result(problem, values, penalty, weight, uncertainty, started) -> FitResult
         scatter,
         freedom,
         float(weight),
-        "Tikhonov (second differences), λ by the discrepancy principle"
-        if penalty.shape[0]
-        else "none",
+        rule,
         condition,
         sensitivities,
         verdict,
         problem.trials,
         time.perf_counter() - started,
     )
-
-
-def identifiability(parameters, values, errors, correlation, sensitivities, noise):
-    """The verdict: a single value whose 10 % change moves no reading by more than the noise
-    is not identified (a table node so insensitive makes the verdict weak); a standard error
-    above 25 % of the value, or a correlation above 0.95 between parameters of different
-    requests (or single values), makes it weak."""
-    names = parameters.names
-    owner = np.concatenate([np.full(b.size, i) for i, b in enumerate(parameters.blocks)])
-    tabled = np.concatenate([np.full(b.size, b.regularised) for b in parameters.blocks])
-    insensitive = [
-        (n, t) for n, s, t in zip(names, sensitivities, tabled, strict=True) if s < noise
-    ]
-    blind = [n for n, t in insensitive if not t]  # a table node leans on its neighbours
-    reasons = [
-        f"{name}: a 10 % change moves no reading by more than {noise:.2g} K (too insensitive"
-        + ("; its value comes from the smoothing more than from the readings)" if t else ")")
-        for name, t in insensitive
-    ]
-    for name, value, error in zip(names, values, errors, strict=True):
-        if name not in dict(insensitive) and error > RELATIVE_ERROR_LIMIT * abs(value):
-            reasons.append(f"{name}: standard error {100 * error / abs(value):.0f} % of the value")
-    for i in range(len(names)):
-        for j in range(i + 1, len(names)):
-            same_table = owner[i] == owner[j] and tabled[i]
-            if not same_table and abs(correlation[i, j]) > CORRELATION_LIMIT:
-                reasons.append(
-                    f"{names[i]} and {names[j]} are correlated at {correlation[i, j]:+.3f}: the "
-                    "readings fix a combination of them, not each one"
-                )
-    if blind:
-        rating = "not identified"
-    elif reasons:
-        rating = "weakly identified"
-    else:
-        rating = "identified"
-        reasons.append(
-            "every parameter moves the readings by more than the noise, with standard errors "
-            f"under {100 * RELATIVE_ERROR_LIMIT:.0f} % and no correlation above "
-            f"{CORRELATION_LIMIT}"
-        )
-    return Identifiability(rating, tuple(reasons))

@@ -112,7 +112,7 @@ def exponential_fit(times, temperatures, ambient: float) -> tuple[float, float, 
 
 def lumped_readings(problem, values) -> list[LumpedReading]:
     """Every measured curve of ``problem`` read the hand way, against the field fit at
-    ``values``.
+    ``values`` (a curve that does not approach the ambient is left out).
 
     The lumped model's ρcV and A are the section's (all regions, the fitted edge groups'
     surfaces and every other group exchanging heat); the ambient is the fluid's of the first
@@ -144,9 +144,12 @@ def lumped_readings(problem, values) -> list[LumpedReading]:
     biot = field * (facts.volume / area) / conductivity
     readings = []
     for name in problem.measured.probes:
-        tau, amplitude, rms = exponential_fit(
-            problem.measured.times, problem.measured.readings[name], ambient
-        )
+        try:
+            tau, amplitude, rms = exponential_fit(
+                problem.measured.times, problem.measured.readings[name], ambient
+            )
+        except AdvisorError:  # a curve that does not approach the ambient has no reading
+            continue
         coefficient = capacity / (area * tau)
         readings.append(
             LumpedReading(

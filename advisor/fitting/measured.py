@@ -13,33 +13,22 @@ from __future__ import annotations
 
 import csv
 import math
-import re
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
 
-from ..errors import AdvisorError
+from .measured_header import (
+    TIME_COLUMN,
+    MeasuredFileError,
+    column_units,
+    header_columns,
+    mapped_point,
+    unit_converter,
+)
 
-TIME_COLUMN = "time"
-_UNIT = re.compile(r"^\s*(.*?)\s*[\[(]\s*([^\])]*?)\s*[\])]\s*$")  # "core [degC]", "t (min)"
 _COMMENT = "#"
-KINDS = {"time": "s", "temperature": "degC"}
-
-
-class MeasuredFileError(AdvisorError):
-    """A measured file the fit cannot take: ``path``, ``line`` (1-based, 0 when the whole file
-    is meant) and ``column`` (1-based, 0 for a whole line) say where."""
-
-    def __init__(self, path: Path, line: int, column: int, message: str) -> None:
-        where = f"{Path(path).name}"
-        if line:
-            where += f", line {line}"
-        if column:
-            where += f", column {column}"
-        super().__init__(f"{where}: {message}", argument="measured")
-        self.path, self.line, self.column = Path(path), line, column
 
 
 @dataclass(frozen=True)
@@ -100,7 +89,8 @@ def read_measured(
     Parameters
     ----------
     path : str or Path
-        CSV (comma-separated) or whitespace-separated table; ``#`` starts a comment line.
+        A table separated by semicolons, commas or (when the header has neither) tabs and
+        spaces; ``#`` starts a comment line. Numbers take decimal points.
     probes : mapping of str to (x, y)
         The case's probes (m).
     units : mapping of str to str, optional
@@ -133,9 +123,9 @@ def read_measured(
     if not rows:
         raise MeasuredFileError(path, 0, 0, "the file is empty (no header, no readings)")
     header_line, header = rows[0]
-    names, header_units = _header(path, header_line, header)
+    names, header_units = header_columns(path, header_line, header)
     time_index = _time_column(path, header_line, names)
-    given_units = _units(path, header_line, names, header_units, dict(units or {}))
+    given_units = column_units(path, header_line, names, header_units, dict(units or {}))
     targets = _targets(path, header_line, names, time_index, probes, dict(mapping or {}))
     table = _numbers(path, rows[1:], names, given_units)
     if len(table) < parameters + 2:
@@ -174,16 +164,17 @@ def _rows(path: Path) -> list[tuple[int, list[str]]]:
     content = [(n, s) for n, s in enumerate(lines, 1) if s.strip() and not _is_comment(s)]
     if not content:
         return []
-    comma = "," in content[0][1]
-    if comma:
-        return [(n, [c.strip() for c in _csv_cells(s)]) for n, s in content]
+    header = content[0][1]
+    for delimiter in (";", ","):  # a semicolon first: loggers with decimal commas use it
+        if delimiter in header:
+            return [(n, [c.strip() for c in _csv_cells(s, delimiter)]) for n, s in content]
     rows = [(n, s.split()) for n, s in content]
     return [(rows[0][0], _joined_units(rows[0][1]))] + rows[1:]
 
 
-def _csv_cells(line: str) -> list[str]:
+def _csv_cells(line: str, delimiter: str) -> list[str]:
     """One CSV line's cells (each line alone: a reading never spans lines)."""
-    return next(csv.reader([line], skipinitialspace=True), [])
+    return next(csv.reader([line], delimiter=delimiter, skipinitialspace=True), [])
 
 
 def _is_comment(line: str) -> bool:
@@ -199,51 +190,6 @@ def _joined_units(cells: list[str]) -> list[str]:
         else:
             joined.append(cell)
     return joined
-
-
-def _header(path: Path, line: int, cells: list[str]) -> tuple[list[str], list[str]]:
-    """Each column's name and the unit the header gives it ("" for none)."""
-    names, found = [], []
-    for number, cell in enumerate(cells, 1):
-        match = _UNIT.match(cell)
-        name, unit = (match.group(1), match.group(2)) if match else (cell.strip(), "")
-        if not name:
-            raise MeasuredFileError(path, line, number, f"the header cell {cell!r} has no name")
-        if name in names:
-            raise MeasuredFileError(path, line, number, f"column name {name!r} appears twice")
-        names.append(name)
-        found.append(unit)
-    return names, found
-
-
-def _units(
-    path: Path, line: int, names: list[str], found: list[str], units: dict[str, str]
-) -> list[str]:
-    """Each column's unit (the header's, else from ``units``), checked."""
-    found = list(found)
-    unknown = sorted(set(units) - set(names))
-    if unknown:
-        raise MeasuredFileError(
-            path,
-            line,
-            0,
-            f"units are given for column(s) {unknown} the header does not have; "
-            f"its columns are {names}",
-        )
-    for number, name in enumerate(names, 1):
-        if name in units:
-            found[number - 1] = units[name]
-        kind = "time" if name.lower() == TIME_COLUMN else "temperature"
-        if not found[number - 1]:
-            raise MeasuredFileError(
-                path,
-                line,
-                number,
-                f"column {name!r} has no unit: write it in the header ('{name} [{KINDS[kind]}]')"
-                f" or give it with --units {name}={KINDS[kind]}",
-            )
-        _converter(path, line, number, found[number - 1], kind)  # checked now, used later
-    return found
 
 
 def _time_column(path: Path, line: int, names: list[str]) -> int:
@@ -282,7 +228,7 @@ def _targets(
         if target in probes:
             targets[index] = (target, None)
         elif name in mapping and "," in target:
-            targets[index] = (name, _point(path, line, index + 1, target))
+            targets[index] = (name, mapped_point(path, line, index + 1, target))
         else:
             raise MeasuredFileError(
                 path,
@@ -305,35 +251,6 @@ def _targets(
     return targets
 
 
-def _point(path: Path, line: int, column: int, text: str) -> tuple[float, float]:
-    from ..casefile.units import UnitError, quantity
-
-    parts = [p.strip() for p in text.split(",")]
-    try:
-        if len(parts) != 2:
-            raise UnitError(f"expected two coordinates 'x, y', got {text!r}")
-        x, y = (quantity(p, "length") for p in parts)
-    except UnitError as error:
-        raise MeasuredFileError(path, line, column, f"--map point: {error}") from None
-    return (x, y)
-
-
-def _converter(path: Path, line: int, column: int, unit: str, kind: str):
-    """A function taking an array in ``unit`` to s or °C; an unknown unit is refused."""
-    from ..casefile.units import UnitError, quantity
-
-    expected = "time" if kind == "time" else "temperature"
-    try:
-        zero = quantity(f"0 {unit}", expected)
-        one = quantity(f"1 {unit}", expected)
-    except UnitError:
-        examples = "s, min or h" if kind == "time" else "degC, degF or K"
-        raise MeasuredFileError(
-            path, line, column, f"unit {unit!r} is not a {expected} unit ({examples})"
-        ) from None
-    return lambda values: zero + (one - zero) * values  # affine: °F and K convert too
-
-
 def _numbers(path: Path, rows, names: list[str], units: list[str]) -> np.ndarray:
     """The readings as floats in s and °C, every cell checked."""
     table = np.empty((len(rows), len(names)))
@@ -348,8 +265,9 @@ def _numbers(path: Path, rows, names: list[str], units: list[str]) -> np.ndarray
                 value = float(cell)
             except ValueError:
                 shown = cell if len(cell) <= 40 else cell[:37] + "..."
+                hint = " (write decimal points, not commas)" if "," in cell else ""
                 raise MeasuredFileError(
-                    path, line, c + 1, f"{shown!r} in column {names[c]!r} is not a number"
+                    path, line, c + 1, f"{shown!r} in column {names[c]!r} is not a number{hint}"
                 ) from None
             if not math.isfinite(value):
                 raise MeasuredFileError(
@@ -362,7 +280,7 @@ def _numbers(path: Path, rows, names: list[str], units: list[str]) -> np.ndarray
             table[r, c] = value
     for c, name in enumerate(names):
         kind = "time" if name.lower() == TIME_COLUMN else "temperature"
-        table[:, c] = _converter(path, 0, c + 1, units[c], kind)(table[:, c])
+        table[:, c] = unit_converter(path, 0, c + 1, units[c], kind)(table[:, c])
     return table
 
 

@@ -152,9 +152,12 @@ class FitProblem:
         if self._last_jacobian is not None and self._last_jacobian[0] == key:
             return self._last_jacobian[1].copy()
         base = self.residuals(values)
+        upper = self.parameters.stacked("upper")
         columns = []
         for j, value in enumerate(values):
             step = relative_step * max(abs(value), 1e-6)
+            if value + step > upper[j]:  # at the upper bound (an emissivity of 1): backwards
+                step = -step
             moved = np.array(values, dtype=float)
             moved[j] += step
             columns.append((self.residuals(moved) - base) / step)

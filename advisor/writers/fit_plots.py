@@ -66,7 +66,7 @@ def curves_figure(outcome) -> Figure:
     axes.plot([], [], color=LUMPED, lw=1.0, ls=(0, (5, 3)), label="lumped exponential fits")
     axes.set_xlabel(f"time [{unit}]")
     axes.set_ylabel("temperature [°C]")
-    axes.set_title(_title(result), loc="left", fontsize=10)
+    axes.set_title(_title(outcome), loc="left", fontsize=10)
     axes.legend(fontsize=8, frameon=False, ncols=2)
     tidy(axes, t)
     return figure
@@ -139,16 +139,21 @@ def _coefficient_axes(axes, block, values, covariance, result) -> None:
     axes.spines[["top", "right"]].set_visible(False)
 
 
-def _title(result) -> str:
+def _title(outcome) -> str:
+    """The fitted value with its standard error, or what was fitted when there are several."""
     from ..fitting.fragment import decimals
 
-    rows = zip(result.names[:3], result.values, result.standard_errors, strict=False)
-    words = "fitted " + ", ".join(
-        f"{name} = {value:.{decimals(error)}f} (standard error {error:.2g})"
-        for name, value, error in rows
+    result = outcome.result
+    if len(result.names) == 1:
+        error = result.standard_errors[0]
+        value = f"{result.values[0]:.{decimals(error)}f}"
+        return f"fitted {result.names[0]} = {value} {result.units[0]} (standard error {error:.2g})"
+    requests = [b.request for b in outcome.parameters.blocks]
+    words = ", ".join(
+        f"{r.quantity} on {r.group}" + (f" ({r.nodes} nodes)" if r.nodes > 1 else "")
+        for r in requests
     )
-    more = f" (+{len(result.names) - 3} more)" if len(result.names) > 3 else ""
-    return words + more
+    return f"fitted {words}: values in the table"
 
 
 def _ambient(outcome) -> float:

@@ -149,7 +149,18 @@ def _lumped(outcome) -> list:
         "Biot number (V/A)",
         "RMS of the exponential [K]",
     )
-    return [
+    missing = [p for p in outcome.measured.probes if p not in {r.probe for r in outcome.lumped}]
+    note = (
+        [
+            Paragraph(
+                f"No exponential could be fitted to {', '.join(missing)}: the curve does not "
+                "approach the fluid's temperature."
+            )
+        ]
+        if missing
+        else []
+    )
+    return note + [
         Paragraph(
             "The hand method fits T = T∞ + (T₁ − T∞)·exp(−t/τ) to each curve and reads "
             "h = ρcV/(Aτ). At any point the curve decays at the slowest mode's rate, which is "
