@@ -106,3 +106,13 @@ def test_run_then_show_in_words(folder, capsys):
     )
     assert "The run: ran to the end time, 8 min" in lines
     assert summary["stop_time_s"] is None
+
+
+def test_an_existing_folder_is_refused_in_command_line_words(folder, capsys):
+    case, out = folder
+    if not out.exists():
+        assert main(["run", str(case), "--out", str(out), "-q"]) == EXIT_OK
+    capsys.readouterr()
+    assert main(["run", str(case), "--out", str(out)]) != EXIT_OK
+    err = capsys.readouterr().err
+    assert "--force" in err and "force=True" not in err

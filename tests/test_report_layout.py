@@ -171,3 +171,10 @@ def test_the_field_files_are_summarised(folder):
     assert f"{len(frames)} VTK frames, fields/" in text
     assert f"{numbers[0]}–{numbers[-1]}.vtu" in text
     assert frames[1] not in text  # the frames between the first and last are not listed
+
+
+def test_planar_quantities_say_per_metre_of_depth(folder):
+    # A planar section's capacities, conductances and energies are per metre of depth.
+    text = (folder / "report.html").read_text(encoding="utf-8")
+    assert "J/K per metre of depth" in text and "W/K per metre of depth" in text
+    assert "m³ per metre of depth" in text

@@ -39,7 +39,7 @@ def copies_words(copies: int, declared: bool = False) -> str:
     by hand); without it only symmetry cuts count, and a single copy is said to be the
     modelled piece, since a hand-drawn quarter cannot be told from a whole part."""
     if copies > 1:
-        how = "declared in the case" if declared else "symmetry cuts"
+        how = "declared in the case" if declared else "the modelled piece and its mirror images"
         return (
             f"{copies} ({how}); energies and heat flows here are those of the modelled "
             f"piece (× {copies} for the whole part)"
