@@ -127,11 +127,15 @@ class ThermalModel:
         groups = set(self.section.edge_groups)
         boundaries = dict(self.boundaries)
         if self.section.axisymmetric and AXIS_GROUP in groups:
-            axis = boundaries.setdefault(AXIS_GROUP, Insulated("axis"))
-            if axis.flows or axis.holds_temperature:
+            # A model rebuilt from another (dataclasses.replace) has the axis as a tuple.
+            axis_conditions = conditions(
+                boundaries.setdefault(AXIS_GROUP, Insulated("axis")), AXIS_GROUP
+            )
+            if any(c.flows or c.holds_temperature for c in axis_conditions):
                 raise ModelError(
                     f"the axis of an axisymmetric section carries no heat flow; remove the "
-                    f"{type(axis).__name__} condition on {AXIS_GROUP!r}"
+                    f"{', '.join(type(c).__name__ for c in axis_conditions)} condition on "
+                    f"{AXIS_GROUP!r}"
                 )
         named = set(boundaries)
         if named - groups:

@@ -183,3 +183,24 @@ def test_a_system_refuses_conditions_of_another_pattern():
     with pytest.raises(ModelError, match="assemble the new model") as error:
         system.with_boundaries({"symmetry": Insulated("symmetry"), "right": oil, "top": held})
     assert error.value.argument == "boundaries"
+
+
+def test_an_axisymmetric_model_rebuilt_with_replace_keeps_its_axis():
+    """dataclasses.replace passes the checked boundaries (the axis as a tuple of conditions)
+    back in: the model must build again and run the same."""
+    import dataclasses
+
+    from fem import Convection, Material, ThermalModel, solve
+    from geometries import Section
+
+    # A 10 x 20 mm rectangle against the axis (its left edge at r = 0 is the axis group).
+    section = Section(Rectangle(0.01, 0.02), axisymmetric=True).mesh(0.004)
+    air = Convection(heat_transfer_coefficient=50.0, ambient=20.0)
+    groups = [g for g in section.edge_groups if g != "axis"]
+    model = ThermalModel(
+        section, Material(40.0, 7800.0, 460.0), {g: air for g in groups}, initial_temperature=300.0
+    )
+    rebuilt = dataclasses.replace(model, initial_temperature=300.0)
+    first = solve(model, end_time=20.0, time_step=5.0)
+    again = solve(rebuilt, end_time=20.0, time_step=5.0)
+    assert np.array_equal(first.final_state, again.final_state)
