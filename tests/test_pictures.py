@@ -247,3 +247,20 @@ def test_writers_side_by_side_give_the_same_files_and_pass_errors_on(tmp_path, m
     with pytest.raises(RuntimeError, match="drawing failed"):
         write_results(results, tmp_path / "broken", report=False, vtk=False)
     assert not (tmp_path / "broken").exists()
+
+
+def test_the_outputs_table_switches_plots_svg_and_mp4(tmp_path):
+    from advisor.pipeline import run_case, write_results
+
+    text = textwrap.dedent(QUARTER).format(mirrors="")
+    text += "[outputs]\nplots = true\nsvg = true\nanimation = false\nvtk = false\nreport = false\n"
+    results = run_case(case_from_toml(text, tmp_path / "quarter.toml"))
+    files = {f.as_posix() for f in write_results(results, tmp_path / "with-svg")}
+    assert {"plots/histories.png", "plots/histories.svg", "plots/field_snapshots.svg"} <= files
+    assert not any(f.startswith(("fields/", "animation", "report")) for f in files)
+    off = text.replace("plots = true", "plots = false")
+    results = run_case(case_from_toml(off, tmp_path / "quarter.toml"))
+    files = {f.as_posix() for f in write_results(results, tmp_path / "no-plots")}
+    assert files == {"summary.json", "histories.csv", ".soakwise-results"}
+    with pytest.raises(CaseError, match="outputs"):
+        case_from_toml(text + "mp4 = 3\n", tmp_path / "quarter.toml")
