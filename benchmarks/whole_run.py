@@ -5,7 +5,11 @@ solve time the run itself records (``summary.json``: assembly + factorisation + 
 Each starter is written with ``soakwise new`` into a scratch folder and run as
 ``python -m advisor.cli run CASE --out DIR`` from the repository root (this checkout is
 measured), after one untimed warm-up run of the first starter; ``runs`` timed runs each, the
-median kept. Target: wall ≤ solve + 2 s on a warm machine.
+median kept. Target: wall ≤ solve + 2 s on a warm machine. Beside the wall time, the CPU time
+of the command and its processes (user + system, from ``getrusage``): on a loaded machine
+the wall time stretches while the CPU time barely moves, so it tells how far a quiet
+machine's wall time could be from the target (it counts a forked writer's time too, so on
+a quiet machine the wall time can be below it).
 
 Run alone: ``python -m benchmarks.whole_run [--runs N] [--only quench-bar,...]``.
 """
@@ -15,6 +19,7 @@ from __future__ import annotations
 import argparse
 import json
 import os
+import resource
 import statistics
 import subprocess
 import sys
@@ -32,19 +37,27 @@ def _starters() -> list[str]:
     return list(SCENARIOS)
 
 
-def _run_once(case: Path, out: Path) -> tuple[float, float, list[str]]:
-    """Wall time of one ``soakwise run``, the run's solve time (s), and its files."""
+def _cpu_of_children() -> float:
+    usage = resource.getrusage(resource.RUSAGE_CHILDREN)
+    return usage.ru_utime + usage.ru_stime
+
+
+def _run_once(case: Path, out: Path) -> tuple[float, float, list[str], float]:
+    """Wall time of one ``soakwise run``, the run's solve time (s), its files and the CPU
+    time of the command and its processes (s)."""
     command = [sys.executable, "-m", "advisor.cli", "run", str(case), "--out", str(out)]
     command.append("--force")
+    cpu = _cpu_of_children()
     started = time.perf_counter()
     done = subprocess.run(command, cwd=ROOT, capture_output=True, text=True, timeout=900)
     wall = time.perf_counter() - started
+    cpu = _cpu_of_children() - cpu
     if done.returncode != 0:
         raise RuntimeError(f"{' '.join(command)} failed: {done.stderr.strip()[-2000:]}")
     summary = json.loads((out / "summary.json").read_text(encoding="utf-8"))
     stats = _find(summary, "stepping_s")
     solve = stats["assembly_s"] + stats["factorisation_s"] + stats["stepping_s"]
-    return wall, solve, list(summary.get("files", []))
+    return wall, solve, list(summary.get("files", [])), cpu
 
 
 def _find(tree, key: str) -> dict:
@@ -78,17 +91,19 @@ def measure(starters: list[str], runs: int) -> dict:
         _run_once(cases[starters[0]], folder / "warm-up")  # file cache, font cache
         for name, case in cases.items():
             load = os.getloadavg()[0]
-            walls, solves = [], []
+            walls, solves, cpus = [], [], []
             for _ in range(runs):
-                wall, solve, files = _run_once(case, folder / f"{name}-results")
+                wall, solve, files, cpu = _run_once(case, folder / f"{name}-results")
                 walls.append(wall)
                 solves.append(solve)
+                cpus.append(cpu)
             wall, solve = statistics.median(walls), statistics.median(solves)
             results[name] = {
                 "wall_seconds": wall,
                 "solve_seconds": solve,
                 "beyond_solve_seconds": wall - solve,
                 "walls": walls,
+                "cpu_seconds": statistics.median(cpus),
                 "files": len(files),
                 "load_average": [load, os.getloadavg()[0]],
             }
@@ -116,7 +131,8 @@ def whole_run_targets(outcomes, target) -> list[dict]:
                 f"{beyond:.3g} s",
                 beyond <= ALLOWANCE_SECONDS,
                 f"wall {run['wall_seconds']:.3g} s, solve {run['solve_seconds']:.3g} s, "
-                f"{run['files']} files, load {run['load_average'][0]:.1f}",
+                f"CPU {run.get('cpu_seconds', float('nan')):.3g} s, {run['files']} files, "
+                f"load {run['load_average'][0]:.1f}",
             )
         )
     return rows
@@ -138,11 +154,11 @@ def main(argv: list[str] | None = None) -> int:
     starters = [s for s in args.only.split(",") if s] or _starters()
     print(f"load average {os.getloadavg()[0]:.2f}")
     data = measure(starters, args.runs)
-    print(f"{'starter':20s} {'wall s':>8s} {'solve s':>8s} {'beyond':>8s}  files")
+    print(f"{'starter':20s} {'wall s':>8s} {'solve s':>8s} {'beyond':>8s} {'CPU s':>8s}  files")
     for name, run in data.items():
         print(
             f"{name:20s} {run['wall_seconds']:8.2f} {run['solve_seconds']:8.2f} "
-            f"{run['beyond_solve_seconds']:8.2f}  {run['files']}"
+            f"{run['beyond_solve_seconds']:8.2f} {run['cpu_seconds']:8.2f}  {run['files']}"
         )
     print(f"load average {os.getloadavg()[0]:.2f}")
     return 0

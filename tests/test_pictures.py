@@ -221,3 +221,46 @@ def test_an_axisymmetric_section_takes_only_lines_across_its_axis(tmp_path):
     text = text.replace('mesh_size = "2 mm"', 'axisymmetric = true\nmesh_size = "2 mm"')
     with pytest.raises(CaseError, match="whole about its axis"):
         case_from_toml(text, tmp_path / "round.toml")
+
+
+def test_writers_side_by_side_give_the_same_files_and_pass_errors_on(tmp_path, monkeypatch):
+    import advisor.results_folder as results_folder
+    from advisor.pipeline import run_case, write_results
+
+    if not __import__("sys").platform.startswith("linux"):
+        pytest.skip("the writers fork only on Linux; elsewhere they run one after the other")
+    results = run_case(quarter_case("", tmp_path))
+    monkeypatch.setattr(results_folder.os, "getloadavg", lambda: (0.0, 0.0, 0.0))
+    monkeypatch.setattr(results_folder.os, "cpu_count", lambda: 2)
+    forked = write_results(results, tmp_path / "forked", report=False, vtk=False)
+    monkeypatch.setattr(results_folder.os, "getloadavg", lambda: (9.0, 9.0, 9.0))
+    alone = write_results(results, tmp_path / "alone", report=False, vtk=False)
+    assert forked == alone and Path("plots/histories.png") in forked
+    for name in forked:
+        assert (tmp_path / "forked" / name).stat().st_size > 0
+
+    def broken(*args, **kwargs):
+        raise RuntimeError("drawing failed")
+
+    monkeypatch.setattr(results_folder.os, "getloadavg", lambda: (0.0, 0.0, 0.0))
+    monkeypatch.setattr(results_folder, "write_line_plots", broken)
+    with pytest.raises(RuntimeError, match="drawing failed"):
+        write_results(results, tmp_path / "broken", report=False, vtk=False)
+    assert not (tmp_path / "broken").exists()
+
+
+def test_the_outputs_table_switches_plots_svg_and_mp4(tmp_path):
+    from advisor.pipeline import run_case, write_results
+
+    text = textwrap.dedent(QUARTER).format(mirrors="")
+    text += "[outputs]\nplots = true\nsvg = true\nanimation = false\nvtk = false\nreport = false\n"
+    results = run_case(case_from_toml(text, tmp_path / "quarter.toml"))
+    files = {f.as_posix() for f in write_results(results, tmp_path / "with-svg")}
+    assert {"plots/histories.png", "plots/histories.svg", "plots/field_snapshots.svg"} <= files
+    assert not any(f.startswith(("fields/", "animation", "report")) for f in files)
+    off = text.replace("plots = true", "plots = false")
+    results = run_case(case_from_toml(off, tmp_path / "quarter.toml"))
+    files = {f.as_posix() for f in write_results(results, tmp_path / "no-plots")}
+    assert files == {"summary.json", "histories.csv", ".soakwise-results"}
+    with pytest.raises(CaseError, match="outputs"):
+        case_from_toml(text + "mp4 = 3\n", tmp_path / "quarter.toml")

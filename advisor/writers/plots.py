@@ -20,7 +20,7 @@ from .history_plots import (
     internal_difference_figure,
     lumped_error_figure,
 )
-from .plot_style import FORMATS, save_figure
+from .plot_style import save_figure
 from .process_plots import PROCESS_PLOTS, process_plots
 
 # The plots :func:`write_plots` writes: file stem -> (title, what it shows). The report uses
@@ -65,7 +65,7 @@ BUILDERS = {
 def write_plots(
     assessment: Assessment,
     folder: Path,
-    formats: Sequence[str] = FORMATS,
+    formats: Sequence[str] = ("png",),
     mirrors: Sequence[Mirror] = (),
 ) -> list[Path]:
     """Write every plot of :data:`PLOTS` into ``folder`` in each of ``formats``, then the
@@ -78,7 +78,7 @@ def write_plots(
 
 
 def write_line_plots(
-    assessment: Assessment, folder: Path, formats: Sequence[str] = FORMATS
+    assessment: Assessment, folder: Path, formats: Sequence[str] = ("png",)
 ) -> list[Path]:
     """Write the plots matplotlib draws (every plot but the field snapshots, and the process
     plots); return their paths."""
