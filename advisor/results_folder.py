@@ -161,8 +161,9 @@ def _optional(wanted: bool | None, available: bool, what: str, extra: str, notes
         return available
     if wanted and not available:
         raise AdvisorError(
-            f'{what} needs the {extra!r} extra (pip install "soakwise[{extra}]"); '
-            f"pass {what}=None to write it only when available, or False to skip it"
+            f'{what} needs the {extra!r} extra (pip install "soakwise[{extra}]"), or turn it '
+            f"off: [outputs] {extra} = false in a case file ({extra}=False in write_results, or "
+            "None to write it only when the extra is there)"
         )
     return bool(wanted)
 

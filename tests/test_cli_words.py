@@ -116,3 +116,21 @@ def test_an_existing_folder_is_refused_in_command_line_words(folder, capsys):
     assert main(["run", str(case), "--out", str(out)]) != EXIT_OK
     err = capsys.readouterr().err
     assert "--force" in err and "force=True" not in err
+
+
+def test_a_skipped_optional_output_is_said_once(folder, tmp_path, capsys, monkeypatch):
+    """An output that needs a missing extra (here XDMF without h5py) is skipped with one
+    note on the terminal, and the closing line does not count it."""
+    import advisor.results_folder
+
+    monkeypatch.setattr(advisor.results_folder, "xdmf_available", lambda: False)
+    case, _ = folder
+    text = case.read_text(encoding="utf-8").replace("vtk = false", "vtk = true")
+    fields_case = tmp_path / "fields.toml"
+    fields_case.write_text(text, encoding="utf-8")
+    out = tmp_path / "fields"
+    assert main(["run", str(fields_case), "--out", str(out)]) == EXIT_OK
+    err = capsys.readouterr().err
+    notes = [line for line in err.splitlines() if line.startswith("note: ")]
+    assert len(notes) == 1 and "xdmf" in notes[0], err
+    assert not (out / "fields" / "temperature.xdmf").exists()
