@@ -144,3 +144,35 @@ def test_the_target_label_names_the_target(stepped):
     peak = stepped.peak_internal_difference_time
     assert any(duration_text(peak) in t for t in texts)
     assert math.isfinite(peak)
+
+
+def test_the_energy_ledger_is_of_the_whole_part():
+    """A quarter of the bar, declared four copies, draws the whole bar's energy: at the end
+    it has given off ρ·c·A·(T_end − T_0) per metre of depth of the full section (the
+    energy balance of the whole bar, computed here from its mean temperature)."""
+    from dataclasses import replace
+
+    from fem import Insulated
+
+    quarter = Rectangle(
+        WIDTH / 2, HEIGHT / 2, edge_names={"left": "symmetry", "bottom": "symmetry"}
+    ).mesh(0.002)
+    quarter = replace(quarter, facts=replace(quarter.facts, symmetry_multiplier=4))
+
+    water = Convection(heat_transfer_coefficient=400.0, ambient=20.0)
+    model = ThermalModel(
+        quarter,
+        Material(CONDUCTIVITY, DENSITY, SPECIFIC_HEAT),
+        boundaries={"symmetry": Insulated("symmetry"), "right": water, "top": water},
+        initial_temperature=500.0,
+    )
+    solution = solve(model, end_time=600.0, time_step=10.0)
+    figure = energy_figure(assess(solution))
+    ledger = figure.axes[0]
+    stored = next(line for line in ledger.get_lines() if line.get_label() == "stored in the part")
+    unit = ledger.get_ylabel()
+    scale = {"kJ": 1e3, "MJ": 1e6, "GJ": 1e9}[unit.split("(")[1].split()[0]]
+    mean_end = solution.mean[-1]
+    whole = DENSITY * SPECIFIC_HEAT * WIDTH * HEIGHT * (mean_end - 500.0)  # J per metre
+    assert stored.get_ydata()[-1] * scale == pytest.approx(whole, rel=1e-6)
+    assert "4 copies" in ledger.get_title(loc="left")

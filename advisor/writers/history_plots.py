@@ -288,13 +288,14 @@ def energy_figure(assessment: Assessment) -> Figure:
     model's stored energy, with the ledger's imbalance below."""
     solution = assessment.solution
     t, _, unit = scaled_times(solution)
-    largest = float(
+    copies = solution.model.section.facts.symmetry_multiplier  # the whole part's energies
+    largest = copies * float(
         max(np.max(np.abs(solution.stored_energy)), np.max(np.abs(solution.absorbed_heat)), 1.0)
     )
     figure = new_figure(8.0, 5.2)
     top, bottom = figure.subplots(2, 1, sharex=True, height_ratios=(2.2, 1.0))
-    _ledger_axes(top, assessment, t, largest)
-    imbalance = (solution.stored_energy - solution.absorbed_heat) / largest
+    _ledger_axes(top, assessment, t, largest, copies)
+    imbalance = copies * (solution.stored_energy - solution.absorbed_heat) / largest
     bottom.plot(t, imbalance, color=INK, lw=1.2)
     bottom.set_ylabel("imbalance\n(share of largest)")
     bottom.set_xlabel(f"time ({unit})")
@@ -317,12 +318,14 @@ def energy_figure(assessment: Assessment) -> Figure:
     return figure
 
 
-def _ledger_axes(axes, assessment: Assessment, t: np.ndarray, largest: float) -> None:
-    """Stored energy, heat taken in and the classical lumped model's stored energy, in the
-    unit :func:`energy_axis` picks for ``largest`` J."""
+def _ledger_axes(axes, assessment: Assessment, t: np.ndarray, largest: float, copies: int) -> None:
+    """Stored energy, heat taken in and the classical lumped model's stored energy of the
+    whole part (``copies`` of the modelled piece), in the unit :func:`energy_axis` picks for
+    ``largest`` J."""
     solution = assessment.solution
     per_depth = not solution.model.section.axisymmetric
     energy_scale, energy_unit = energy_axis(largest, per_depth)
+    energy_scale /= copies
     axes.plot(
         t, solution.stored_energy / energy_scale, color=INK, lw=2.0, label="stored in the part"
     )
@@ -346,4 +349,5 @@ def _ledger_axes(axes, assessment: Assessment, t: np.ndarray, largest: float) ->
     axes.set_ylabel(f"energy since the start\n({energy_unit})")  # two lines: per depth is long
     axes.legend(fontsize=8, frameon=False)
     sign = "positive: heat taken up" if assessment.heating else "negative: heat given off"
-    axes.set_title(f"Energy ledger ({sign})", fontsize=10, loc="left")
+    whole = f", whole part: {copies} copies of the modelled piece" if copies > 1 else ""
+    axes.set_title(f"Energy ledger ({sign}{whole})", fontsize=10, loc="left")

@@ -41,8 +41,9 @@ def copies_words(copies: int, declared: bool = False) -> str:
     if copies > 1:
         how = "declared in the case" if declared else "the modelled piece and its mirror images"
         return (
-            f"{copies} ({how}); energies and heat flows here are those of the modelled "
-            f"piece (× {copies} for the whole part)"
+            f"{copies} ({how}); the energy plot is of the whole part, while the capacities, "
+            f"conductances and heat flows in the tables are those of the modelled piece "
+            f"(× {copies} for the whole part)"
         )
     return "1 as modelled: energies and heat flows here are those of the modelled piece"
 
