@@ -23,6 +23,7 @@ from skfem import Basis, asm
 from . import forms
 from .errors import ModelError
 from .model import ThermalModel
+from .nonlinear_assembly import RegionProducts
 from .quadrature import EdgeTerms, QuadratureOperator, remembered
 
 ENTHALPY_REFERENCE = 0.0  # °C: H(T) = ∫ρc dT from here; differences are all that matter
@@ -165,11 +166,13 @@ class ConductionSystem:
 
     # -- the full residual pieces -----------------------------------------------------------
     @cached_property
-    def quadrature(self) -> dict[str, QuadratureOperator]:
-        """The gather to the quadrature points of each region whose k or ρc depends on
-        temperature (built on first use: only nonlinear runs need them)."""
+    def products(self) -> dict[str, RegionProducts]:
+        """The unit matrices of each region whose k or ρc depends on temperature, for its
+        terms by product approximation (built on first use: only nonlinear runs need them)."""
         return {
-            region: QuadratureOperator(basis, self.axisymmetric, gradients=True)
+            region: RegionProducts(
+                basis, self.axisymmetric, self.model.materials[region], ENTHALPY_REFERENCE
+            )
             for region, basis in self.region_bases.items()
             if not self.model.materials[region].is_constant
         }
@@ -207,10 +210,7 @@ class ConductionSystem:
 
     def _stored(self, temperature: np.ndarray) -> np.ndarray:
         total = self._constant_parts[1] @ temperature
-        for region, operator in self.quadrature.items():
-            material = self.model.materials[region]
-            if material.constant_capacity:
-                continue
+        for operator, material in self._storing:
             t = operator.interpolate(temperature)
             total += operator.integrate(material.enthalpy(t, ENTHALPY_REFERENCE))
         return total
@@ -220,12 +220,20 @@ class ConductionSystem:
         if self._constant_capacity:
             return self.capacity
         total = self._constant_parts[1]
-        for region, operator in self.quadrature.items():
-            material = self.model.materials[region]
-            if not material.constant_capacity:
-                t = operator.interpolate(temperature)
-                total = total + operator.mass(material.heat_capacity_at(t))
+        for operator, material in self._storing:
+            t = operator.interpolate(temperature)
+            total = total + operator.mass(material.heat_capacity_at(t))
         return total.tocsr()
+
+    @cached_property
+    def _storing(self) -> tuple[tuple[QuadratureOperator, object], ...]:
+        """(gather to the quadrature points, material) of each region whose ρc depends on
+        temperature: its stored heat is ∫ H(T) φ_i dV with H at the quadrature points."""
+        return tuple(
+            (QuadratureOperator(basis, self.axisymmetric), self.model.materials[region])
+            for region, basis in self.region_bases.items()
+            if not self.model.materials[region].constant_capacity
+        )
 
     def net_outflow(self, temperature: np.ndarray, time: float) -> np.ndarray:
         """G(T, t): heat leaving each node (W), conduction included."""
@@ -241,18 +249,12 @@ class ConductionSystem:
 
     def outflow_tangent(self, temperature: np.ndarray, time: float) -> sp.csr_matrix:
         """dG/dT (W/K)."""
-        if self._constant_conductivity:
-            total = self.exchange_operator(time)
-        else:
-            total = self.exchange_operator(time) - self.stiffness + self._constant_parts[0]
-            for region, operator in self.quadrature.items():
-                material = self.model.materials[region]
-                if isinstance(material.conductivity, float):
-                    continue
-                t = operator.interpolate(temperature)
-                total = total + operator.conduction_tangent(
-                    material.conductivity_at(t), material.conductivity_slope(t), temperature
-                )
+        total = self.exchange_operator(time)
+        if not self._constant_conductivity:
+            total = total - self.stiffness + self._constant_parts[0]
+            for products in self.products.values():
+                if products.varying_conductivity:
+                    total = total + products.conduction_tangent(temperature)
         for edge, condition in self.flowing():
             tangent = condition.outflow_tangent(edge, temperature, time)
             if tangent is not None:
@@ -266,13 +268,9 @@ class ConductionSystem:
 
     def _conduction_of(self, temperature: np.ndarray) -> np.ndarray:
         total = self._constant_parts[0] @ temperature
-        for region, operator in self.quadrature.items():
-            material = self.model.materials[region]
-            if isinstance(material.conductivity, float):
-                continue
-            t = operator.interpolate(temperature)
-            conductivity = material.conductivity_at(t)
-            total += operator.conduction(conductivity, temperature)
+        for products in self.products.values():
+            if products.varying_conductivity:
+                total += products.conduction(temperature)
         return total
 
     # -- what the histories report ----------------------------------------------------------
