@@ -1,11 +1,18 @@
 """One step of a multistep formula for a nonlinear model, by damped simplified Newton.
 
 The step's residual is a0·C(T1)/h + Σ a_j·C(T_j)/h + β·G(T1, t1) + (1 − β)·G(T0, t0). The
-factorised tangent is kept across iterations and steps (of the same size and formula) while it
-still shrinks the change by ``TANGENT_RATE`` or better and the iterations it would still need
-cost less than a new factorisation (at the run's measured prices); otherwise it is
-refactorised at the current iterate. A step then costs a few solves instead of a
-factorisation per iteration.
+factorised tangent is kept across iterations and steps (of the same size and formula), and the
+iterations on it are accelerated by Anderson's mixing (:mod:`fem.nonlinear_acceleration`). A
+kept tangent is given ``GRACE`` iterations in a step (unless it makes the change grow); after
+that it is refactorised at the current iterate when it shrinks the change by less than
+``TANGENT_RATE`` or when the iterations it would still need cost more than a factorisation at
+the run's measured prices. A step then costs a few solves instead of a factorisation per
+iteration.
+
+A step has converged when the change is below ``newton_tolerance`` or, at the rate the changes
+shrink, the changes still to come are (Hairer & Wanner's test), and the heat the residual
+leaves unbalanced is within ``BALANCE_SHARE`` of the tolerance times the part's heat capacity,
+so that an early stop cannot spoil the run's energy balance.
 
 Each update is damped by a line search on the residual's norm (Armijo's test, step lengths
 halved): a full update that does not lower the residual is first retried with a fresh tangent,
@@ -150,8 +157,9 @@ class NewtonStep:
                 r = residual(u)
                 if self._balanced(r, formula, step):
                     break
+                stagnant = largest > TANGENT_RATE * previous  # (the kept tangent's fault)
                 norm, previous, fresh, kept = float(np.linalg.norm(r[free])), largest, False, 0
-                if largest <= controls.newton_tolerance:  # the kept tangent has stagnated
+                if stagnant:
                     self._factor(u, formula, step, t1, key)
                     self.mixing.reset()
                     fresh = True

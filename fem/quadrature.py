@@ -4,14 +4,14 @@ equations that change with temperature; the edge terms the boundary conditions u
 scikit-fem's ``Basis.interpolate`` recomputes ``np.unique`` over every element's degrees of
 freedom on each call, and ``asm`` rebuilds its index arrays on each call; a nonlinear step
 interpolates and assembles a few times per iteration. Here the shape functions at the
-quadrature points become sparse matrices once: V (values) and G_x, G_y (gradients), rows one
+quadrature points become sparse matrices once: V (values), rows one
 per quadrature point, with w the quadrature weights times the measure (2πr for axisymmetric
 sections). Then, exactly as the forms of :mod:`fem.forms` integrate,
 
     ∫ f φ_i dV = Vᵀ(w·f),   ∫ c φ_j φ_i dV = Vᵀ diag(w·c) V,
-    ∫ k ∇T·∇φ_i dV = Σ_d G_dᵀ(w·k·G_d T),
 
 each a sparse product; the same quadrature rule as ``asm``, so results agree to round-off.
+(Conduction with k(T) goes by product approximation instead: :mod:`fem.nonlinear_assembly`.)
 """
 
 from __future__ import annotations
@@ -36,11 +36,9 @@ class QuadratureOperator:
     basis : skfem.CellBasis or skfem.FacetBasis
     axisymmetric : bool
         Weight by 2πr (r = x) for a section revolved about x = 0.
-    gradients : bool
-        Also build the gradient gathers (cells only).
     """
 
-    def __init__(self, basis, axisymmetric: bool, gradients: bool = False):
+    def __init__(self, basis, axisymmetric: bool):
         dofs = basis.element_dofs  # (local shape function, element)
         elements, points = basis.dx.shape
         self.shape = (elements, points)
@@ -62,35 +60,6 @@ class QuadratureOperator:
         if axisymmetric:
             weights = weights * 2.0 * np.pi * np.asarray(basis.global_coordinates())[0]
         self.weights = weights.ravel()
-        if gradients:
-            self._gradient_gathers(basis, gather)
-
-    def _gradient_gathers(self, basis, gather) -> None:
-        """∂/∂x and ∂/∂y stacked in one matrix: at every quadrature point, or once per element
-        where the gradients are constant in it (P1 on straight triangles), which cuts a
-        conduction residual's products by the number of points."""
-        elements, points = self.shape
-        fields = [np.asarray(basis.basis[i][0].grad) for i in range(basis.Nbfun)]
-        self._grads = np.array(fields)  # (shape function, direction, element, point)
-        scale = max(float(np.abs(f).max()) for f in fields)
-        self.per_element = points > 1 and all(
-            float(np.ptp(f, axis=-1).max()) <= 1e-12 * scale for f in fields
-        )
-        if self.per_element:
-            dofs = basis.element_dofs
-            rows = np.tile(np.arange(elements), basis.Nbfun)
-            cols = np.concatenate([dofs[i] for i in range(basis.Nbfun)])
-            parts = [
-                sp.csr_matrix(
-                    (np.concatenate([f[d, :, 0] for f in fields]), (rows, cols)),
-                    shape=(elements, basis.N),
-                )
-                for d in range(2)
-            ]
-        else:
-            parts = [gather(lambda field, d=d: field.grad[d]) for d in range(2)]
-        self.gradient = sp.vstack(parts).tocsr()
-        self.gradient_transposed = self.gradient.T.tocsr()
 
     def interpolate(self, field: np.ndarray) -> np.ndarray:
         """The nodal ``field`` at the quadrature points, flat (element-major)."""
@@ -132,30 +101,6 @@ class QuadratureOperator:
         weighted = (self.weights * np.ravel(coefficient)).reshape(self.shape)
         phi = self._phi
         return self._assembled(np.einsum("iep,jep,ep->eij", phi, phi, weighted, optimize=True))
-
-    def _weighted(self, conductivity: np.ndarray) -> np.ndarray:
-        """w·k at each row of the stacked gradient (per element: summed over its points)."""
-        weighted = self.weights * conductivity
-        if self.per_element:  # a product, not .sum(axis=1): numpy's short-axis sums are slow
-            weighted = weighted.reshape(self.shape) @ np.ones(self.shape[1])
-        return np.concatenate((weighted, weighted))
-
-    def conduction(self, conductivity: np.ndarray, field: np.ndarray) -> np.ndarray:
-        """∫ k ∇T·∇φ_i for ``conductivity`` k at the quadrature points and nodal ``field``."""
-        return self.gradient_transposed @ (self._weighted(conductivity) * (self.gradient @ field))
-
-    def conduction_tangent(
-        self, conductivity: np.ndarray, slope: np.ndarray, field: np.ndarray
-    ) -> sp.csr_matrix:
-        """∫ (k ∇δ + k'(T) δ ∇T)·∇φ_i: the derivative of :meth:`conduction` for k(T)."""
-        grads, phi = self._grads, self._phi
-        conducting = (self.weights * conductivity).reshape(self.shape)
-        entries = np.einsum("idep,jdep,ep->eij", grads, grads, conducting, optimize=True)
-        gradient = np.einsum("idep,ie->dep", grads, field[self._dofs], optimize=True)  # ∇T
-        along = np.einsum("idep,dep->iep", grads, gradient, optimize=True)  # ∇φ_i·∇T
-        sloping = (self.weights * slope).reshape(self.shape)
-        entries += np.einsum("iep,jep,ep->eij", along, phi, sloping, optimize=True)
-        return self._assembled(entries)
 
 
 def remembered(system, name: str, temperature: np.ndarray, compute) -> np.ndarray:
