@@ -80,6 +80,7 @@ class NewtonStep:
         )
         self.tangent = None  # (key, factor) of the tangent kept for simplified Newton
         self.mixing = AndersonMixing()
+        self.rate: float | None = None  # the kept tangent's last rate of convergence
 
     def solve(
         self,
@@ -127,11 +128,12 @@ class NewtonStep:
             system.outflow_tangent(u, t1 - 1e-9 * step)
         )
         self.tangent = (key, self.run.algebra.factor(jacobian, self.symmetric))
+        self.rate = None  # not known for the new tangent
 
     def _iterate(self, u, residual, formula: StepFormula, step: float, t1: float) -> None:
         """Damped, accelerated simplified Newton iterations on the free degrees of freedom of
-        ``u`` (in place), until the change left is below the tolerance (the energy balance of
-        the step is then closed to the tolerance's share)."""
+        ``u`` (in place), until the change left is below the tolerance and the step's heat
+        balance closes."""
         controls, cost = self.run.controls, self.run.cost
         free = self.run.system.free_dofs
         started, factoring = clock.perf_counter(), cost.factorisation_seconds
@@ -145,17 +147,21 @@ class NewtonStep:
         norm = float(np.linalg.norm(r[free]))
         largest = math.inf
         stalled = iteration = kept = 0  # kept: iterations on the tangent since it was refreshed
+        tolerance = controls.newton_tolerance
         while iteration < controls.max_newton_iterations:
             iteration += 1
             change = self.tangent[1].solve(-r[free])
             largest = float(np.abs(change).max(initial=0.0))
-            if largest <= controls.newton_tolerance or self._converging(
-                largest, previous, controls.newton_tolerance
+            if not math.isfinite(previous) and self.rate:
+                previous = largest / self.rate  # a step's first change: the last step's rate
+            if largest <= tolerance or self._converging(
+                largest, previous, tolerance
             ):  # converged, if the step's heat balance closes too
                 self.mixing.update(u[free], change)
                 u[free] += change
                 r = residual(u)
                 if self._balanced(r, formula, step):
+                    self.rate = largest / previous if math.isfinite(previous) else None
                     break
                 stagnant = largest > TANGENT_RATE * previous  # (the kept tangent's fault)
                 norm, previous, fresh, kept = float(np.linalg.norm(r[free])), largest, False, 0
@@ -164,7 +170,7 @@ class NewtonStep:
                     self.mixing.reset()
                     fresh = True
                 continue
-            if not fresh and self._stale(largest, previous, controls.newton_tolerance, kept):
+            if not fresh and self._stale(largest, previous, tolerance, kept):
                 change, largest = self._refresh(u, r, formula, step, t1, key)
                 fresh, kept = True, 0
             direction = self.mixing.update(u[free], change)
