@@ -41,7 +41,7 @@ SUFFICIENT_DECREASE = 1e-4  # Armijo: the residual norm must fall by this fracti
 SHORTEST_UPDATE = 1.0 / 64  # the shortest damped update, as a fraction of Newton's
 # Updates this short, this many times running, mean the iterations are stuck (a kink in a
 # table they circle around): the step is given up early and retried smaller.
-STALLED_LENGTH, STALLED_ITERATIONS = 1.0 / 8, 4
+STALLED_LENGTH, STALLED_ITERATIONS = 1.0 / 8, 3
 
 
 class NewtonStepError(SolverError):
