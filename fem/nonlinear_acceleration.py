@@ -30,23 +30,25 @@ class AndersonMixing:
 
     def reset(self) -> None:
         """Forget the history (the tangent that defines the updates changed)."""
-        self._iterates: list[np.ndarray] = []
-        self._updates: list[np.ndarray] = []
+        self._last: tuple[np.ndarray, np.ndarray] | None = None
+        self._steps: list[np.ndarray] = []  # ΔU columns, oldest first
+        self._differences: list[np.ndarray] = []  # ΔF columns
 
     def update(self, iterate: np.ndarray, update: np.ndarray) -> np.ndarray:
         """The mixed change to add to ``iterate`` (K), given its simplified-Newton ``update``
         (K); the plain update while fewer than two iterates are known."""
-        self._iterates.append(iterate.copy())
-        self._updates.append(update.copy())
-        if len(self._iterates) > self.depth + 1:
-            self._iterates.pop(0)
-            self._updates.pop(0)
-        if len(self._iterates) < 2:
+        if self._last is not None:
+            self._steps.append(iterate - self._last[0])
+            self._differences.append(update - self._last[1])
+            if len(self._steps) > self.depth:
+                self._steps.pop(0)
+                self._differences.pop(0)
+        self._last = (iterate.copy(), update.copy())
+        if not self._steps:
             return update
-        differences = np.diff(np.array(self._updates), axis=0).T  # ΔF, one column per pair
-        steps = np.diff(np.array(self._iterates), axis=0).T  # ΔU
-        scale = np.abs(differences).max(initial=0.0)
+        differences = np.array(self._differences).T  # ΔF, one column per pair
+        scale = float(np.abs(differences).max(initial=0.0))
         if scale == 0.0:
             return update
         gamma, *_ = np.linalg.lstsq(differences / scale, update / scale, rcond=1e-10)
-        return update - (steps + differences) @ gamma
+        return update - (np.array(self._steps).T + differences) @ gamma
