@@ -80,6 +80,8 @@ class PropertyTable:
     def integral(self, temperature, reference: float = 0.0):
         """∫ value dT from ``reference`` to ``temperature`` (exact for the clamped table)."""
         t = np.asarray(temperature, dtype=float)
+        if np.ndim(reference) == 0:
+            return _clamped_integral(self, t) - _reference_integral(self, float(reference))
         return _clamped_integral(self, t) - _clamped_integral(self, np.asarray(reference))
 
     @property
@@ -88,27 +90,40 @@ class PropertyTable:
 
 
 def _table_arrays(table: PropertyTable):
-    """The table as arrays with the running integral at its points, kept on the table (a
-    nonlinear step integrates it a few times per iteration)."""
+    """The table as arrays with the running integral and the slopes at its points, kept on the
+    table (a nonlinear step integrates it a few times per iteration)."""
     arrays = table.__dict__.get("_arrays")
     if arrays is None:
         tt = np.asarray(table.temperatures)
         vv = np.asarray(table.values)
         cumulative = np.concatenate([[0.0], np.cumsum(0.5 * (vv[1:] + vv[:-1]) * np.diff(tt))])
-        arrays = (tt, vv, cumulative)
+        slopes = np.append(np.diff(vv) / np.diff(tt), 0.0)  # the last: beyond the table
+        arrays = (tt, vv, cumulative, slopes, {})
         object.__setattr__(table, "_arrays", arrays)
     return arrays
 
 
 def _clamped_integral(table: PropertyTable, t: np.ndarray) -> np.ndarray:
     """∫ from the first table temperature to t of the clamped piecewise-linear table: inside
-    it exact, beyond its ends the end value times the distance."""
-    tt, vv, cumulative = _table_arrays(table)
-    tc = np.clip(t, tt[0], tt[-1])
-    i = np.clip(np.searchsorted(tt, tc, side="right") - 1, 0, len(tt) - 2)
-    vc = np.interp(tc, tt, vv)
-    inside = cumulative[i] + 0.5 * (vv[i] + vc) * (tc - tt[i])
-    return inside + vv[0] * np.minimum(t - tt[0], 0.0) + vv[-1] * np.maximum(t - tt[-1], 0.0)
+    it exact, beyond its ends the end value times the distance. (Minimum and maximum rather
+    than np.clip and np.interp: on the few hundred points of a small model a call's overhead
+    is most of its cost.)"""
+    tt, vv, cumulative, slopes, _ = _table_arrays(table)
+    i = np.searchsorted(tt, t, side="right") - 1
+    i = np.minimum(np.maximum(i, 0), len(tt) - 2)
+    inside = np.minimum(np.maximum(t, tt[0]), tt[-1]) - tt[i]
+    below = np.minimum(t - tt[0], 0.0)
+    above = np.maximum(t - tt[-1], 0.0)
+    beyond = vv[0] * below + vv[-1] * above
+    return cumulative[i] + inside * (vv[i] + 0.5 * slopes[i] * inside) + beyond
+
+
+def _reference_integral(table: PropertyTable, reference: float) -> float:
+    """:func:`_clamped_integral` at one reference temperature, remembered on the table."""
+    known = _table_arrays(table)[4]
+    if reference not in known:
+        known[reference] = float(_clamped_integral(table, np.asarray([float(reference)]))[0])
+    return known[reference]
 
 
 Property = float | PropertyTable

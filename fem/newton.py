@@ -1,11 +1,18 @@
 """One step of a multistep formula for a nonlinear model, by damped simplified Newton.
 
 The step's residual is a0·C(T1)/h + Σ a_j·C(T_j)/h + β·G(T1, t1) + (1 − β)·G(T0, t0). The
-factorised tangent is kept across iterations and steps (of the same size and formula) while it
-still shrinks the change by ``TANGENT_RATE`` or better and the iterations it would still need
-cost less than a new factorisation (at the run's measured prices); otherwise it is
-refactorised at the current iterate. A step then costs a few solves instead of a
-factorisation per iteration.
+factorised tangent is kept across iterations and steps (of the same size and formula), and the
+iterations on it are accelerated by Anderson's mixing (:mod:`fem.nonlinear_acceleration`). A
+kept tangent is given ``GRACE`` iterations in a step (unless it makes the change grow); after
+that it is refactorised at the current iterate when it shrinks the change by less than
+``TANGENT_RATE`` or when the iterations it would still need cost more than a factorisation at
+the run's measured prices. A step then costs a few solves instead of a factorisation per
+iteration.
+
+A step has converged when the change is below ``newton_tolerance`` or, at the rate the changes
+shrink, the changes still to come are (Hairer & Wanner's test), and the heat the residual
+leaves unbalanced is within ``BALANCE_SHARE`` of the tolerance times the part's heat capacity,
+so that an early stop cannot spoil the run's energy balance.
 
 Each update is damped by a line search on the residual's norm (Armijo's test, step lengths
 halved): a full update that does not lower the residual is first retried with a fresh tangent,
@@ -23,14 +30,18 @@ import numpy as np
 
 from .errors import SolverError
 from .integrators import StepFormula, StepResult
+from .nonlinear_acceleration import AndersonMixing
 from .stepper import RunContext
 
+BALANCE_SHARE = 1e-3  # an early stop's heat defect per step, in tolerance × heat capacity
+GRACE = 3  # iterations a kept tangent is given in a step before its rate is judged
+DIVERGING = 2.0  # ... unless it grows the change this much
 TANGENT_RATE = 0.5  # a kept Newton tangent must shrink the change at least this much per iteration
 SUFFICIENT_DECREASE = 1e-4  # Armijo: the residual norm must fall by this fraction of the length
 SHORTEST_UPDATE = 1.0 / 64  # the shortest damped update, as a fraction of Newton's
 # Updates this short, this many times running, mean the iterations are stuck (a kink in a
 # table they circle around): the step is given up early and retried smaller.
-STALLED_LENGTH, STALLED_ITERATIONS = 1.0 / 8, 4
+STALLED_LENGTH, STALLED_ITERATIONS = 1.0 / 8, 3
 
 
 class NewtonStepError(SolverError):
@@ -68,6 +79,8 @@ class NewtonStep:
             isinstance(m.conductivity, float) for m in run.system.model.materials.values()
         )
         self.tangent = None  # (key, factor) of the tangent kept for simplified Newton
+        self.mixing = AndersonMixing()
+        self.rate: float | None = None  # the kept tangent's last rate of convergence
 
     def solve(
         self,
@@ -115,53 +128,80 @@ class NewtonStep:
             system.outflow_tangent(u, t1 - 1e-9 * step)
         )
         self.tangent = (key, self.run.algebra.factor(jacobian, self.symmetric))
+        self.rate = None  # not known for the new tangent
 
     def _iterate(self, u, residual, formula: StepFormula, step: float, t1: float) -> None:
-        """Damped Newton iterations on the free degrees of freedom of ``u`` (in place), until
-        the update is below the tolerance (the energy balance of the step is then closed to
-        the tolerance's share)."""
+        """Damped, accelerated simplified Newton iterations on the free degrees of freedom of
+        ``u`` (in place), until the change left is below the tolerance and the step's heat
+        balance closes."""
         controls, cost = self.run.controls, self.run.cost
         free = self.run.system.free_dofs
         started, factoring = clock.perf_counter(), cost.factorisation_seconds
         key = (float(f"{formula.a[0] / step:.12e}"), formula.beta)
         if self.tangent is None or self.tangent[0] != key:
             self._factor(u, formula, step, t1, key)
+        self.mixing.reset()
         fresh = True  # the kept tangent was factorised at the current iterate
         previous = math.inf
         r = residual(u)
         norm = float(np.linalg.norm(r[free]))
         largest = math.inf
-        stalled = iteration = 0
-        for iteration in range(1, controls.max_newton_iterations + 1):
+        stalled = iteration = kept = 0  # kept: iterations on the tangent since it was refreshed
+        tolerance = controls.newton_tolerance
+        while iteration < controls.max_newton_iterations:
+            iteration += 1
             change = self.tangent[1].solve(-r[free])
             largest = float(np.abs(change).max(initial=0.0))
-            if largest <= controls.newton_tolerance:
+            if not math.isfinite(previous) and self.rate:
+                previous = largest / self.rate  # a step's first change: the last step's rate
+            if largest <= tolerance or self._converging(
+                largest, previous, tolerance
+            ):  # converged, if the step's heat balance closes too
+                self.mixing.update(u[free], change)
                 u[free] += change
-                cost.iterated(iteration)
-                spent = clock.perf_counter() - started
-                cost.iteration_seconds += spent - (cost.factorisation_seconds - factoring)
-                return
-            if not fresh and self._stale(largest, previous, controls.newton_tolerance):
-                self._factor(u, formula, step, t1, key)  # the kept tangent has gone stale
-                fresh = True
-                change = self.tangent[1].solve(-r[free])
-                largest = float(np.abs(change).max(initial=0.0))
-            length, trial, trial_norm = self._search(u, change, residual, norm, free)
+                r = residual(u)
+                if self._balanced(r, formula, step):
+                    self.rate = largest / previous if math.isfinite(previous) else None
+                    break
+                stagnant = largest > TANGENT_RATE * previous  # (the kept tangent's fault)
+                norm, previous, fresh, kept = float(np.linalg.norm(r[free])), largest, False, 0
+                if stagnant:
+                    self._factor(u, formula, step, t1, key)
+                    self.mixing.reset()
+                    fresh = True
+                continue
+            if not fresh and self._stale(largest, previous, tolerance, kept):
+                change, largest = self._refresh(u, r, formula, step, t1, key)
+                fresh, kept = True, 0
+            direction = self.mixing.update(u[free], change)
+            length, trial, trial_norm = self._search(u, direction, residual, norm, free)
             if length < 1 and not fresh:  # try the exact tangent before damping
-                self._factor(u, formula, step, t1, key)
-                change = self.tangent[1].solve(-r[free])
-                largest = float(np.abs(change).max(initial=0.0))
-                length, trial, trial_norm = self._search(u, change, residual, norm, free)
+                change, largest = self._refresh(u, r, formula, step, t1, key)
+                fresh, kept = True, 0
+                direction = self.mixing.update(u[free], change)
+                length, trial, trial_norm = self._search(u, direction, residual, norm, free)
             if length < 1:
                 cost.damped_iterations += 1
-            u[free] += length * change
+                self.mixing.reset()  # a shortened update is no pair of the fixed-point map
+            u[free] += length * direction
             r, norm = trial, trial_norm
-            fresh = False
+            fresh, kept = False, kept + 1
             previous = largest
             stalled = stalled + 1 if length <= STALLED_LENGTH else 0
             if stalled >= STALLED_ITERATIONS:
                 break
+        else:
+            self._fail(iteration, r, largest, stalled, step, t1)
+        if stalled >= STALLED_ITERATIONS:
+            self._fail(iteration, r, largest, stalled, step, t1)
         cost.iterated(iteration)
+        spent = clock.perf_counter() - started
+        cost.iteration_seconds += spent - (cost.factorisation_seconds - factoring)
+
+    def _fail(self, iteration: int, r, largest: float, stalled: int, step: float, t1: float):
+        """Raise :class:`NewtonStepError` for a step whose iterations stalled or ran out."""
+        self.run.cost.iterated(iteration)
+        free = self.run.system.free_dofs
         residual_norm = float(np.abs(r[free]).max(initial=0.0))
         how = "stalled after" if stalled >= STALLED_ITERATIONS else "not converged in"
         how = f"{how} {iteration} iterations"
@@ -175,12 +215,41 @@ class NewtonStep:
             how,
         )
 
-    def _stale(self, change: float, previous: float, tolerance: float) -> bool:
+    def _refresh(self, u, r, formula: StepFormula, step: float, t1: float, key):
+        """Refactorise the tangent at ``u`` and return Newton's update there with its largest
+        entry (K); the mixing starts again, since its updates came from the old tangent."""
+        self._factor(u, formula, step, t1, key)
+        self.mixing.reset()
+        change = self.tangent[1].solve(-r[self.run.system.free_dofs])
+        return change, float(np.abs(change).max(initial=0.0))
+
+    @staticmethod
+    def _converging(change: float, previous: float, tolerance: float) -> bool:
+        """Whether the iterate plus ``change`` (K) is within ``tolerance`` of the step's
+        solution by the rate θ shown since the ``previous`` change: the changes still to come,
+        θ/(1 − θ) of this one, are below it (Hairer & Wanner, *Solving Ordinary Differential
+        Equations II*, 2nd ed., §IV.8, from memory)."""
+        if not math.isfinite(previous):
+            return False
+        rate = change / previous
+        return rate < 1 and rate / (1 - rate) * change <= tolerance
+
+    def _balanced(self, r: np.ndarray, formula: StepFormula, step: float) -> bool:
+        """Whether the heat the residual ``r`` (W) leaves unbalanced over the step is within
+        ``BALANCE_SHARE`` of the tolerance times the part's heat capacity: the error an early
+        stop puts into the run's energy balance stays far below its 1e-6 check."""
+        defect = abs(float(r[self.run.system.free_dofs].sum())) * step / formula.a[0]
+        capacity = float(self.run.capacity_columns.sum())
+        return defect <= BALANCE_SHARE * self.run.controls.newton_tolerance * capacity
+
+    def _stale(self, change: float, previous: float, tolerance: float, kept: int) -> bool:
         """Whether to refactorise a kept tangent that shrank the update from ``previous`` to
         ``change`` K: when it shrinks it by less than ``TANGENT_RATE``, or when the iterations
         it would still need (at that rate, to the tolerance) cost more than a factorisation at
         this run's measured prices (a fresh tangent converges in about two)."""
         rate = change / previous
+        if kept < GRACE:
+            return rate > DIVERGING
         if rate > TANGENT_RATE:
             return True
         if change <= tolerance or rate <= 0:

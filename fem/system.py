@@ -24,6 +24,7 @@ from . import forms
 from .errors import ModelError
 from .interfaces import interface_stiffness
 from .model import ThermalModel
+from .nonlinear_assembly import RegionProducts
 from .quadrature import EdgeTerms, QuadratureOperator, remembered
 
 ENTHALPY_REFERENCE = 0.0  # °C: H(T) = ∫ρc dT from here; differences are all that matter
@@ -186,11 +187,13 @@ class ConductionSystem:
 
     # -- the full residual pieces -----------------------------------------------------------
     @cached_property
-    def quadrature(self) -> dict[str, QuadratureOperator]:
-        """The gather to the quadrature points of each region whose k or ρc depends on
-        temperature (built on first use: only nonlinear runs need them)."""
+    def products(self) -> dict[str, RegionProducts]:
+        """The unit matrices of each region whose k or ρc depends on temperature, for its
+        terms by product approximation (built on first use: only nonlinear runs need them)."""
         return {
-            region: QuadratureOperator(basis, self.axisymmetric, gradients=True)
+            region: RegionProducts(
+                basis, self.axisymmetric, self.model.materials[region], ENTHALPY_REFERENCE
+            )
             for region, basis in self.region_bases.items()
             if not self.model.materials[region].is_constant
         }
@@ -225,10 +228,7 @@ class ConductionSystem:
 
     def _stored(self, temperature: np.ndarray) -> np.ndarray:
         total = self._constant_parts[1] @ temperature
-        for region, operator in self.quadrature.items():
-            material = self.model.materials[region]
-            if material.constant_capacity:
-                continue
+        for operator, material in self._storing:
             t = operator.interpolate(temperature)
             total += operator.integrate(material.enthalpy(t, ENTHALPY_REFERENCE))
         return total
@@ -238,12 +238,32 @@ class ConductionSystem:
         if self._constant_capacity:
             return self.capacity
         total = self._constant_parts[1]
-        for region, operator in self.quadrature.items():
-            material = self.model.materials[region]
-            if not material.constant_capacity:
-                t = operator.interpolate(temperature)
-                total = total + operator.mass(material.heat_capacity_at(t))
+        for operator, material in self._storing:
+            t = operator.interpolate(temperature)
+            total = total + operator.mass(material.heat_capacity_at(t))
         return total.tocsr()
+
+    @cached_property
+    def _tensor_conducting(self) -> tuple[tuple[QuadratureOperator, object], ...]:
+        """(gather to the quadrature points, material) of each orthotropic region whose
+        principal conductivities depend on temperature: no Kirchhoff transform serves a
+        tensor, so its conduction is integrated at the quadrature points."""
+        return tuple(
+            (QuadratureOperator(basis, self.axisymmetric, gradients=True), material)
+            for region, basis in self.region_bases.items()
+            if (material := self.model.materials[region]).orthotropic is not None
+            and not isinstance(material.conductivity, float)
+        )
+
+    @cached_property
+    def _storing(self) -> tuple[tuple[QuadratureOperator, object], ...]:
+        """(gather to the quadrature points, material) of each region whose ρc depends on
+        temperature: its stored heat is ∫ H(T) φ_i dV with H at the quadrature points."""
+        return tuple(
+            (QuadratureOperator(basis, self.axisymmetric), self.model.materials[region])
+            for region, basis in self.region_bases.items()
+            if not self.model.materials[region].constant_capacity
+        )
 
     def net_outflow(self, temperature: np.ndarray, time: float) -> np.ndarray:
         """G(T, t): heat leaving each node (W), conduction included."""
@@ -259,14 +279,13 @@ class ConductionSystem:
 
     def outflow_tangent(self, temperature: np.ndarray, time: float) -> sp.csr_matrix:
         """dG/dT (W/K)."""
-        if self._constant_conductivity:
-            total = self.exchange_operator(time)
-        else:
-            total = self.exchange_operator(time) - self.stiffness + self._constant_parts[0]
-            for region, operator in self.quadrature.items():
-                material = self.model.materials[region]
-                if isinstance(material.conductivity, float):
-                    continue
+        total = self.exchange_operator(time)
+        if not self._constant_conductivity:
+            total = total - self.stiffness + self._constant_parts[0]
+            for products in self.products.values():
+                if products.varying_conductivity:
+                    total = total + products.conduction_tangent(temperature)
+            for operator, material in self._tensor_conducting:
                 t = operator.interpolate(temperature)
                 total = total + operator.conduction_tangent(
                     material.conduction_coefficients(t), material.conduction_slopes(t), temperature
@@ -284,13 +303,12 @@ class ConductionSystem:
 
     def _conduction_of(self, temperature: np.ndarray) -> np.ndarray:
         total = self._constant_parts[0] @ temperature
-        for region, operator in self.quadrature.items():
-            material = self.model.materials[region]
-            if isinstance(material.conductivity, float):
-                continue
+        for products in self.products.values():
+            if products.varying_conductivity:
+                total += products.conduction(temperature)
+        for operator, material in self._tensor_conducting:
             t = operator.interpolate(temperature)
-            conductivity = material.conduction_coefficients(t)  # k, or K's entries
-            total += operator.conduction(conductivity, temperature)
+            total += operator.conduction(material.conduction_coefficients(t), temperature)
         return total
 
     # -- what the histories report ----------------------------------------------------------
