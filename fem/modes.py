@@ -41,12 +41,14 @@ class Eigenpair:
 def slowest_eigenpair(
     system: ConductionSystem, temperature: float, time: float = 0.0
 ) -> Eigenpair:
-    """λ₁ and φ₁ of A·φ = λ·M·φ, the conditions linearised at ``temperature`` °C and
+    """λ₁ and φ₁ of A·φ = λ·M·φ, k, ρc and the conditions linearised at ``temperature`` °C and
     ``time`` s: dense below :data:`DENSE_LIMIT` unknowns, shift-invert Lanczos above."""
     free = system.free_dofs
     operator = system.linearised_operator(temperature, time)
     a = operator[free][:, free].tocsc()
-    m = system.capacity[free][:, free].tocsc()
+    # ρc at the same temperature as k and h (a table's nominal value would mix two states)
+    capacity = system.capacity_tangent(np.full(system.size, float(temperature)))
+    m = capacity[free][:, free].tocsc()
     if len(free) <= DENSE_LIMIT:
         values, vectors = eigh(a.toarray(), m.toarray(), subset_by_index=[0, 0])
     else:

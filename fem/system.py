@@ -165,8 +165,11 @@ class ConductionSystem:
 
     def linearised_operator(self, temperature: float, time: float) -> sp.csr_matrix:
         """K + Σ h_g·H_g with every condition's coefficient linearised at one surface
-        ``temperature`` °C (the secant: see :meth:`fem.conditions.Condition.linearised`), W/K."""
+        ``temperature`` °C (the secant: see :meth:`fem.conditions.Condition.linearised`), W/K;
+        K with k at that temperature too."""
         operator = self.stiffness
+        if not self._constant_conductivity:
+            operator = self.conduction_tangent(np.full(self.size, float(temperature)))
         for edge, condition in self.flowing():
             h = condition.linearised(temperature, time).coefficient
             if h:
@@ -281,19 +284,27 @@ class ConductionSystem:
         """dG/dT (W/K)."""
         total = self.exchange_operator(time)
         if not self._constant_conductivity:
-            total = total - self.stiffness + self._constant_parts[0]
-            for products in self.products.values():
-                if products.varying_conductivity:
-                    total = total + products.conduction_tangent(temperature)
-            for operator, material in self._tensor_conducting:
-                t = operator.interpolate(temperature)
-                total = total + operator.conduction_tangent(
-                    material.conduction_coefficients(t), material.conduction_slopes(t), temperature
-                )
+            total = total - self.stiffness + self.conduction_tangent(temperature)
         for edge, condition in self.flowing():
             tangent = condition.outflow_tangent(edge, temperature, time)
             if tangent is not None:
                 total = total + tangent
+        return total.tocsr()
+
+    def conduction_tangent(self, temperature: np.ndarray) -> sp.csr_matrix:
+        """d(conduction)/dT at the nodal ``temperature`` (W/K): K itself for constant k; at a
+        uniform temperature, K with k taken there."""
+        if self._constant_conductivity:
+            return self.stiffness
+        total = self._constant_parts[0]
+        for products in self.products.values():
+            if products.varying_conductivity:
+                total = total + products.conduction_tangent(temperature)
+        for operator, material in self._tensor_conducting:
+            t = operator.interpolate(temperature)
+            total = total + operator.conduction_tangent(
+                material.conduction_coefficients(t), material.conduction_slopes(t), temperature
+            )
         return total.tocsr()
 
     def _conduction(self, temperature: np.ndarray) -> np.ndarray:

@@ -225,3 +225,18 @@ def test_modal_amplitude_is_the_projection_of_a_nonuniform_start():
     check = quick_check(model, target=AMBIENT + wanted * spread)
     estimate = check.time_to_target["slowest (modal estimate)"]
     assert estimate == pytest.approx(exact, rel=5e-3)
+
+
+def test_the_slowest_mode_takes_its_properties_at_the_start():
+    """At a Biot number near zero the field decays at the lumped rate h·A/(ρc·V) (the lumped
+    limit, Incropera et al. 6th ed. §5.1, from memory), whatever the property tables: the
+    mode must take k and ρc at the same temperature as the lumped rate, not the tables'
+    mid-range values (which here differ by a factor of two)."""
+    from advisor.analysis.modes import slowest_mode
+
+    specific_heat = PropertyTable((0.0, 300.0, 600.0), (400.0, 800.0, 1600.0))
+    conductivity = PropertyTable((0.0, 600.0), (200.0, 100.0))
+    material = Material(conductivity, DENSITY, specific_heat)
+    model = model_of("slab", 1e-4, material=material)
+    mode = slowest_mode(model)
+    assert mode.ratio == pytest.approx(1.0, abs=1e-3)

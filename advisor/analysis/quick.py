@@ -130,7 +130,9 @@ def _modal_time(
     """When the slowest point of a·φ₁·exp(−λ₁t) reaches ``target`` °C, s (None if the mode's
     slowest point starts nearer the equilibrium than the target)."""
     dofs, shape = pair.dofs, pair.shape
-    capacity = system.capacity[dofs][:, dofs]
+    # ρc where the eigenpair was found (the lumped mean initial temperature)
+    capacity = system.capacity_tangent(np.full(system.size, lumped.initial_temperature))
+    capacity = capacity[dofs][:, dofs]
     start = initial_field(system)[dofs] - lumped.equilibrium
     amplitude = (shape @ (capacity @ start)) / (shape @ (capacity @ shape))
     side = math.copysign(1.0, lumped.initial_temperature - lumped.equilibrium)
