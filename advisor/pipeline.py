@@ -148,12 +148,12 @@ def run_model(
     """
     started = time.perf_counter()
     advisor_options = dict(advisor_options or {})
-    check_request(model, **advisor_options)  # a bad target fails before the solve
+    check_request(model, end_time=end_time, **advisor_options)  # fails before the solve
     system = None if system is None else system.for_model(model)
     solution = solve(
         model if system is None else system, end_time, progress=progress, **dict(run_options or {})
     )
-    assessment = assess(solution, system=system, **advisor_options)
+    assessment = assess(solution, system=system, end_time=end_time, **advisor_options)
     return Results(assessment, title, dict(outputs or {}), time.perf_counter() - started)
 
 

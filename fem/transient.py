@@ -25,7 +25,7 @@ from .arguments import (
 )
 from .assembly import assemble, initial_field
 from .errors import ModelError
-from .events import merged_breakpoints
+from .events import merged_breakpoints, stop_reason
 from .fields import FieldSeries
 from .linalg import Cost, LinearAlgebra
 from .methods import stepper_for
@@ -195,6 +195,7 @@ def _run(model, controls: RunControls, fields: FieldSeries, progress) -> Solutio
         checks=checks,
         final_state=march.final_state,
         stop_time=march.stop_time,
+        stop_reason=stop_reason(controls.stop, march.stop_time, controls.end_time),
         **histories,
     )
 

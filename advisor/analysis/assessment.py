@@ -27,6 +27,7 @@ from .lumped import (
 from .modes import slowest_mode
 from .process_readings import check_outputs, freezing_comparison, freezing_product
 from .quench import quench_outputs
+from .stages import Stage, check_stages, judge_stages, run_ending
 from .verdict import QUANTITIES, RATINGS, SUBJECTS, Verdict, judge
 
 __all__ = [
@@ -55,6 +56,8 @@ def assess(
     cooling_range: Sequence[float] | None = None,
     freezing: FreezingProduct | None = None,
     freeze_to: float | None = None,
+    end_time: float | None = None,
+    stages: Sequence[Stage] = (),
 ) -> Assessment:
     """Judge the lumped family against the field of ``solution``.
 
@@ -64,10 +67,12 @@ def assess(
         A finished run.
     target : float, optional
         Temperature in °C the part must reach; strictly between the initial temperature and
-        the ambient.
+        where the part is heading at the end of the run (a furnace ramp's final temperature,
+        not its first).
     tolerance : float
-        Largest acceptable error as a fraction: of the initial driving difference |T0 − T∞|
-        for temperatures and ΔT, of the field's time for time to target; in (0, 1).
+        Largest acceptable error as a fraction: of the driving difference |T0 − T∞| for
+        temperatures and ΔT (T∞ where the conditions at the end of the run drive the part),
+        of the field's time for time to target; in (0, 1).
     quantity : str
         What the verdict is about: ``"slowest"`` (the point farthest from the ambient, the one
         that decides when a part is through), ``"mean"`` (the stored heat),
@@ -89,6 +94,12 @@ def assess(
         from the model's material with latent heat (:meth:`FreezingProduct.of_material`).
     freeze_to : float, optional
         The temperature in °C the slowest point must pass through to count as frozen.
+    end_time : float, optional
+        The run's requested end in s, whose conditions say where the part is heading (default:
+        the last recorded time; give it when a stop condition may end the run early).
+    stages : sequence of Stage
+        A staged target ("reach B by t1, then C within a further t2"), judged stage by stage
+        on the field and the lumped models (``Assessment.stages``).
 
     Returns
     -------
@@ -108,11 +119,13 @@ def assess(
     'adequate'
     """
     model = solution.model
-    lumped = LumpedModel.of(model)
+    times = solution.times
+    horizon = float(times[-1]) if end_time is None else float(end_time)
+    lumped = LumpedModel.of(model, horizon=horizon)
     drive = lumped.initial_temperature - lumped.equilibrium  # > 0 cooling, < 0 heating
     check_arguments(lumped, drive, target, tolerance, quantity)
     check_outputs(drive, cooling_range, freezing, freeze_to)
-    times = solution.times
+    check_stages(stages, tuple(model.probes))
     biot = biot_numbers(
         model,
         end_time=float(times[-1]),
@@ -121,6 +134,7 @@ def assess(
     found = correction_factor(model, biot)
     family = _lumped_family(solution, lumped, found.scale, drive)
     curves = family["model_temperatures"]
+    reaching = _times_to_target(solution, lumped, family, target, drive)
     spread = solution.internal_difference
     peak = int(np.argmax(spread))
     findings = dict(
@@ -137,9 +151,11 @@ def assess(
         peak_internal_difference_time=float(times[peak]),
         energy_error=_energy_error(solution, lumped, curves["classical"], drive),
         target=target,
-        time_to_target=_times_to_target(solution, lumped, family, target, drive),
+        time_to_target=reaching,
         **family,
     )
+    findings["stages"] = judge_stages(solution, stages, drive < 0, curves)
+    findings["ending"] = run_ending(solution, target, reaching.get("slowest"))
     verdict = judge(findings, quantity, tolerance, drive)
     slowest = solution.minimum if drive < 0 else solution.maximum
     quench = None
@@ -166,7 +182,9 @@ def _lumped_family(solution: Solution, lumped: LumpedModel, scale: float, drive:
     """The corrected, fitted and two-node models and every model's curve at the run's
     times."""
     times = solution.times
-    corrected = LumpedModel.of(solution.model, scale=scale, name="corrected")
+    corrected = LumpedModel.of(
+        solution.model, scale=scale, name="corrected", horizon=lumped.horizon
+    )
     slowest = solution.minimum if drive < 0 else solution.maximum
     fitted = (
         fit_exponential(times, solution.mean, lumped.ambient, lumped.initial_temperature)

@@ -14,6 +14,7 @@ from .freezing import FreezingComparison
 from .lumped import FittedExponential, LumpedModel, TwoNodeModel
 from .modes import SlowestMode
 from .quench import QuenchOutputs
+from .stages import StageResult
 from .verdict import Verdict
 
 
@@ -89,6 +90,11 @@ class Assessment:
         time through a range at the slowest point and the probes, when asked for.
     freezing : FreezingComparison or None
         The field's freezing time beside Plank's and Pham's, when a product was given.
+    stages : tuple of StageResult
+        A staged target judged stage by stage (empty when none was given).
+    ending : str
+        How the run ended, in plain words: the stop condition met, or the end time reached,
+        and whether the slowest point reached the target.
     """
 
     solution: Solution
@@ -112,6 +118,8 @@ class Assessment:
     verdict: Verdict = field(repr=False)
     quench: QuenchOutputs | None = field(default=None, repr=False)
     freezing: FreezingComparison | None = field(default=None, repr=False)
+    stages: tuple[StageResult, ...] = field(default=(), repr=False)
+    ending: str = ""
 
     @property
     def heating(self) -> bool:

@@ -59,6 +59,10 @@ def execute(args: argparse.Namespace) -> int:
         position.close()
         raise Interrupted(position.where()) from stop
     report_run(results.assessment, out, files)
+    from ..analysis.stages import ending_lines
+
+    for line in ending_lines(results.assessment.ending, results.assessment.stages):
+        log.info(line)
     return EXIT_OK
 
 

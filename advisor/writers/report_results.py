@@ -34,10 +34,15 @@ def verdict_part(a: Assessment) -> Part:
 
 
 def target_part(a: Assessment) -> Part:
-    """When each estimate and field quantity reaches the target, against the slowest point."""
+    """When each estimate and field quantity reaches the target, against the slowest point;
+    how the run ended; a staged target's stages."""
     if a.target is None:
         return part(
-            "target", (Paragraph("No target temperature was given, so no times to target."),)
+            "target",
+            (
+                Paragraph("No target temperature was given, so no times to target."),
+                *_ending_blocks(a),
+            ),
         )
     reference = a.time_to_target.get("slowest")
     rows = tuple(
@@ -49,8 +54,40 @@ def target_part(a: Assessment) -> Part:
         (
             Paragraph(f"Time for each estimate and field quantity to reach {a.target:g} °C."),
             Table(("estimate or quantity", "time to target", "against the slowest point"), rows),
+            *_ending_blocks(a),
         ),
     )
+
+
+def _ending_blocks(a: Assessment) -> list[Block]:
+    """How the run ended, and each stage of a staged target with its margin."""
+    blocks: list[Block] = [Paragraph(f"How the run ended: {a.ending}.")] if a.ending else []
+    if not a.stages:
+        return blocks
+    rows = tuple(
+        (
+            f"{i + 1}. {r.stage.describe()}",
+            duration(r.reached) if r.reached is not None else "not reached",
+            r.status,
+            _margin(r.margin),
+            ", ".join(
+                f"{name} {duration(t) if t is not None else 'never'}"
+                for name, t in r.lumped.items()
+                if name in ("classical", "corrected")
+            ),
+        )
+        for i, r in enumerate(a.stages)
+    )
+    blocks.append(
+        Table(("stage", "reached (field)", "result", "margin", "lumped estimates reach it"), rows)
+    )
+    return blocks
+
+
+def _margin(margin: float | None) -> str:
+    if margin is None:
+        return "—"
+    return f"{duration(abs(margin))} {'to spare' if margin >= 0 else 'late'}"
 
 
 def _against(time: float | None, reference: float | None, key: str) -> str:

@@ -36,6 +36,9 @@ def summary(assessment: Assessment, files: list[str]) -> dict:
         "peak_internal_difference_K": assessment.peak_internal_difference,
         "peak_internal_difference_time_s": assessment.peak_internal_difference_time,
         "time_to_target_s": assessment.time_to_target,
+        "run_ending": assessment.ending,
+        "stop_reason": solution.stop_reason,
+        "stages": _stages(assessment),
         "verdict": _verdict(assessment),
         "quench": _quench(assessment),
         "freezing": _freezing(assessment),
@@ -124,6 +127,28 @@ def _lumped_errors(assessment: Assessment) -> dict:
         }
         for key, e in assessment.errors.items()
     }
+
+
+def _stages(assessment: Assessment) -> list[dict]:
+    """Each stage of a staged target: its request, the field's arrival, pass or fail, the
+    margin (s to spare; negative: late) and each lumped model's arrival and pass."""
+    return [
+        {
+            "reach_degC": r.stage.reach,
+            "at": r.stage.at,
+            "by_s": r.stage.by,
+            "within_s": r.stage.within,
+            "start_s": r.start,
+            "deadline_s": r.deadline,
+            "reached_s": r.reached,
+            "status": r.status,
+            "passed": r.passed,
+            "margin_s": r.margin,
+            "lumped_reached_s": r.lumped,
+            "lumped_passed": r.lumped_passed,
+        }
+        for r in assessment.stages
+    ]
 
 
 def _verdict(assessment: Assessment) -> dict:
