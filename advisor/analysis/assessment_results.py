@@ -10,6 +10,7 @@ import numpy as np
 from fem import Solution
 
 from .biot import BiotNumber
+from .error_estimate import ErrorEstimate
 from .freezing import FreezingComparison
 from .lumped import FittedExponential, LumpedModel, TwoNodeModel
 from .modes import SlowestMode
@@ -95,6 +96,9 @@ class Assessment:
     ending : str
         How the run ended, in plain words: the stop condition met, or the end time reached,
         and whether the slowest point reached the target.
+    error_estimate : ErrorEstimate or None
+        The run's own estimate of the discretisation error of its key answers, when asked
+        for (:mod:`advisor.analysis.error_estimate`).
     """
 
     solution: Solution
@@ -120,6 +124,7 @@ class Assessment:
     freezing: FreezingComparison | None = field(default=None, repr=False)
     stages: tuple[StageResult, ...] = field(default=(), repr=False)
     ending: str = ""
+    error_estimate: ErrorEstimate | None = field(default=None, repr=False)
 
     @property
     def heating(self) -> bool:

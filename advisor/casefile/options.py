@@ -70,6 +70,8 @@ def read_advisor(root: Table) -> dict:
     options.update(read_quench_keys(advisor))
     probes = root.data.get("probes")
     stages = read_stages(advisor, tuple(probes) if isinstance(probes, dict) else ())
+    if advisor.has("error_estimate"):
+        options["error_estimate"] = advisor.flag("error_estimate", False)
     if stages:
         options["stages"] = stages
     advisor.done()

@@ -313,7 +313,32 @@ def checks_part(a: Assessment) -> Part:
         if checks.warnings
         else Paragraph("Every check passed.")
     )
-    return part("checks", (facts, warnings))
+    return part("checks", (facts, warnings, *_estimate_blocks(a)))
+
+
+VALUE_UNITS = {"time_to_target": "s", "peak_difference": "K"}  # temperatures: °C
+
+
+def _estimate_blocks(a: Assessment) -> list[Block]:
+    """The run's own discretisation-error estimate, each answer ± its estimate."""
+    estimate = a.error_estimate
+    if estimate is None:
+        return []
+    rows = tuple(
+        (
+            quantity_words(name) if name.startswith("probe:") else name.replace("_", " "),
+            f"{e.value:.5g} {VALUE_UNITS[name]}" if name in VALUE_UNITS else "over the run",
+            f"± {e.estimate:.3g} {e.unit}",
+            f"{e.space:+.3g} / {e.time:+.3g} {e.unit}",
+            f"{e.allowed:.3g} {e.unit}" + (" (exceeded)" if e.exceeds else ""),
+        )
+        for name, e in estimate.answers.items()
+    )
+    return [
+        Paragraph(f"Discretisation error of the key answers: {estimate.method}."),
+        Table(("answer", "value", "estimate", "space / time part", "tolerance"), rows),
+        *([Bullets(estimate.warnings, lead="Too large:")] if estimate.warnings else []),
+    ]
 
 
 def _stepping(stats) -> str:

@@ -39,6 +39,7 @@ def summary(assessment: Assessment, files: list[str]) -> dict:
         "run_ending": assessment.ending,
         "stop_reason": solution.stop_reason,
         "stages": _stages(assessment),
+        "error_estimate": _error_estimate(assessment),
         "verdict": _verdict(assessment),
         "quench": _quench(assessment),
         "freezing": _freezing(assessment),
@@ -126,6 +127,34 @@ def _lumped_errors(assessment: Assessment) -> dict:
             "lumped_ahead": e.lumped_ahead,
         }
         for key, e in assessment.errors.items()
+    }
+
+
+def _error_estimate(assessment: Assessment) -> dict | None:
+    """The run's own discretisation-error estimate: each answer ± its estimate, the space
+    and time parts, the tolerance it is held to, and how it was found."""
+    estimate = assessment.error_estimate
+    if estimate is None:
+        return None
+    return {
+        "method": estimate.method,
+        "space_order": estimate.space_order,
+        "time_order": estimate.time_order,
+        "mesh_size_ratio": estimate.size_ratio,
+        "seconds": estimate.seconds,
+        "answers": {
+            name: {
+                "value": a.value,
+                "unit": a.unit,
+                "plus_minus": a.estimate,
+                "space_part": a.space,
+                "time_part": a.time,
+                "allowed": a.allowed,
+                "exceeds_tolerance": a.exceeds,
+            }
+            for name, a in estimate.answers.items()
+        },
+        "warnings": list(estimate.warnings),
     }
 
 
