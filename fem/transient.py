@@ -85,7 +85,7 @@ def solve(
     tolerance : float, optional
         Largest local error per step in K for adaptive steps (with ``"exponential"``: the
         largest error estimate at any node and record time). Default: 1e-4 of the range of
-        initial and boundary temperatures.
+        initial and boundary temperatures (1e-5 for the first-order backward Euler).
     min_step, max_step : float, optional
         Bounds of adaptive steps in s (default 1e-9·end_time and end_time).
     output_interval : float, optional

@@ -40,8 +40,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from fem import Solution, ThermalModel, solve
-from fem.arguments import DEFAULT_RELATIVE_TOLERANCE
-from fem.scales import temperature_span
+from fem.scales import default_tolerance
 
 from ..errors import AdvisorError
 from .lumped_fits import crossing_time
@@ -208,7 +207,7 @@ def _coarser_in_time(solution: Solution, model: ThermalModel, options: dict):
     if solution.stats.adaptive:
         given = options.get("tolerance")
         if given is None:
-            given = max(DEFAULT_RELATIVE_TOLERANCE * temperature_span(model), 1e-6)
+            given = default_tolerance(model, method)
         coarser["tolerance"] = given * 2 ** (q + 1)
     else:
         coarser["time_step"] = 2 * options.get("time_step", solution.stats.time_step)
