@@ -154,7 +154,7 @@ def assess(
         time_to_target=reaching,
         **family,
     )
-    findings["stages"] = judge_stages(solution, stages, drive < 0, curves)
+    findings["stages"] = _stages(solution, stages, drive < 0, lumped, family)
     findings["ending"] = run_ending(solution, target, reaching.get("slowest"))
     verdict = judge(findings, quantity, tolerance, drive)
     slowest = solution.minimum if drive < 0 else solution.maximum
@@ -169,6 +169,17 @@ def assess(
     if product is not None:
         frozen = freezing_comparison(solution, lumped, biot, product, freeze_to, slowest)
     return Assessment(**findings, verdict=verdict, quench=quench, freezing=frozen)
+
+
+def _stages(solution: Solution, stages, heading_up: bool, lumped, family) -> tuple:
+    """The stages judged on the field and on the classical and corrected models, whose
+    curves are read on a grid of 4000 intervals besides the run's times."""
+    if not stages:
+        return ()
+    grid = np.union1d(solution.times, np.linspace(0.0, float(solution.times[-1]), 4001))
+    curves = {"classical": lumped.temperature(grid)}
+    curves["corrected"] = family["corrected"].temperature(grid)
+    return judge_stages(solution, stages, heading_up, curves, grid)
 
 
 def _energy_error(solution: Solution, lumped: LumpedModel, curve, drive: float) -> float:

@@ -156,9 +156,10 @@ def judge_stages(
     stages: Sequence[Stage],
     heading_up: bool,
     curves: Mapping[str, np.ndarray],
+    curve_times: np.ndarray | None = None,
 ) -> tuple[StageResult, ...]:
     """Judge ``stages`` in order on the field of ``solution`` and on each lumped ``curves``
-    (°C at ``solution.times``).
+    (°C at ``curve_times``, by default ``solution.times``).
 
     Parameters
     ----------
@@ -167,14 +168,17 @@ def judge_stages(
     heading_up : bool
         True when the part heats (the slowest point is then the coldest).
     curves : mapping of str to ndarray
-        Each lumped model's temperature at ``solution.times``.
+        Each lumped model's temperature at ``curve_times``.
+    curve_times : ndarray, optional
+        Times in s of ``curves`` (a denser grid reads their arrivals more closely).
     """
     times = solution.times
     field_chain = [
         _history(solution, stage.at, heading_up) for stage in stages
     ]  # each stage may watch another place
     arrivals = _chain(times, field_chain, stages)
-    lumped = {name: _chain(times, [curve] * len(stages), stages) for name, curve in curves.items()}
+    grid = times if curve_times is None else np.asarray(curve_times, float)
+    lumped = {name: _chain(grid, [curve] * len(stages), stages) for name, curve in curves.items()}
     end = float(times[-1])
     results = []
     for i, stage in enumerate(stages):
