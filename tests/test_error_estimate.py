@@ -271,3 +271,18 @@ def test_quadratic_elements_use_order_three_and_say_where_they_fall_short():
     assert "with P2 elements it falls short" in estimate.method
     true = true_errors(solution, WALL_CENTRE, WALL_FACE)["slowest"]
     assert estimate.answers["slowest"].estimate < true  # the shortfall the text owns up to
+
+
+def test_an_estimate_above_the_tolerance_warns():
+    """A wall on a coarse mesh (R/3) held to a tolerance of 1e-4: every answer's estimate is
+    above it and each says so, naming the remedy."""
+    fine, coarse = model(_wall_section(R / 3)), model(_wall_section(2 * R / 3))
+    end = END_FOURIER * R**2 / ALPHA
+    target = AMBIENT + THETA_TARGET * (INITIAL - AMBIENT)
+    estimate = estimate_errors(
+        solve(fine, end), coarse, end_time=end, target=target, tolerance=1e-4, heading=AMBIENT
+    )
+    assert all(a.exceeds for a in estimate.answers.values())
+    assert len(estimate.warnings) == len(estimate.answers)
+    assert all("exceeds the advisor's tolerance" in w for w in estimate.warnings)
+    assert all("refine the mesh" in w for w in estimate.warnings)
