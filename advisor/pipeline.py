@@ -18,6 +18,7 @@ from typing import TYPE_CHECKING
 from fem import ConductionSystem, Solution, ThermalModel, solve
 
 from .analysis.assessment import Assessment, assess, check_request
+from .analysis.error_estimate import coarse_model_of, with_error_estimate
 
 if TYPE_CHECKING:
     from .casefile.case import Case
@@ -101,16 +102,23 @@ def run_case(
     started = time.perf_counter()
     model = case.model()
     mirrors = case.whole_part(model.section)
+    advisor_options = dict(case.advisor_options)
+    coarse = coarse_model_of(case) if advisor_options.pop("error_estimate", False) else None
     results = run_model(
         model,
         case.end_time,
         title=case.title,
         run_options=case.run_options,
-        advisor_options=case.advisor_options,
+        advisor_options=advisor_options,
         outputs=case.outputs,
         progress=progress,
         system=None if system_for is None else system_for(model),
     )
+    if coarse is not None:  # two solves on a mesh twice as coarse
+        assessment = with_error_estimate(
+            results.assessment, coarse, case.run_options, case.end_time
+        )
+        results = replace(results, assessment=assessment)
     return replace(results, wall_seconds=time.perf_counter() - started, mirrors=mirrors)
 
 
@@ -157,12 +165,12 @@ def run_model(
     """
     started = time.perf_counter()
     advisor_options = dict(advisor_options or {})
-    check_request(model, **advisor_options)  # a bad target fails before the solve
+    check_request(model, end_time=end_time, **advisor_options)  # fails before the solve
     system = None if system is None else system.for_model(model)
     solution = solve(
         model if system is None else system, end_time, progress=progress, **dict(run_options or {})
     )
-    assessment = assess(solution, system=system, **advisor_options)
+    assessment = assess(solution, system=system, end_time=end_time, **advisor_options)
     wall = time.perf_counter() - started
     return Results(assessment, title, dict(outputs or {}), wall, tuple(mirrors))
 

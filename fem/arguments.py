@@ -17,7 +17,7 @@ from .errors import ModelError, shown
 from .events import StopWhen
 from .methods import METHODS, stepper_for
 from .model import ThermalModel
-from .scales import surface_diffusion_time, temperature_span
+from .scales import default_tolerance, surface_diffusion_time
 from .stepper import RunControls
 
 DEFAULT_METHOD = "crank-nicolson"
@@ -25,6 +25,7 @@ DEFAULT_NEWTON_TOLERANCE = 1e-6  # K
 DEFAULT_NEWTON_ITERATIONS = 30
 DEFAULT_OUTPUTS = 50
 DEFAULT_RELATIVE_TOLERANCE = 1e-4  # local error, as a fraction of the temperature range
+# (backward Euler's default is tighter: fem.scales.default_tolerance)
 STOP_QUANTITIES = ("mean", "minimum", "maximum")
 
 
@@ -140,7 +141,7 @@ def check_arguments(model: ThermalModel, end_time: float, **options) -> RunContr
     stepper.check_model(model)
     tolerance = checked.tolerance
     if tolerance is None:
-        tolerance = max(DEFAULT_RELATIVE_TOLERANCE * temperature_span(model), 1e-6)
+        tolerance = default_tolerance(model, checked.method)
     end = checked.end_time
     if checked.time_step is not None:
         step = checked.time_step

@@ -95,6 +95,44 @@ class StopWatch:
         return np.sign(self._quantity(field, self.stop.quantity) - self.stop.target) != self.side
 
 
+STOP_QUANTITIES = {
+    "mean": "the mean temperature",
+    "minimum": "the lowest temperature",
+    "maximum": "the highest temperature",
+}
+
+
+def stop_reason(stop: StopWhen | None, stop_time: float | None, end_time: float) -> str:
+    """Why the run ended, in plain words: the stop condition met (and when) or the end time
+    reached (and, with a stop condition, that it was not met).
+
+    Parameters
+    ----------
+    stop : StopWhen or None
+        The run's stop condition.
+    stop_time : float or None
+        When it was met, s (None if it was not, or there was none).
+    end_time : float
+        The requested end time, s.
+
+    Examples
+    --------
+    >>> stop_reason(StopWhen("core", 845.0), 5400.0, 7200.0)
+    "stopped at 5400 s: probe 'core' reached 845 °C"
+    >>> stop_reason(None, None, 7200.0)
+    'end time reached (7200 s)'
+    """
+    if stop is None:
+        return f"end time reached ({end_time:.6g} s)"
+    what = STOP_QUANTITIES.get(stop.quantity, f"probe {stop.quantity!r}")
+    if stop_time is not None:
+        return f"stopped at {stop_time:.6g} s: {what} reached {stop.target:g} °C"
+    return (
+        f"end time reached ({end_time:.6g} s); the stop condition ({what} reaching "
+        f"{stop.target:g} °C) was not met"
+    )
+
+
 def reached(histories: dict, stop: StopWhen) -> bool:
     """Whether the recorded stop quantity ever crossed its target."""
     values = histories["probes"].get(stop.quantity, histories.get(stop.quantity))

@@ -155,6 +155,8 @@ class Solution:
     interface_heat_flow : dict of str to ndarray
         For each contact interface, the heat crossing it from the first region to the second,
         W (planar: W per metre of depth), at each time.
+    stop_reason : str
+        Why the run ended, in plain words (:func:`fem.events.stop_reason`).
     """
 
     model: ThermalModel
@@ -177,6 +179,7 @@ class Solution:
     checks: RunChecks
     interface_jump: dict[str, np.ndarray] = field(default_factory=dict)
     interface_heat_flow: dict[str, np.ndarray] = field(default_factory=dict)
+    stop_reason: str = ""
 
     @property
     def internal_difference(self) -> np.ndarray:

@@ -25,7 +25,7 @@ from .arguments import (
 )
 from .assembly import assemble, initial_field
 from .errors import ModelError
-from .events import merged_breakpoints
+from .events import merged_breakpoints, stop_reason
 from .fields import FieldSeries
 from .linalg import Cost, LinearAlgebra
 from .methods import stepper_for
@@ -85,7 +85,7 @@ def solve(
     tolerance : float, optional
         Largest local error per step in K for adaptive steps (with ``"exponential"``: the
         largest error estimate at any node and record time). Default: 1e-4 of the range of
-        initial and boundary temperatures.
+        initial and boundary temperatures (1e-5 for the first-order backward Euler).
     min_step, max_step : float, optional
         Bounds of adaptive steps in s (default 1e-9·end_time and end_time).
     output_interval : float, optional
@@ -195,6 +195,7 @@ def _run(model, controls: RunControls, fields: FieldSeries, progress) -> Solutio
         checks=checks,
         final_state=march.final_state,
         stop_time=march.stop_time,
+        stop_reason=stop_reason(controls.stop, march.stop_time, controls.end_time),
         **histories,
     )
 

@@ -27,6 +27,7 @@ from .lumped import (
 from .modes import slowest_mode
 from .process_readings import check_outputs, freezing_comparison, freezing_product
 from .quench import quench_outputs
+from .stages import Stage, check_stages, judge_stages, run_ending
 from .verdict import QUANTITIES, RATINGS, SUBJECTS, Verdict, judge
 
 __all__ = [
@@ -56,6 +57,8 @@ def assess(
     freezing: FreezingProduct | None = None,
     freeze_to: float | None = None,
     process: str | None = None,
+    end_time: float | None = None,
+    stages: Sequence[Stage] = (),
 ) -> Assessment:
     """Judge the lumped family against the field of ``solution``.
 
@@ -65,10 +68,12 @@ def assess(
         A finished run.
     target : float, optional
         Temperature in °C the part must reach; strictly between the initial temperature and
-        the ambient.
+        where the part is heading at the end of the run (a furnace ramp's final temperature,
+        not its first).
     tolerance : float
-        Largest acceptable error as a fraction: of the initial driving difference |T0 − T∞|
-        for temperatures and ΔT, of the field's time for time to target; in (0, 1).
+        Largest acceptable error as a fraction: of the driving difference |T0 − T∞| for
+        temperatures and ΔT (T∞ where the conditions at the end of the run drive the part),
+        of the field's time for time to target; in (0, 1).
     quantity : str
         What the verdict is about: ``"slowest"`` (the point farthest from the ambient, the one
         that decides when a part is through), ``"mean"`` (the stored heat),
@@ -93,6 +98,12 @@ def assess(
     process : str, optional
         The kind of process the verdict's words are chosen for: ``"heat-treatment"``,
         ``"food"``, ``"electronics"`` or ``"general"``; inferred from the model when None.
+    end_time : float, optional
+        The run's requested end in s, whose conditions say where the part is heading (default:
+        the last recorded time; give it when a stop condition may end the run early).
+    stages : sequence of Stage
+        A staged target ("reach B by t1, then C within a further t2"), judged stage by stage
+        on the field and the lumped models (``Assessment.stages``).
 
     Returns
     -------
@@ -112,11 +123,13 @@ def assess(
     'adequate'
     """
     model = solution.model
-    lumped = LumpedModel.of(model)
+    times = solution.times
+    horizon = float(times[-1]) if end_time is None else float(end_time)
+    lumped = LumpedModel.of(model, horizon=horizon)
     drive = lumped.initial_temperature - lumped.equilibrium  # > 0 cooling, < 0 heating
     check_arguments(lumped, drive, target, tolerance, quantity)
     check_outputs(drive, cooling_range, freezing, freeze_to)
-    times = solution.times
+    check_stages(stages, tuple(model.probes))
     biot = biot_numbers(
         model,
         end_time=float(times[-1]),
@@ -125,6 +138,7 @@ def assess(
     found = correction_factor(model, biot)
     family = _lumped_family(solution, lumped, found.scale, drive)
     curves = family["model_temperatures"]
+    reaching = _times_to_target(solution, lumped, family, target, drive)
     spread = solution.internal_difference
     peak = int(np.argmax(spread))
     findings = dict(
@@ -141,9 +155,11 @@ def assess(
         peak_internal_difference_time=float(times[peak]),
         energy_error=_energy_error(solution, lumped, curves["classical"], drive),
         target=target,
-        time_to_target=_times_to_target(solution, lumped, family, target, drive),
+        time_to_target=reaching,
         **family,
     )
+    findings["stages"] = _stages(solution, stages, drive < 0, lumped, family)
+    findings["ending"] = run_ending(solution, target, reaching.get("slowest"))
     verdict = judge(findings, quantity, tolerance, drive, process)
     slowest = solution.minimum if drive < 0 else solution.maximum
     quench = None
@@ -159,6 +175,17 @@ def assess(
     return Assessment(**findings, verdict=verdict, quench=quench, freezing=frozen)
 
 
+def _stages(solution: Solution, stages, heading_up: bool, lumped, family) -> tuple:
+    """The stages judged on the field and on the classical and corrected models, whose
+    curves are read on a grid of 4000 intervals besides the run's times."""
+    if not stages:
+        return ()
+    grid = np.union1d(solution.times, np.linspace(0.0, float(solution.times[-1]), 4001))
+    curves = {"classical": lumped.temperature(grid)}
+    curves["corrected"] = family["corrected"].temperature(grid)
+    return judge_stages(solution, stages, heading_up, curves, grid)
+
+
 def _energy_error(solution: Solution, lumped: LumpedModel, curve, drive: float) -> float:
     """Largest |lumped − field stored energy| as a fraction of a full approach's exchange."""
     gap = np.abs(lumped.stored_energy(curve) - solution.stored_energy).max()
@@ -170,7 +197,9 @@ def _lumped_family(solution: Solution, lumped: LumpedModel, scale: float, drive:
     """The corrected, fitted and two-node models and every model's curve at the run's
     times."""
     times = solution.times
-    corrected = LumpedModel.of(solution.model, scale=scale, name="corrected")
+    corrected = LumpedModel.of(
+        solution.model, scale=scale, name="corrected", horizon=lumped.horizon
+    )
     slowest = solution.minimum if drive < 0 else solution.maximum
     fitted = (
         fit_exponential(times, solution.mean, lumped.ambient, lumped.initial_temperature)

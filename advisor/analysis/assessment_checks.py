@@ -12,6 +12,7 @@ from .freezing import FreezingProduct
 from .lumped import LumpedModel
 from .process_readings import check_outputs, freezing_product
 from .process_words import check_process
+from .stages import Stage, check_stages
 from .verdict import QUANTITIES
 
 
@@ -27,14 +28,18 @@ def check_request(
     freezing: FreezingProduct | None = None,
     freeze_to: float | None = None,
     process: str | None = None,
+    end_time: float | None = None,
+    stages: Sequence[Stage] = (),
 ) -> None:
-    """Refuse, before any solve, an assessment that :func:`assess` would refuse."""
+    """Refuse, before any solve, an assessment that :func:`assess` would refuse; ``end_time``
+    (s) says whose conditions give where the part is heading (default: those at t = 0)."""
     check_process(process)
-    lumped = LumpedModel.of(model)
+    lumped = LumpedModel.of(model, horizon=0.0 if end_time is None else float(end_time))
     drive = lumped.initial_temperature - lumped.equilibrium
     check_arguments(lumped, drive, target, tolerance, quantity)
     check_outputs(drive, cooling_range, freezing, freeze_to)
     freezing_product(model, lumped, freezing, freeze_to)
+    check_stages(stages, tuple(model.probes))
 
 
 def check_options(

@@ -10,10 +10,12 @@ import numpy as np
 from fem import Solution
 
 from .biot import BiotNumber
+from .error_estimate import ErrorEstimate
 from .freezing import FreezingComparison
 from .lumped import FittedExponential, LumpedModel, TwoNodeModel
 from .modes import SlowestMode
 from .quench import QuenchOutputs
+from .stages import StageResult
 from .verdict import Verdict
 
 
@@ -89,6 +91,14 @@ class Assessment:
         time through a range at the slowest point and the probes, when asked for.
     freezing : FreezingComparison or None
         The field's freezing time beside Plank's and Pham's, when a product was given.
+    stages : tuple of StageResult
+        A staged target judged stage by stage (empty when none was given).
+    ending : str
+        How the run ended, in plain words: the stop condition met, or the end time reached,
+        and whether the slowest point reached the target.
+    error_estimate : ErrorEstimate or None
+        The run's own estimate of the discretisation error of its key answers, when asked
+        for (:mod:`advisor.analysis.error_estimate`).
     """
 
     solution: Solution
@@ -112,6 +122,9 @@ class Assessment:
     verdict: Verdict = field(repr=False)
     quench: QuenchOutputs | None = field(default=None, repr=False)
     freezing: FreezingComparison | None = field(default=None, repr=False)
+    stages: tuple[StageResult, ...] = field(default=(), repr=False)
+    ending: str = ""
+    error_estimate: ErrorEstimate | None = field(default=None, repr=False)
 
     @property
     def heating(self) -> bool:

@@ -91,10 +91,14 @@ class LumpedModel:
     closed_form : bool
         True when the exponential is exact (constant conditions, no radiation or sources).
     equilibrium : float
-        Where the lumped model heads under the t = 0 conditions, °C: the ambient raised by
-        sources and fluxes, (Σh·A·T∞ + Σq·A + q̇·V) / Σh·A.
+        Where the lumped model heads under the conditions at ``horizon``, °C: the ambient
+        raised by sources and fluxes, (Σh·A·T∞ + Σq·A + q̇·V) / Σh·A. For a furnace ramp it is
+        where the furnace ends up, not where it starts.
     coefficient_scale : float
         Factor on every surface coefficient (1 for the classical model).
+    horizon : float
+        The time in s whose conditions give ``equilibrium`` (the end of the run; 0 unless
+        given).
     """
 
     name: str
@@ -105,6 +109,7 @@ class LumpedModel:
     coefficient_scale: float
     equilibrium: float
     model: ThermalModel = field(repr=False)
+    horizon: float = 0.0
 
     @classmethod
     def of(
@@ -114,8 +119,11 @@ class LumpedModel:
         scale: float = 1.0,
         name: str = "classical",
         initial_temperature: float | None = None,
+        horizon: float = 0.0,
     ) -> LumpedModel:
-        """The lumped model for the same part, materials and conditions as ``model``."""
+        """The lumped model for the same part, materials and conditions as ``model``; its
+        ``equilibrium`` is where the conditions at ``horizon`` s drive it (when they drive it
+        nowhere, as a cycle ending where it began may, those at t = 0)."""
         if not model.exchange_groups:
             raise AdvisorError(
                 "the model has no edge that exchanges heat, so a lumped model has no time "
@@ -134,6 +142,12 @@ class LumpedModel:
             and all(m.is_constant for m in model.materials.values())
             and _linear_enthalpy(model, t0)
         )
+        equilibrium = (weighted + supplied_heat(model, t0, 0.0)) / conductance
+        late, late_weighted = exchange_conductance(model, t0, horizon, scale)
+        if horizon > 0 and late > 0:
+            heading = (late_weighted + supplied_heat(model, t0, horizon)) / late
+            if abs(heading - t0) > 1e-9 * max(abs(t0), 1.0):
+                equilibrium = heading
         return cls(
             name,
             heat_capacity(model, t0) / conductance,
@@ -141,8 +155,9 @@ class LumpedModel:
             float(t0),
             closed,
             scale,
-            (weighted + supplied_heat(model, t0, 0.0)) / conductance,
+            equilibrium,
             model,
+            float(horizon),
         )
 
     @property

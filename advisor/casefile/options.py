@@ -7,11 +7,15 @@ The run options are checked by the solver's own rules before anything is meshed,
 
 from __future__ import annotations
 
+import re
+
 import fem
 from fem import StopWhen
 from fem.model import check_element_order
 
 from ..analysis.assessment import check_options
+from ..analysis.stages import Stage, check_stages
+from ..errors import AdvisorError
 from .conditions import temperature
 from .reader import Table
 from .schema import OUTPUTS, RUN_KEYS, RUN_QUANTITIES
@@ -66,8 +70,36 @@ def read_advisor(root: Table) -> dict:
         options["process"] = advisor.text("process")
     build(advisor, check_options, **options, default="tolerance")
     options.update(read_quench_keys(advisor))
+    probes = root.data.get("probes")
+    stages = read_stages(advisor, tuple(probes) if isinstance(probes, dict) else ())
+    if advisor.has("error_estimate"):
+        options["error_estimate"] = advisor.flag("error_estimate", False)
+    if stages:
+        options["stages"] = stages
     advisor.done()
     return options
+
+
+def read_stages(advisor: Table, probes: tuple[str, ...] = ()) -> tuple[Stage, ...]:
+    """``[[advisor.stages]]``: ``reach = "21 degC"``, one deadline (``by = "2 h"`` from the
+    start of the run, or ``within = "4 h"`` from the stage before) and ``at = "slowest"``
+    (``"mean"`` or the name of one of ``probes``, the case's ``[probes]``)."""
+    stages = []
+    for table in advisor.tables("stages"):
+        stage = Stage(
+            temperature(table, "reach"),
+            table.get("by", "time", None),
+            table.get("within", "time", None),
+            table.text("at", "slowest"),
+        )
+        table.done()
+        try:
+            check_stages([*stages, stage], probes)
+        except AdvisorError as error:  # the message names the stage by its place in the list
+            key = (error.argument or "").rpartition(".")[2]
+            table.fail(key if key in ("by", "within", "at") else "reach", _stage_words(error))
+        stages.append(stage)
+    return tuple(stages)
 
 
 def read_outputs(root: Table) -> dict[str, bool]:
@@ -100,3 +132,8 @@ def read_quench_keys(advisor: Table) -> dict:
             advisor.fail(key, f"expected {wanted}, got {values!r}")
         options[key] = tuple(advisor.quantity(key, v, "temperature") for v in values)
     return options
+
+
+def _stage_words(error: AdvisorError) -> str:
+    """The library's message without the ``stages[i].key`` the key path already names."""
+    return re.sub(r"^stages\[\d+\]\.? ?", "", str(error))

@@ -61,6 +61,13 @@ def execute(args: argparse.Namespace) -> int:
         position.close()
         raise Interrupted(position.where()) from stop
     report_run(results.assessment, out, files)
+    from ..analysis.error_estimate import estimate_lines
+    from ..analysis.stages import ending_lines
+
+    for line in ending_lines(results.assessment.ending, results.assessment.stages):
+        log.info(line)
+    for line in estimate_lines(results.assessment.error_estimate):
+        log.info(line)
     return EXIT_OK
 
 

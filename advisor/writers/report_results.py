@@ -43,10 +43,15 @@ def verdict_part(a: Assessment) -> Part:
 
 
 def target_part(a: Assessment) -> Part:
-    """When each estimate and field quantity reaches the target, against the slowest point."""
+    """When each estimate and field quantity reaches the target, against the slowest point;
+    how the run ended; a staged target's stages."""
     if a.target is None:
         return part(
-            "target", (Paragraph("No target temperature was given, so no times to target."),)
+            "target",
+            (
+                Paragraph("No target temperature was given, so no times to target."),
+                *_ending_blocks(a),
+            ),
         )
     reference = a.time_to_target.get("slowest")
     rows = tuple(
@@ -58,8 +63,40 @@ def target_part(a: Assessment) -> Part:
         (
             Paragraph(f"Time for each estimate and field quantity to reach {a.target:g} °C."),
             Table(("estimate or quantity", "time to target", "against the slowest point"), rows),
+            *_ending_blocks(a),
         ),
     )
+
+
+def _ending_blocks(a: Assessment) -> list[Block]:
+    """How the run ended, and each stage of a staged target with its margin."""
+    blocks: list[Block] = [Paragraph(f"How the run ended: {a.ending}.")] if a.ending else []
+    if not a.stages:
+        return blocks
+    rows = tuple(
+        (
+            f"{i + 1}. {r.stage.describe()}",
+            duration(r.reached) if r.reached is not None else "not reached",
+            r.status,
+            _margin(r.margin),
+            ", ".join(
+                f"{name} {duration(t) if t is not None else 'never'}"
+                for name, t in r.lumped.items()
+                if name in ("classical", "corrected")
+            ),
+        )
+        for i, r in enumerate(a.stages)
+    )
+    blocks.append(
+        Table(("stage", "reached (field)", "result", "margin", "lumped estimates reach it"), rows)
+    )
+    return blocks
+
+
+def _margin(margin: float | None) -> str:
+    if margin is None:
+        return "—"
+    return f"{duration(abs(margin))} {'to spare' if margin >= 0 else 'late'}"
 
 
 def _against(time: float | None, reference: float | None, key: str) -> str:
@@ -335,7 +372,32 @@ def checks_part(a: Assessment) -> Part:
         if checks.warnings
         else Paragraph("Every check passed.")
     )
-    return part("checks", (facts, warnings))
+    return part("checks", (facts, warnings, *_estimate_blocks(a)))
+
+
+VALUE_UNITS = {"time_to_target": "s", "peak_difference": "K"}  # temperatures: °C
+
+
+def _estimate_blocks(a: Assessment) -> list[Block]:
+    """The run's own discretisation-error estimate, each answer ± its estimate."""
+    estimate = a.error_estimate
+    if estimate is None:
+        return []
+    rows = tuple(
+        (
+            quantity_words(name) if name.startswith("probe:") else name.replace("_", " "),
+            f"{e.value:.5g} {VALUE_UNITS[name]}" if name in VALUE_UNITS else "over the run",
+            f"± {e.estimate:.3g} {e.unit}",
+            f"{e.space:+.3g} / {e.time:+.3g} {e.unit}",
+            f"{e.allowed:.3g} {e.unit}" + (" (exceeded)" if e.exceeds else ""),
+        )
+        for name, e in estimate.answers.items()
+    )
+    return [
+        Paragraph(f"Discretisation error of the key answers: {estimate.method}."),
+        Table(("answer", "value", "estimate", "space / time part", "tolerance"), rows),
+        *([Bullets(estimate.warnings, lead="Too large:")] if estimate.warnings else []),
+    ]
 
 
 def _stepping(stats) -> str:

@@ -37,6 +37,10 @@ def summary(assessment: Assessment, files: list[str]) -> dict:
         "peak_internal_difference_time_s": assessment.peak_internal_difference_time,
         "time_to_target_s": assessment.time_to_target,
         "stop_time_s": solution.stop_time,
+        "run_ending": assessment.ending,
+        "stop_reason": solution.stop_reason,
+        "stages": _stages(assessment),
+        "error_estimate": _error_estimate(assessment),
         "verdict": _verdict(assessment),
         "quench": _quench(assessment),
         "freezing": _freezing(assessment),
@@ -126,6 +130,56 @@ def _lumped_errors(assessment: Assessment) -> dict:
         }
         for key, e in assessment.errors.items()
     }
+
+
+def _error_estimate(assessment: Assessment) -> dict | None:
+    """The run's own discretisation-error estimate: each answer ± its estimate, the space
+    and time parts, the tolerance it is held to, and how it was found."""
+    estimate = assessment.error_estimate
+    if estimate is None:
+        return None
+    return {
+        "method": estimate.method,
+        "space_order": estimate.space_order,
+        "time_order": estimate.time_order,
+        "mesh_size_ratio": estimate.size_ratio,
+        "seconds": estimate.seconds,
+        "answers": {
+            name: {
+                "value": a.value,
+                "unit": a.unit,
+                "plus_minus": a.estimate,
+                "space_part": a.space,
+                "time_part": a.time,
+                "allowed": a.allowed,
+                "exceeds_tolerance": a.exceeds,
+            }
+            for name, a in estimate.answers.items()
+        },
+        "warnings": list(estimate.warnings),
+    }
+
+
+def _stages(assessment: Assessment) -> list[dict]:
+    """Each stage of a staged target: its request, the field's arrival, pass or fail, the
+    margin (s to spare; negative: late) and each lumped model's arrival and pass."""
+    return [
+        {
+            "reach_degC": r.stage.reach,
+            "at": r.stage.at,
+            "by_s": r.stage.by,
+            "within_s": r.stage.within,
+            "start_s": r.start,
+            "deadline_s": r.deadline,
+            "reached_s": r.reached,
+            "status": r.status,
+            "passed": r.passed,
+            "margin_s": r.margin,
+            "lumped_reached_s": r.lumped,
+            "lumped_passed": r.lumped_passed,
+        }
+        for r in assessment.stages
+    ]
 
 
 def _verdict(assessment: Assessment) -> dict:
