@@ -275,3 +275,18 @@ def test_case_file_stages(tmp_path):
     path.write_text(CASE.replace('within = "1 h"', 'within = "1 h"\nby = "3 h"'), encoding="utf-8")
     with pytest.raises(CaseError, match=r"advisor\.stages\[1\]\.by: needs exactly one deadline"):
         load_case(path)
+
+
+def test_the_quick_check_accepts_a_ramp_target():
+    """The quick check judges the same furnace ramp by where it ends: the soak target above
+    the furnace's first temperature is accepted and the lumped model heads for 860 °C;
+    without the run's end it is refused, as a target beyond the first ambient is."""
+    from advisor import quick_check
+    from advisor.errors import AdvisorError
+
+    furnace = PiecewiseLinear((0.0, RAMP), (FIRST, LAST))
+    model = slab(Convection(heat_transfer_coefficient=H, ambient=furnace), START)
+    check = quick_check(model, target=SOAK, end_time=END)
+    assert check.lumped.equilibrium == pytest.approx(LAST, abs=1e-9)
+    with pytest.raises(AdvisorError):
+        quick_check(model, target=SOAK)

@@ -63,13 +63,19 @@ class QuickCheck:
 
 
 def quick_check(
-    model: ThermalModel, *, target: float | None = None, process: str | None = None
+    model: ThermalModel,
+    *,
+    target: float | None = None,
+    process: str | None = None,
+    end_time: float | None = None,
 ) -> QuickCheck:
     """Judge the lumped estimate from the model alone (no time stepping).
 
     Use a coarse mesh: the Biot numbers and the slowest mode converge fast with the mesh.
     ``process`` chooses the words of the expected direction
-    (:data:`.process_words.PROCESSES`; inferred from the model when None).
+    (:data:`.process_words.PROCESSES`; inferred from the model when None); ``end_time`` (s),
+    the run's end, whose conditions say where the part is heading (a furnace ramp's last
+    temperature; default: the conditions at t = 0).
 
     Examples
     --------
@@ -82,14 +88,15 @@ def quick_check(
     >>> check.time_to_target["classical"] < check.time_to_target["slowest (modal estimate)"]
     True
     """
-    check_request(model, target=target, process=process)
-    lumped = LumpedModel.of(model)
+    check_request(model, target=target, process=process, end_time=end_time)
+    heading = 0.0 if end_time is None else float(end_time)  # where the conditions end
+    lumped = LumpedModel.of(model, horizon=heading)
     drive = lumped.initial_temperature - lumped.equilibrium
     # the surface passes between the initial and the driving temperatures: a coefficient
     # that follows it (radiation, a boiling curve) is sampled over that range
     biot = biot_numbers(model, temperature_range=model.driving_temperatures(0.0))
     _, scale, _ = correction(model, biot)
-    corrected = LumpedModel.of(model, scale=scale, name="corrected")
+    corrected = LumpedModel.of(model, scale=scale, name="corrected", horizon=heading)
     system = assemble(model)
     pair = slowest_eigenpair(system, lumped.initial_temperature, 0.0)  # one solve serves both
     mode = slowest_mode(model, system, pair)

@@ -27,7 +27,12 @@ def execute(args: argparse.Namespace) -> int:
 
     case = load_case(args.case)
     options = case.advisor_options
-    check = quick_check(case.model(), target=options.get("target"), process=options.get("process"))
+    check = quick_check(
+        case.model(),
+        target=options.get("target"),
+        process=options.get("process"),
+        end_time=case.end_time,
+    )
     for line in biot_lines(check.biot):
         log.info(line)
     mode = check.mode
