@@ -46,7 +46,7 @@ def check_run(
     balance = _energy_balance(model, controls, stepper, histories, initial_capacity, warnings)
     excursion = _excursion(model, controls, stepper, histories, warnings)
     lowest, highest = float(histories["minimum"].min()), float(histories["maximum"].max())
-    warnings.extend(run_range_warnings(model.materials, lowest, highest))  # once per run
+    notes = run_range_warnings(model.materials, lowest, highest)  # once per run
     ratio = smallest_step / surface_diffusion_time
     if ratio > 1.0 and startup_steps == 0 and stepper.rings_without_startup:
         warnings.append(
@@ -71,7 +71,7 @@ def check_run(
             f"the stop condition ({stop.quantity} reaching {stop.target:g} degC) was "
             f"not met by end_time = {controls.end_time:g} s"
         )
-    return RunChecks(balance, excursion, ratio, tuple(warnings))
+    return RunChecks(balance, excursion, ratio, tuple(warnings), tuple(notes))
 
 
 def _energy_balance(model, controls, stepper, histories, capacity, warnings) -> float:

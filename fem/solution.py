@@ -102,13 +102,17 @@ class RunChecks:
         heat-exchanging boundary. Large values are fine for smooth fields but can make
         Crank–Nicolson ring without start-up steps.
     warnings : tuple of str
-        Plain-language descriptions of failed checks.
+        Plain-language descriptions of failed checks: the run's own accuracy is in doubt.
+    notes : tuple of str
+        What the run says of its inputs without doubting its accuracy (a library material's
+        data left behind its valid range), once per run.
     """
 
     energy_balance_error: float
     temperature_excursion: float
     step_to_surface_diffusion: float
     warnings: tuple[str, ...]
+    notes: tuple[str, ...] = ()
 
 
 @dataclass(frozen=True)

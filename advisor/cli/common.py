@@ -74,6 +74,8 @@ def report_run(assessment, folder: Path, files: list[Path]) -> None:
     log.info(f"Advice: {verdict.advice}")
     for warning in solution.checks.warnings:
         log.warning(f"check: {warning}")
+    for note in solution.checks.notes:
+        log.info(f"note: {note}")
     for note in getattr(files, "notes", ()):  # an optional output skipped for its extra
         log.info(f"note: {note}")
     log.info(closing_line(folder, files))

@@ -372,7 +372,8 @@ def checks_part(a: Assessment) -> Part:
         if checks.warnings
         else Paragraph("Every check passed.")
     )
-    return part("checks", (facts, warnings, *_estimate_blocks(a)))
+    notes = [Bullets(checks.notes, lead="Notes on the inputs:")] if checks.notes else []
+    return part("checks", (facts, warnings, *notes, *_estimate_blocks(a)))
 
 
 VALUE_UNITS = {"time_to_target": "s", "peak_difference": "K"}  # temperatures: °C

@@ -288,6 +288,7 @@ def _checks(checks: RunChecks) -> dict:
         "temperature_excursion_K": checks.temperature_excursion,
         "step_to_surface_diffusion": checks.step_to_surface_diffusion,
         "warnings": list(checks.warnings),
+        "notes": list(checks.notes),
     }
 
 
