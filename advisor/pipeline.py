@@ -59,6 +59,9 @@ def run_case(
     *,
     progress: Progress | None = None,
     system_for: Callable[[ThermalModel], ConductionSystem] | None = None,
+    checkpoint: Callable | None = None,
+    resume: dict | None = None,
+    before_solve: Callable[[ThermalModel], None] | None = None,
 ) -> Results:
     """Mesh, solve and assess a case file's problem; write nothing.
 
@@ -96,6 +99,8 @@ def run_case(
     """
     started = time.perf_counter()
     model = case.model()
+    if before_solve is not None:
+        before_solve(model)
     results = run_model(
         model,
         case.end_time,
@@ -105,6 +110,8 @@ def run_case(
         outputs=case.outputs,
         progress=progress,
         system=None if system_for is None else system_for(model),
+        checkpoint=checkpoint,
+        resume=resume,
     )
     return replace(results, wall_seconds=time.perf_counter() - started)
 
@@ -119,6 +126,8 @@ def run_model(
     outputs: Mapping[str, bool] | None = None,
     progress: Progress | None = None,
     system: ConductionSystem | None = None,
+    checkpoint: Callable | None = None,
+    resume: dict | None = None,
 ) -> Results:
     """Check the advisor's request, solve and assess a model built in Python; write nothing.
 
@@ -140,6 +149,8 @@ def run_model(
     system : fem.ConductionSystem, optional
         An assembled system whose matrices serve ``model`` (see
         :meth:`fem.ConductionSystem.for_model`); the run then assembles nothing.
+    checkpoint, resume : optional
+        Passed to :func:`fem.solve`: the state offered after each step, and one to continue.
 
     Returns
     -------
@@ -151,7 +162,12 @@ def run_model(
     check_request(model, **advisor_options)  # a bad target fails before the solve
     system = None if system is None else system.for_model(model)
     solution = solve(
-        model if system is None else system, end_time, progress=progress, **dict(run_options or {})
+        model if system is None else system,
+        end_time,
+        progress=progress,
+        checkpoint=checkpoint,
+        resume=resume,
+        **dict(run_options or {}),
     )
     assessment = assess(solution, system=system, **advisor_options)
     return Results(assessment, title, dict(outputs or {}), time.perf_counter() - started)

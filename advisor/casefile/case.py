@@ -68,6 +68,8 @@ class Case:
         Which optional files to write.
     interfaces : dict of str to fem.Interface
         The contact resistances between regions, by name.
+    checkpoint_every : advisor.checkpoint.CheckpointEvery or None
+        How often ``soakwise run`` keeps a checkpoint to resume from; None: never.
     """
 
     path: Path
@@ -86,6 +88,7 @@ class Case:
     advisor_options: dict
     outputs: dict = field(default_factory=dict)
     interfaces: dict = field(default_factory=dict)
+    checkpoint_every: object = None  # advisor.checkpoint.CheckpointEvery, or None for none
 
     def model(self) -> ThermalModel:
         """Mesh the section (or take the imported mesh) and build the thermal model."""
@@ -210,7 +213,9 @@ def _read_case(root: Table, path: Path) -> Case:
     sources = read_sources(root)
     probes = read_probes(root)
     parts = {"materials": materials, "boundaries": boundaries, "sources": sources}
-    end_time, run_options, element_order = read_run(root, {**parts, "probes": probes})
+    end_time, run_options, element_order, checkpoint_every = read_run(
+        root, {**parts, "probes": probes}
+    )
     advisor_options = read_advisor(root)
     outputs = read_outputs(root)
     root.raw("study", None)  # a study's table, read by advisor.studies
@@ -232,4 +237,5 @@ def _read_case(root: Table, path: Path) -> Case:
         advisor_options=advisor_options,
         outputs=outputs,
         interfaces=interfaces,
+        checkpoint_every=checkpoint_every,
     )
