@@ -89,7 +89,8 @@ def solve(
         largest error estimate at any node and record time). Default: 1e-4 of the range of
         initial and boundary temperatures.
     min_step, max_step : float, optional
-        Bounds of adaptive steps in s (default 1e-9·end_time and end_time).
+        Bounds of adaptive steps in s (default: the smaller of 1e-9·end_time and 1e-6 of the
+        surface elements' diffusion time ℓ²/α; and end_time).
     output_interval : float, optional
         Time in s between stored fields (the first at t = 0, the last at ``end_time``).
         Default: ``end_time / 50``.
