@@ -21,6 +21,7 @@ from .conditions import read_boundaries, read_initial, read_probes, read_sources
 from .interfaces import read_interfaces
 from .materials import WHOLE_SECTION, read_materials
 from .options import read_advisor, read_outputs, read_run
+from .reach import check_regions_named, check_stop_reachable
 from .reader import DEEPEST, CaseError, Context, Table, check_tree, echo, nesting_key, shown_path
 from .sections import read_section
 from .validation import LIBRARY_ERRORS
@@ -216,6 +217,11 @@ def _read_case(root: Table, path: Path) -> Case:
     end_time, run_options, element_order, checkpoint_every = read_run(
         root, {**parts, "probes": probes}
     )
+    check_regions_named(root.context, "sources", sources, plan.regions)
+    if isinstance(initial, dict):
+        check_regions_named(root.context, "initial.temperature", initial, plan.regions)
+    stop = run_options.get("stop")
+    check_stop_reachable(root.context, stop, initial, boundaries, sources, end_time)
     advisor_options = read_advisor(root)
     outputs = read_outputs(root)
     root.raw("study", None)  # a study's table, read by advisor.studies
