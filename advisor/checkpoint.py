@@ -33,6 +33,7 @@ from .writers.atomic import atomic_path
 
 FORMAT = 1
 DEFAULT_SECONDS = 30.0  # wall-clock time between checkpoints when a case does not say
+WRITING_SHARE = 10.0  # wall-clock intervals are at least this many times a checkpoint's writing
 
 
 @dataclass(frozen=True)
@@ -109,6 +110,7 @@ class Checkpointer:
         self._monotonic = monotonic
         self._last_wall = 0.0
         self._last_steps: int | None = None
+        self._wait = every.seconds
         self.saved_time: float | None = None
         self.failed = False  # a write failed: no more checkpoints this run
 
@@ -121,9 +123,10 @@ class Checkpointer:
         if self.every.steps is not None:
             due = steps - self._last_steps >= self.every.steps
         else:
-            due = self._monotonic() - self._last_wall >= self.every.seconds
+            due = self._monotonic() - self._last_wall >= self._wait
         if not due:
             return
+        started = self._monotonic()
         try:
             write_checkpoint(self.path, snapshot(), self.fingerprint, time, steps, self.end_time)
         except OSError as error:  # a checkpoint is a safeguard: the run goes on without it
@@ -137,6 +140,9 @@ class Checkpointer:
             return
         self.saved_time = time
         self._last_wall, self._last_steps = self._monotonic(), steps
+        if self.every.seconds is not None:  # a large field series takes time to write:
+            cost = self._last_wall - started  # checkpoints take at most a tenth of the run
+            self._wait = max(self.every.seconds, WRITING_SHARE * cost)
 
 
 def write_checkpoint(

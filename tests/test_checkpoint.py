@@ -217,6 +217,22 @@ def test_checkpoints_are_kept_at_the_interval_and_a_failed_write_warns(tmp_path,
     keeper(100.0, 11, snapshot)  # the end: nothing to resume from there
     assert taken == [30.0, 60.0, 90.0]
 
+    # A checkpoint that takes 5 s to write pushes the next one to 10 × 5 s later.
+    clock = [0.0]
+    every = CheckpointEvery(seconds=30.0)
+    slow = Checkpointer(tmp_path / "w.npz", "x", every, 1e6, lambda: clock[0])
+    written = []
+
+    def slow_snapshot():
+        written.append(clock[0])
+        clock[0] += 5.0  # the writing takes 5 s of wall-clock time
+        return {}
+
+    for second in range(0, 200, 10):
+        clock[0] = max(clock[0], float(second))
+        slow(float(second), second // 10 + 1, slow_snapshot)
+    assert written == [30.0, 90.0, 150.0]
+
     by_steps = Checkpointer(tmp_path / "s.npz", "x", CheckpointEvery(steps=4), 100.0)
     steps_taken = []
     for step in range(1, 13):
