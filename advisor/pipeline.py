@@ -18,6 +18,7 @@ from typing import TYPE_CHECKING
 from fem import ConductionSystem, Solution, ThermalModel, solve
 
 from .analysis.assessment import Assessment, assess, check_request
+from .field_results import FieldResults, no_lumped_reason
 
 if TYPE_CHECKING:
     from .casefile.case import Case
@@ -62,7 +63,8 @@ def run_case(
     checkpoint: Callable | None = None,
     resume: dict | None = None,
     before_solve: Callable[[ThermalModel], None] | None = None,
-) -> Results:
+    field_alone: bool = False,
+) -> Results | FieldResults:
     """Mesh, solve and assess a case file's problem; write nothing.
 
     Parameters
@@ -112,6 +114,7 @@ def run_case(
         system=None if system_for is None else system_for(model),
         checkpoint=checkpoint,
         resume=resume,
+        field_alone=field_alone,
     )
     return replace(results, wall_seconds=time.perf_counter() - started)
 
@@ -128,7 +131,8 @@ def run_model(
     system: ConductionSystem | None = None,
     checkpoint: Callable | None = None,
     resume: dict | None = None,
-) -> Results:
+    field_alone: bool = False,
+) -> Results | FieldResults:
     """Check the advisor's request, solve and assess a model built in Python; write nothing.
 
     Parameters
@@ -151,14 +155,31 @@ def run_model(
         :meth:`fem.ConductionSystem.for_model`); the run then assembles nothing.
     checkpoint, resume : optional
         Passed to :func:`fem.solve`: the state offered after each step, and one to continue.
+    field_alone : bool
+        When no lumped model applies (fixed temperatures or fluxes only), solve anyway and
+        return :class:`FieldResults`; otherwise that is an :class:`AdvisorError`.
 
     Returns
     -------
-    Results
-        ``wall_seconds`` covers the solve and the assessment.
+    Results or FieldResults
+        ``wall_seconds`` covers the solve and the assessment. A model no lumped model applies
+        to (fixed temperatures or fluxes only) gives :class:`FieldResults`: the field and the
+        reason, without an assessment.
     """
     started = time.perf_counter()
     advisor_options = dict(advisor_options or {})
+    reason = no_lumped_reason(model) if field_alone else None
+    if reason is not None:  # fixed temperatures or fluxes only: the field alone
+        solution = solve(
+            model if system is None else system.for_model(model),
+            end_time,
+            progress=progress,
+            checkpoint=checkpoint,
+            resume=resume,
+            **dict(run_options or {}),
+        )
+        wall = time.perf_counter() - started
+        return FieldResults(solution, reason, title, dict(outputs or {}), wall)
     check_request(model, **advisor_options)  # a bad target fails before the solve
     system = None if system is None else system.for_model(model)
     solution = solve(
@@ -174,7 +195,7 @@ def run_model(
 
 
 def write_results(
-    results: Results | Assessment,
+    results: Results | FieldResults | Assessment,
     folder: Path,
     *,
     force: bool = False,
@@ -240,6 +261,8 @@ def write_results(
 
     if isinstance(results, Results):
         assessment, chosen = results.assessment, results.outputs
+    elif isinstance(results, FieldResults):
+        assessment, chosen = results, results.outputs
     else:
         assessment, chosen = results, {}
 

@@ -46,8 +46,10 @@ from pathlib import Path
 
 from .analysis.assessment import Assessment
 from .errors import AdvisorError, ResultsFolderExistsError
+from .field_results import FieldResults
 from .folder_lock import results_lock
 from .writers.animation import mp4_available, write_animation
+from .writers.field_summary import write_field_summary_json
 from .writers.histories_csv import write_histories_csv
 from .writers.plots import PLOTS, write_plots
 from .writers.report_content import Picture, build_report
@@ -221,7 +223,7 @@ def _optional(wanted: bool | None, available: bool, what: str, extra: str) -> bo
 
 
 def write_folder(
-    assessment: Assessment,
+    assessment: Assessment | FieldResults,
     folder: Path,
     *,
     force: bool,
@@ -246,7 +248,10 @@ def write_folder(
             tempfile.mkdtemp(dir=folder.parent, prefix=f".{folder.name}.", suffix=".part")
         )
         try:
-            files = _write_files(assessment, staging, report, animation, vtk, mp4, xdmf)
+            if isinstance(assessment, FieldResults):
+                files = _write_field_files(assessment, staging, animation, vtk, mp4, xdmf)
+            else:
+                files = _write_files(assessment, staging, report, animation, vtk, mp4, xdmf)
             _put_in_place(staging, folder)
         except OSError as error:  # a full disk or a permission taken away while writing
             raise CannotWriteError(
@@ -293,6 +298,27 @@ def _write_files(
         write_html_report(content, staging / "report.html")
         write_markdown_report(content, staging / "report.md")
     write_summary_json(assessment, staging / "summary.json", names)
+    _write_marker(staging / MARKER, names)
+    return files
+
+
+def _write_field_files(
+    results: FieldResults, staging: Path, animation: bool, vtk: bool, mp4: bool, xdmf: bool
+) -> list[Path]:
+    """The files of a run no lumped model applies to: summary, histories, animation, fields
+    (no report or plots: they compare the lumped estimate with the field)."""
+    written = [staging / "histories.csv"]
+    write_histories_csv(results, written[0])
+    if animation:
+        gif, film = staging / "animation.gif", staging / "animation.mp4" if mp4 else None
+        written += write_animation(results.solution, gif, film)
+    if vtk:
+        written += write_vtk_series(results.solution, staging / FIELD_FOLDER)
+        if xdmf:
+            written += write_xdmf_series(results.solution, staging / FIELD_FOLDER)
+    files = [Path("summary.json")] + [p.relative_to(staging) for p in written] + [Path(MARKER)]
+    names = [f.as_posix() for f in files]
+    write_field_summary_json(results, staging / "summary.json", names)
     _write_marker(staging / MARKER, names)
     return files
 

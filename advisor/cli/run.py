@@ -45,6 +45,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 def execute(args: argparse.Namespace) -> int:
     from ..casefile.case import load_case
+    from ..field_results import FieldResults
     from ..folder_lock import results_lock
     from ..pipeline import run_case, write_results
     from ..results_folder import check_can_write, check_results_folder, check_room
@@ -69,6 +70,7 @@ def execute(args: argparse.Namespace) -> int:
                 checkpoint=saving.checkpointer,
                 resume=resume,
                 before_solve=room,
+                field_alone=True,
             )
             position.solved = True
             rearm_terminate()
@@ -86,8 +88,30 @@ def execute(args: argparse.Namespace) -> int:
             saving.remove()  # the run itself failed: resuming would fail again
         raise
     saving.remove()
-    report_run(results.assessment, out, files)
+    if isinstance(results, FieldResults):
+        report_field(results, out, files)
+    else:
+        report_run(results.assessment, out, files)
     return EXIT_OK
+
+
+def report_field(results, folder: Path, files: list[Path]) -> None:
+    """Log a run no lumped model applies to: the reason, the field's extremes, the files."""
+    from ..caution import CAUTION
+
+    solution = results.solution
+    log.info(f"No lumped model applies: {results.reason}.")
+    log.info(
+        f"At t = {solution.times[-1]:.4g} s the field runs from {solution.minimum[-1]:.4g} "
+        f"to {solution.maximum[-1]:.4g} degC (mean {solution.mean[-1]:.4g} degC)"
+    )
+    for warning in solution.checks.warnings:
+        log.warning(f"check: {warning}")
+    log.info(
+        f"Wrote {len(files)} files to {folder}/: the field in histories.csv, animation.gif "
+        "and fields/"
+    )
+    log.info(f"Caution: {CAUTION}")
 
 
 class Saving:
