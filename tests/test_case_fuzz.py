@@ -121,14 +121,14 @@ def insert_key(data: dict, draw) -> None:
     """Add a key the starters leave out, with a value that may or may not be valid."""
     region = draw(st.sampled_from(["bar", "block", "product", "core"]) | names)
     where = draw(st.sampled_from(["sources", "initial", "stop", "checkpoint_every"]))
-    if where == "sources":
-        data.setdefault("sources", {})[region] = draw(unit_strings | leaves.filter(bool))
+    if where == "sources" and isinstance(data.setdefault("sources", {}), dict):
+        data["sources"][region] = draw(unit_strings | leaves.filter(bool))
     elif where == "initial":
         data["initial"] = {"temperature": {region: draw(unit_strings)}}
     elif where == "stop" and isinstance(data.get("run"), dict):
         quantity = draw(st.sampled_from(["mean", "minimum", "maximum", "core"]) | names)
         data["run"]["stop"] = {"quantity": quantity, "target": draw(unit_strings)}
-    elif isinstance(data.get("run"), dict):
+    elif where == "checkpoint_every" and isinstance(data.get("run"), dict):
         data["run"]["checkpoint_every"] = draw(leaves.filter(lambda v: v is not None))
 
 
