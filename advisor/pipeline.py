@@ -19,6 +19,7 @@ from fem import ConductionSystem, Solution, ThermalModel, solve
 
 from .analysis.assessment import Assessment, assess, check_request
 from .analysis.error_estimate import coarse_model_of, with_error_estimate
+from .field_results import FieldResults, no_lumped_reason
 
 if TYPE_CHECKING:
     from .casefile.case import Case
@@ -64,7 +65,11 @@ def run_case(
     *,
     progress: Progress | None = None,
     system_for: Callable[[ThermalModel], ConductionSystem] | None = None,
-) -> Results:
+    checkpoint: Callable | None = None,
+    resume: dict | None = None,
+    before_solve: Callable[[ThermalModel], None] | None = None,
+    field_alone: bool = False,
+) -> Results | FieldResults:
     """Mesh, solve and assess a case file's problem; write nothing.
 
     Parameters
@@ -104,6 +109,8 @@ def run_case(
     mirrors = case.whole_part(model.section)
     advisor_options = dict(case.advisor_options)
     coarse = coarse_model_of(case) if advisor_options.pop("error_estimate", False) else None
+    if before_solve is not None:
+        before_solve(model)
     results = run_model(
         model,
         case.end_time,
@@ -113,6 +120,9 @@ def run_case(
         outputs=case.outputs,
         progress=progress,
         system=None if system_for is None else system_for(model),
+        checkpoint=checkpoint,
+        resume=resume,
+        field_alone=field_alone,
     )
     if coarse is not None:  # two solves on a mesh twice as coarse
         assessment = with_error_estimate(
@@ -133,7 +143,10 @@ def run_model(
     progress: Progress | None = None,
     system: ConductionSystem | None = None,
     mirrors: tuple = (),
-) -> Results:
+    checkpoint: Callable | None = None,
+    resume: dict | None = None,
+    field_alone: bool = False,
+) -> Results | FieldResults:
     """Check the advisor's request, solve and assess a model built in Python; write nothing.
 
     Parameters
@@ -157,18 +170,42 @@ def run_model(
         :meth:`fem.ConductionSystem.for_model`); the run then assembles nothing.
     mirrors : tuple of advisor.whole_part.Mirror
         Lines the section is mirrored across in pictures of the whole part.
+    checkpoint, resume : optional
+        Passed to :func:`fem.solve`: the state offered after each step, and one to continue.
+    field_alone : bool
+        When no lumped model applies (fixed temperatures or fluxes only), solve anyway and
+        return :class:`FieldResults`; otherwise that is an :class:`AdvisorError`.
 
     Returns
     -------
-    Results
-        ``wall_seconds`` covers the solve and the assessment.
+    Results or FieldResults
+        ``wall_seconds`` covers the solve and the assessment. A model no lumped model applies
+        to (fixed temperatures or fluxes only) gives :class:`FieldResults`: the field and the
+        reason, without an assessment.
     """
     started = time.perf_counter()
     advisor_options = dict(advisor_options or {})
+    reason = no_lumped_reason(model) if field_alone else None
+    if reason is not None:  # fixed temperatures or fluxes only: the field alone
+        solution = solve(
+            model if system is None else system.for_model(model),
+            end_time,
+            progress=progress,
+            checkpoint=checkpoint,
+            resume=resume,
+            **dict(run_options or {}),
+        )
+        wall = time.perf_counter() - started
+        return FieldResults(solution, reason, title, dict(outputs or {}), wall)
     check_request(model, end_time=end_time, **advisor_options)  # fails before the solve
     system = None if system is None else system.for_model(model)
     solution = solve(
-        model if system is None else system, end_time, progress=progress, **dict(run_options or {})
+        model if system is None else system,
+        end_time,
+        progress=progress,
+        checkpoint=checkpoint,
+        resume=resume,
+        **dict(run_options or {}),
     )
     assessment = assess(solution, system=system, end_time=end_time, **advisor_options)
     wall = time.perf_counter() - started
@@ -176,7 +213,7 @@ def run_model(
 
 
 def write_results(
-    results: Results | Assessment,
+    results: Results | FieldResults | Assessment,
     folder: Path,
     *,
     force: bool = False,
@@ -251,6 +288,8 @@ def write_results(
 
     if isinstance(results, Results):
         assessment, chosen, mirrors = results.assessment, results.outputs, results.mirrors
+    elif isinstance(results, FieldResults):
+        assessment, chosen, mirrors = results, results.outputs, ()
     else:
         assessment, chosen, mirrors = results, {}, ()
 

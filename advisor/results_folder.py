@@ -35,8 +35,10 @@ replaced only after the new one is whole. One run at a time writes a folder (see
 
 from __future__ import annotations
 
+import errno
 import importlib.util
 import json
+import math
 import multiprocessing
 import os
 import shutil
@@ -48,9 +50,11 @@ from pathlib import Path
 
 from .analysis.assessment import Assessment
 from .errors import AdvisorError, ResultsFolderExistsError
+from .field_results import FieldResults
 from .folder_lock import results_lock
 from .writers.animation import mp4_available, write_animation
 from .writers.field_plots import write_snapshots
+from .writers.field_summary import write_field_summary_json
 from .writers.histories_csv import write_histories_csv
 from .writers.plots import PLOTS, in_plot_order, write_line_plots, written_plots
 from .writers.report_content import Picture, build_report
@@ -62,6 +66,89 @@ from .writers.vtk_series import write_vtk_series, write_xdmf_series
 PLOT_FOLDER = "plots"
 FIELD_FOLDER = "fields"
 MARKER = ".soakwise-results"
+
+# Sizes of a results folder, measured on the quench-bar starter (753 nodes, 51 output times:
+# plots and report 2.3 MB, fields 3.9 MB, about 100 bytes a node a frame with the XDMF copy,
+# a GIF frame 5 kB; at 43 nodes 7.5 kB a frame), rounded up: an estimate to refuse a run
+# whose results cannot fit.
+FIXED_BYTES = 4_000_000
+FIELD_BYTES_PER_NODE = 120
+FIELD_BYTES_PER_FRAME = 10_000  # a frame's headers and its entries in the series' indexes
+ANIMATION_BYTES_PER_FRAME = 20_000
+
+
+class CannotWriteError(OSError):
+    """The results cannot be written where asked: no permission, not a folder, or no room.
+    The message says which, with the figures; nothing was written."""
+
+
+def expected_size(nodes: int, outputs: int, *, vtk: bool = True, animation: bool = True) -> int:
+    """An upper estimate of a results folder's size in bytes, for ``nodes`` mesh nodes and
+    ``outputs`` output times (see the measured sizes above)."""
+    size = FIXED_BYTES
+    if vtk:
+        size += (FIELD_BYTES_PER_FRAME + FIELD_BYTES_PER_NODE * nodes) * outputs
+    if animation:
+        size += ANIMATION_BYTES_PER_FRAME * outputs
+    return size
+
+
+def check_can_write(folder: Path, expected_bytes: int | None = None) -> None:
+    """Check, before a solve, that results folder ``folder`` can be made: the nearest existing
+    folder on its path is a folder this process may write in and, with ``expected_bytes``,
+    has that much room.
+
+    Raises
+    ------
+    CannotWriteError
+        With the reason and the figures; nothing is changed.
+    """
+    folder = Path(os.path.abspath(folder))
+    where = folder.parent
+    while not where.exists() and not where.is_symlink() and where != where.parent:
+        where = where.parent
+    if not where.is_dir():
+        raise CannotWriteError(
+            f"cannot write {str(folder)!r}: {str(where)!r} is a file, not a folder"
+        )
+    try:
+        with tempfile.TemporaryFile(dir=where, prefix=".soakwise-probe."):
+            pass
+    except OSError as error:
+        raise CannotWriteError(
+            f"cannot write in {str(where)!r} ({error.strerror or error}); choose a results "
+            "folder (--out) where you may write"
+        ) from None
+    if expected_bytes is None:
+        return
+    free = shutil.disk_usage(where).free
+    if free < expected_bytes:
+        raise CannotWriteError(
+            f"not enough room for the results in {str(where)!r}: about "
+            f"{_megabytes(expected_bytes)} expected, {_megabytes(free)} free; free some space, "
+            "choose another folder (--out) or turn outputs off ([outputs] vtk = false, "
+            "animation = false)"
+        )
+
+
+def check_room(folder: Path, model, end_time: float, run_options: dict, outputs: dict) -> None:
+    """:func:`check_can_write` with the expected size of the results of ``model`` (a
+    :class:`fem.ThermalModel`) run to ``end_time`` s with a case's run options and
+    ``[outputs]`` choices."""
+    if run_options.get("output_times") is not None:
+        count = len(tuple(run_options["output_times"])) + 1
+    else:
+        interval = run_options.get("output_interval") or end_time / 50
+        count = math.floor(end_time / interval + 1e-9) + 2
+    nodes = int(model.section.mesh.p.shape[1])
+    size = expected_size(
+        nodes, count, vtk=outputs.get("vtk", True), animation=outputs.get("animation", True)
+    )
+    check_can_write(folder, size)
+
+
+def _megabytes(size: float) -> str:
+    return f"{math.ceil(size / 1e5) / 10:g} MB"
 
 
 def check_results_folder(folder: Path, *, force: bool, keep: tuple[Path, ...] = ()) -> None:
@@ -169,7 +256,7 @@ def _optional(wanted: bool | None, available: bool, what: str, extra: str, notes
 
 
 def write_folder(
-    assessment: Assessment,
+    assessment: Assessment | FieldResults,
     folder: Path,
     *,
     force: bool,
@@ -182,6 +269,7 @@ def write_folder(
     """
     folder = Path(folder)
     check_results_folder(folder, force=force)
+    check_can_write(folder)
     notes: list[str] = []
     mp4 = choices.animation and _optional(
         choices.mp4, mp4_available(), "animation.mp4", "mp4", notes
@@ -198,8 +286,18 @@ def write_folder(
             tempfile.mkdtemp(dir=folder.parent, prefix=f".{folder.name}.", suffix=".part")
         )
         try:
-            files = _write_files(assessment, staging, choices, mirrors)
+            if isinstance(assessment, FieldResults):
+                files = _write_field_files(
+                    assessment, staging, choices.animation, choices.vtk, mp4, xdmf
+                )
+            else:
+                files = _write_files(assessment, staging, choices, mirrors)
             _put_in_place(staging, folder)
+        except OSError as error:  # a full disk or a permission taken away while writing
+            raise CannotWriteError(
+                f"the results could not be written to {str(folder)!r} ({_reason(error)}); "
+                "nothing was written"
+            ) from error
         finally:
             shutil.rmtree(staging, ignore_errors=True)
     return WrittenFiles(files, notes)
@@ -306,6 +404,36 @@ def _send_result(task, sender) -> None:
             sender.send(("error", AdvisorError(f"the plot writer failed: {error!r}")))
     finally:
         sender.close()
+
+
+def _write_field_files(
+    results: FieldResults, staging: Path, animation: bool, vtk: bool, mp4: bool, xdmf: bool
+) -> list[Path]:
+    """The files of a run no lumped model applies to: summary, histories, animation, fields
+    (no report or plots: they compare the lumped estimate with the field)."""
+    written = [staging / "histories.csv"]
+    write_histories_csv(results, written[0])
+    if animation:
+        gif, film = staging / "animation.gif", staging / "animation.mp4" if mp4 else None
+        written += write_animation(results.solution, gif, film)
+    if vtk:
+        written += write_vtk_series(results.solution, staging / FIELD_FOLDER)
+        if xdmf:
+            written += write_xdmf_series(results.solution, staging / FIELD_FOLDER)
+    files = [Path("summary.json")] + [p.relative_to(staging) for p in written] + [Path(MARKER)]
+    names = [f.as_posix() for f in files]
+    write_field_summary_json(results, staging / "summary.json", names)
+    _write_marker(staging / MARKER, names)
+    return files
+
+
+def _reason(error: OSError) -> str:
+    """An operating-system error in a few words: "No space left on device" or the like."""
+    if isinstance(error, CannotWriteError):
+        return str(error)
+    if error.errno in (errno.ENOSPC, getattr(errno, "EDQUOT", errno.ENOSPC)):
+        return "no space left on the device"
+    return error.strerror or str(error).splitlines()[0][:200]
 
 
 def _write_marker(path: Path, names: list[str]) -> None:

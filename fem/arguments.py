@@ -26,6 +26,9 @@ DEFAULT_NEWTON_ITERATIONS = 30
 DEFAULT_OUTPUTS = 50
 DEFAULT_RELATIVE_TOLERANCE = 1e-4  # local error, as a fraction of the temperature range
 # (backward Euler's default is tighter: fem.scales.default_tolerance)
+# The default smallest adaptive step: 1e-9 of the run, and no more than this fraction of the
+# surface elements' diffusion time (below it nothing the mesh resolves changes).
+MIN_STEP_OF_DIFFUSION_TIME = 1e-6
 STOP_QUANTITIES = ("mean", "minimum", "maximum")
 
 
@@ -139,6 +142,11 @@ def check_arguments(model: ThermalModel, end_time: float, **options) -> RunContr
     checked = check_run_options(end_time, probes=tuple(model.probes), **options)
     stepper = stepper_for(checked.method)
     stepper.check_model(model)
+    min_step = checked.min_step
+    if options.get("min_step") is None:
+        # The model's own time scale bounds the smallest step, not only the run's length: a
+        # ten-year run must still resolve the first seconds after a plunge.
+        min_step = min(min_step, MIN_STEP_OF_DIFFUSION_TIME * surface_diffusion_time(model))
     tolerance = checked.tolerance
     if tolerance is None:
         tolerance = default_tolerance(model, checked.method)
@@ -154,14 +162,14 @@ def check_arguments(model: ThermalModel, end_time: float, **options) -> RunContr
         times = checked.output_times
         interval = times[1] - times[0] if len(times) > 1 else end
         step = interval / math.ceil(interval / step - 1e-9)
-    step = float(min(max(step, checked.min_step), checked.max_step))
+    step = float(min(max(step, min_step), checked.max_step))
     return RunControls(
         end_time=end,
         method=checked.method,
         adaptive=checked.adaptive,
         step=step,
         tolerance=float(tolerance),
-        min_step=checked.min_step,
+        min_step=float(min_step),
         max_step=checked.max_step,
         output_times=checked.output_times,
         startup_steps=checked.startup_steps,

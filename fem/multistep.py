@@ -15,7 +15,7 @@ from typing import ClassVar
 
 import numpy as np
 
-from .errors import SolverError
+from .errors import ModelError, SolverError
 from .events import Events, StopWatch
 from .integrators import StepFormula, StepResult, bdf2_formula, predict, theta_formula
 from .linear_step import LinearStep
@@ -26,6 +26,8 @@ from .stepper import March, RunContext, Stepper
 
 class FormulaStepper(Stepper):
     """A method that steps by one multistep formula."""
+
+    resumable = True
 
     half_step_startup: ClassVar[bool] = False  # start-up steps taken as two half-steps
     max_step_ratio: ClassVar[float] = math.inf  # largest step over the previous one
@@ -64,6 +66,29 @@ class BDF2(FormulaStepper):
         return theta_formula(1.0) if startup else bdf2_formula(ratio)
 
 
+# What a march and its step control carry from step to step (besides the last states).
+_MARCH_STATE = (
+    "time",
+    "absorbed",
+    "last_increment",
+    "steps",
+    "startup_done",
+    "smallest",
+    "largest",
+    "previous_step",
+)
+_CONTROL_STATE = (
+    "step",
+    "ladder_base",
+    "rejected",
+    "retried",
+    "subdivided",
+    "subdivision_end",
+    "retrying",
+    "anchor",
+)
+
+
 class _FormulaMarch:
     """One run of a formula stepper: steps to every event, restarts at breakpoints, stops."""
 
@@ -85,6 +110,38 @@ class _FormulaMarch:
         self.smallest, self.largest = math.inf, 0.0
         self.previous_step: float | None = None
         self.stop_time: float | None = None
+        if run.resume is not None:
+            self.restore(run.resume["march"])
+
+    def state(self) -> dict:
+        """The march's state after a step: with :meth:`restore` it continues exactly."""
+        return {
+            "method": self.stepper.name,
+            "history_times": np.array([t for t, _ in self.history]),
+            "history_fields": np.array([u for _, u in self.history]),
+            **{name: getattr(self, name) for name in _MARCH_STATE},
+            "watch": None if self.watch is None else [self.watch.value, float(self.watch.side)],
+            "control": {name: getattr(self.control, name) for name in _CONTROL_STATE},
+        }
+
+    def restore(self, state: dict) -> None:
+        """Continue from a :meth:`state` of a run of the same method and system."""
+        fields = np.asarray(state["history_fields"])
+        if state["method"] != self.stepper.name or fields.shape[1:] != self.run.initial.shape:
+            raise ModelError(
+                f"the state to resume is of a {state['method']} run with "
+                f"{fields.shape[-1]} unknowns; this run is {self.stepper.name} with "
+                f"{self.run.initial.size}: resume only the run that was stopped",
+                argument="resume",
+            )
+        times = state["history_times"]
+        self.history = [(float(t), u.copy()) for t, u in zip(times, fields, strict=True)]
+        for name in _MARCH_STATE:
+            setattr(self, name, state[name])
+        if self.watch is not None and state["watch"] is not None:
+            self.watch.value, self.watch.side = state["watch"]
+        for name in _CONTROL_STATE:
+            setattr(self.control, name, state["control"][name])
 
     def march(self) -> March:
         controls = self.controls
@@ -111,6 +168,7 @@ class _FormulaMarch:
             self.control.accepted(t1)
             if self._accept(formula, h, t1, result, startup):
                 break
+            self.run.offer_checkpoint(self.time, self.steps, self.state)
         return self._outcome()
 
     def _take(self, h: float, t1: float, startup: bool) -> tuple[StepFormula, StepResult]:

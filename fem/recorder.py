@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from .errors import ModelError
 from .fields import FieldSeries
 from .system import ConductionSystem, inner
 
@@ -103,6 +104,65 @@ class HistoryRecorder:
         """Keep the field at an output time (its vertex values)."""
         self._output_times.append(time)
         self._fields.append(temperature[self._system.vertex_dofs])
+
+    def state(self) -> dict:
+        """Everything recorded so far, as arrays (for a checkpoint; see :meth:`restore`)."""
+        n = len(self._rows)
+        columns = list(zip(*self._rows, strict=True)) if n else [()] * 11
+        return {
+            "scalars": np.array([columns[k] for k in (0, 1, 2, 3, 8, 9, 10)], dtype=float),
+            "locations": np.array([columns[4], columns[5]], dtype=float).reshape(2, n, 2),
+            "probes": np.array(columns[6], dtype=float).reshape(n, len(self._probe_names)),
+            "flows": np.array(columns[7], dtype=float).reshape(n, len(self._flow_names)),
+            "initial_stored": self._initial_stored,
+            "output_times": np.array(self._output_times, dtype=float),
+            "fields": np.array([np.asarray(f) for f in self._fields], dtype=float),
+            "interfaces": {
+                name: np.array([row[name] for row in self._interfaces], dtype=float)
+                for name in self._system.interfaces
+            },
+        }
+
+    def restore(self, state: dict) -> None:
+        """Replace what was recorded by a :meth:`state` of the same system."""
+        flows, probes = np.asarray(state["flows"]), np.asarray(state["probes"])
+        if flows.shape[1:] != (len(self._flow_names),) or probes.shape[1:] != (
+            len(self._probe_names),
+        ):
+            raise ModelError(
+                f"the state to resume records {flows.shape[1]} heat flows and "
+                f"{probes.shape[1]} probes; this model has {len(self._flow_names)} and "
+                f"{len(self._probe_names)}",
+                argument="resume",
+            )
+        time, mean, low, high, generated, stored, absorbed = np.asarray(state["scalars"])
+        where_low, where_high = np.asarray(state["locations"])
+        self._initial_stored = float(state["initial_stored"])
+        self._rows = [
+            (
+                float(time[i]),
+                float(mean[i]),
+                float(low[i]),
+                float(high[i]),
+                where_low[i],
+                where_high[i],
+                probes[i],
+                list(flows[i]),
+                float(generated[i]),
+                float(stored[i]),
+                float(absorbed[i]),
+            )
+            for i in range(len(time))
+        ]
+        interfaces = state.get("interfaces") or {}
+        self._interfaces = [
+            {name: tuple(float(v) for v in values[i]) for name, values in interfaces.items()}
+            for i in range(len(time) if interfaces else 0)
+        ]
+        # The fields kept so far (the initial one) are the state's first ones: add the rest.
+        self._output_times = [float(t) for t in state["output_times"]]
+        for field in np.asarray(state["fields"])[len(self._fields) :]:
+            self._fields.append(field)
 
     def _interface_column(self, name: str, index: int) -> np.ndarray:
         """The jump (0) or heat flow (1) of one interface at every record."""

@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from abc import ABC, abstractmethod
 from collections.abc import Callable
-from dataclasses import dataclass
+from dataclasses import asdict, dataclass
 from functools import cached_property
 from typing import TYPE_CHECKING, ClassVar
 
@@ -24,6 +24,11 @@ from .system import ConductionSystem, inner
 
 if TYPE_CHECKING:
     from .model import ThermalModel
+
+Checkpoint = Callable[[float, int, Callable[[], dict]], None]
+"""``checkpoint(time, steps, snapshot)``, offered after every step of a resumable method:
+``snapshot()`` returns the run's state (nested dicts of numbers, None, strings and arrays), to
+be kept and handed back to :func:`fem.solve` as ``resume`` to continue the run exactly."""
 
 
 @dataclass(frozen=True)
@@ -65,6 +70,11 @@ class RunContext:
         ℓ²/α of the smallest surface element, s.
     progress : callable or None
         ``progress(time, end_time, steps)`` after each step.
+    checkpoint : callable or None
+        Offered the run's state after each step (see :data:`Checkpoint`).
+    resume : dict or None
+        A state a checkpoint was given: the recorder and the cost are restored from it here,
+        the method restores its own part (``resume["march"]``).
     """
 
     system: ConductionSystem
@@ -76,6 +86,28 @@ class RunContext:
     breakpoints: tuple[float, ...]
     surface_diffusion_time: float
     progress: Callable[[float, float, int], None] | None = None
+    checkpoint: Checkpoint | None = None
+    resume: dict | None = None
+
+    def __post_init__(self) -> None:
+        if self.resume is not None:
+            self.recorder.restore(self.resume["recorder"])
+            for name, value in self.resume["cost"].items():
+                setattr(self.cost, name, value)
+
+    def offer_checkpoint(self, time: float, steps: int, march_state: Callable[[], dict]) -> None:
+        """Offer the checkpoint callback, if any, the state after a step (built on demand)."""
+        if self.checkpoint is None:
+            return
+
+        def snapshot() -> dict:
+            return {
+                "march": march_state(),
+                "recorder": self.recorder.state(),
+                "cost": asdict(self.cost),
+            }
+
+        self.checkpoint(time, steps, snapshot)
 
     @cached_property
     def fixed(self) -> np.ndarray:
@@ -136,6 +168,7 @@ class Stepper(ABC):
     default_steps: ClassVar[int] = 500  # fixed steps (or records) over a run by default
     exact_in_time: ClassVar[bool] = False  # error set by a tolerance, not by a step
     rings_without_startup: ClassVar[bool] = False  # may oscillate after a jump without start-up
+    resumable: ClassVar[bool] = False  # offers checkpoints and continues from their state
 
     def check_model(self, model: ThermalModel) -> None:  # noqa: B027 - most methods take any
         """Raise ModelError unless the method can solve ``model``."""

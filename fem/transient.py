@@ -34,7 +34,7 @@ from .recorder import HistoryRecorder
 from .run_checks import check_run
 from .scales import surface_diffusion_time
 from .solution import Solution, SolverStats
-from .stepper import March, RunContext, Stepper
+from .stepper import Checkpoint, March, RunContext, Stepper
 from .system import ConductionSystem
 
 __all__ = ["StopWhen", "solve"]
@@ -58,6 +58,8 @@ def solve(
     max_newton_iterations: int = DEFAULT_NEWTON_ITERATIONS,
     field_folder: str | Path | None = None,
     progress: Callable[[float, float, int], None] | None = None,
+    checkpoint: Checkpoint | None = None,
+    resume: dict | None = None,
 ) -> Solution:
     """Solve the transient conduction problem from t = 0 to ``end_time``.
 
@@ -87,7 +89,8 @@ def solve(
         largest error estimate at any node and record time). Default: 1e-4 of the range of
         initial and boundary temperatures (1e-5 for the first-order backward Euler).
     min_step, max_step : float, optional
-        Bounds of adaptive steps in s (default 1e-9·end_time and end_time).
+        Bounds of adaptive steps in s (default: the smaller of 1e-9·end_time and 1e-6 of the
+        surface elements' diffusion time ℓ²/α; and end_time).
     output_interval : float, optional
         Time in s between stored fields (the first at t = 0, the last at ``end_time``).
         Default: ``end_time / 50``.
@@ -108,6 +111,15 @@ def solve(
         memory.
     progress : callable, optional
         Called after every step as ``progress(time, end_time, steps)``.
+    checkpoint : callable, optional
+        Offered the run's state after every step as ``checkpoint(time, steps, snapshot)``
+        (``snapshot()`` builds it: nested dicts of numbers, strings, None and arrays); the
+        multistep methods offer it, ``"exponential"`` does not.
+    resume : dict, optional
+        A state a checkpoint was given, from a run of the same model and arguments: the run
+        continues from it, to the same results as a run never stopped (linear models; within
+        ``newton_tolerance`` for nonlinear ones, whose first step after resuming factorises
+        its Newton tangent afresh).
 
     Returns
     -------
@@ -153,7 +165,8 @@ def solve(
         newton_tolerance=newton_tolerance,
         max_newton_iterations=max_newton_iterations,
     )
-    return _run(model, controls, FieldSeries(field_folder), progress)
+    hooks = {"progress": progress, "checkpoint": checkpoint, "resume": resume}
+    return _run(model, controls, FieldSeries(field_folder), hooks)
 
 
 def _model_of(model: ThermalModel | ConductionSystem) -> ThermalModel:
@@ -166,13 +179,18 @@ def _model_of(model: ThermalModel | ConductionSystem) -> ThermalModel:
     )
 
 
-def _run(model, controls: RunControls, fields: FieldSeries, progress) -> Solution:
+def _run(model, controls: RunControls, fields: FieldSeries, hooks: dict) -> Solution:
     """Assemble (unless given a system), march by the requested method, check the run."""
     started = clock.perf_counter()
+    stepper = stepper_for(controls.method)
+    if hooks["resume"] is not None and not stepper.resumable:
+        raise ModelError(
+            f"a {stepper.title} run cannot resume from a checkpoint; run it again from the start",
+            argument="resume",
+        )
     system = model if isinstance(model, ConductionSystem) else assemble(model)
     assembled = clock.perf_counter()
-    run, start = _start(system, controls, fields, progress)
-    stepper = stepper_for(controls.method)
+    run, start = _start(system, controls, fields, hooks)
     march = stepper.march(run)
     finished = clock.perf_counter()
     histories = run.recorder.histories()
@@ -200,7 +218,7 @@ def _run(model, controls: RunControls, fields: FieldSeries, progress) -> Solutio
     )
 
 
-def _start(system, controls, fields, progress):
+def _start(system, controls, fields, hooks):
     """The run's context with the initial state recorded, and the initial field as the model
     gives it (before fixed temperatures are imposed)."""
     model = system.model
@@ -221,7 +239,7 @@ def _start(system, controls, fields, progress):
         initial=initial,
         breakpoints=merged_breakpoints(model, controls.end_time),
         surface_diffusion_time=surface_diffusion_time(model),
-        progress=progress,
+        **hooks,
     )
     return run, start
 

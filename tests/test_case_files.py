@@ -334,6 +334,20 @@ MALFORMED = [
         "about 6e+11 outputs over end_time = 10 min",
         34,
     ),
+    # regions the section lacks; a stop beyond every temperature the part can reach
+    row("source_region_not_in_section.toml", "sources.bra", "did you mean 'bar'", 29),
+    row(
+        "initial_region_not_in_section.toml",
+        "initial.temperature.core",
+        "is not a region of the section ['bar']",
+        26,
+    ),
+    row(
+        "stop_target_beyond_the_ambient.toml",
+        "run.stop.target",
+        "40 °C is never reached: it is below the lowest",
+        33,
+    ),
     # not TOML at all
     row("toml_syntax_error.toml", None, "not valid TOML", 10),
     row("duplicate_key.toml", None, "not valid TOML", 11),

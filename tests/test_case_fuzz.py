@@ -117,6 +117,21 @@ def nested(depth: int, table: bool):
     return value
 
 
+def insert_key(data: dict, draw) -> None:
+    """Add a key the starters leave out, with a value that may or may not be valid."""
+    region = draw(st.sampled_from(["bar", "block", "product", "core"]) | names)
+    where = draw(st.sampled_from(["sources", "initial", "stop", "checkpoint_every"]))
+    if where == "sources" and isinstance(data.setdefault("sources", {}), dict):
+        data["sources"][region] = draw(unit_strings | leaves.filter(bool))
+    elif where == "initial":
+        data["initial"] = {"temperature": {region: draw(unit_strings)}}
+    elif where == "stop" and isinstance(data.get("run"), dict):
+        quantity = draw(st.sampled_from(["mean", "minimum", "maximum", "core"]) | names)
+        data["run"]["stop"] = {"quantity": quantity, "target": draw(unit_strings)}
+    elif where == "checkpoint_every" and isinstance(data.get("run"), dict):
+        data["run"]["checkpoint_every"] = draw(leaves.filter(lambda v: v is not None))
+
+
 @st.composite
 def mutated_data(draw):
     data = json.loads(json.dumps(STARTERS[draw(st.sampled_from(sorted(STARTERS)))]))
@@ -126,7 +141,10 @@ def mutated_data(draw):
             break
         path, _ = draw(st.sampled_from(paths))
         parent = parent_of(data, path)
-        kind = draw(st.sampled_from(["leaf", "rename", "nest", "unit"]))
+        kind = draw(st.sampled_from(["leaf", "rename", "nest", "unit", "insert"]))
+        if kind == "insert":  # keys the starters leave out: regions, a stop, checkpoints
+            insert_key(data, draw)
+            continue
         if kind == "rename" and isinstance(parent, dict):
             parent[draw(names)] = parent.pop(path[-1])
             continue

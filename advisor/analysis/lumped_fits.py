@@ -9,7 +9,7 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 import numpy as np
-from scipy.optimize import least_squares
+from scipy.optimize import brentq, least_squares
 
 if TYPE_CHECKING:
     from .lumped import LumpedModel
@@ -98,13 +98,25 @@ class TwoNodeModel:
         return self.states(times)[2]
 
     def time_to(self, target: float, horizon: float | None = None) -> float | None:
-        """When the core (the slowest point) reaches ``target``."""
+        """When the core (the slowest point) reaches ``target`` within ``horizon`` s: the
+        first sample past it brackets the root, which Brent's method then solves (a part much
+        faster than the horizon crosses within the first sample interval)."""
         if horizon is None:
             return None
+        side = np.sign(self.initial_temperature - self.ambient)
         times = np.linspace(0.0, horizon, 801)
-        return crossing_time(
-            times, self.states(times)[0], target, self.initial_temperature - self.ambient
-        )
+        remaining = (self.states(times)[0] - target) * side  # > 0 until reached
+        reached = np.flatnonzero(remaining <= 0)
+        if len(reached) == 0:
+            return None
+        i = int(reached[0])
+        if i == 0 or remaining[i] == 0:
+            return float(times[i])
+
+        def core_minus_target(t: float) -> float:
+            return float(self.states([t])[0][0] - target)
+
+        return float(brentq(core_minus_target, times[i - 1], times[i], xtol=1e-13 * times[i]))
 
     def parameters(self) -> dict[str, float]:
         return {

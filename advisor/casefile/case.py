@@ -23,6 +23,7 @@ from .conditions import read_boundaries, read_initial, read_probes, read_sources
 from .interfaces import read_interfaces
 from .materials import WHOLE_SECTION, read_materials
 from .options import read_advisor, read_outputs, read_run
+from .reach import check_regions_named, check_stop_reachable
 from .reader import (
     DEEPEST,
     CaseError,
@@ -84,6 +85,8 @@ class Case:
         The whole part's mirror lines (``[section] mirror_lines``, then the symmetry cuts).
     declared_mirrors : int
         How many of them ``mirror_lines`` declared; each doubles the copies of the piece.
+    checkpoint_every : advisor.checkpoint.CheckpointEvery or None
+        How often ``soakwise run`` keeps a checkpoint to resume from; None: never.
     """
 
     path: Path
@@ -102,6 +105,7 @@ class Case:
     advisor_options: dict
     outputs: dict = field(default_factory=dict)
     interfaces: dict = field(default_factory=dict)
+    checkpoint_every: object = None  # advisor.checkpoint.CheckpointEvery, or None for none
     context: Context | None = field(default=None, compare=False, repr=False)
     raw: dict = field(default_factory=dict, compare=False, repr=False)
     mirrors: tuple = ()
@@ -292,8 +296,15 @@ def _read_case(root: Table, path: Path) -> Case:
     sources = read_sources(root)
     probes = read_probes(root)
     parts = {"materials": materials, "boundaries": boundaries, "sources": sources}
-    end_time, run_options, element_order = read_run(root, {**parts, "probes": probes})
+    end_time, run_options, element_order, checkpoint_every = read_run(
+        root, {**parts, "probes": probes}
+    )
     mesh_options, element_order = _one_element_order(root, plan.mesh_options, element_order)
+    check_regions_named(root.context, "sources", sources, plan.regions)
+    if isinstance(initial, dict):
+        check_regions_named(root.context, "initial.temperature", initial, plan.regions)
+    stop = run_options.get("stop")
+    check_stop_reachable(root.context, stop, initial, boundaries, sources, end_time)
     advisor_options = read_advisor(root)
     outputs = read_outputs(root)
     root.raw("study", None)  # a study's table, read by advisor.studies
@@ -319,4 +330,5 @@ def _read_case(root: Table, path: Path) -> Case:
         raw={key: root.data[key] for key in ("probes", "advisor") if key in root.data},
         mirrors=plan.mirrors,
         declared_mirrors=plan.declared_mirrors,
+        checkpoint_every=checkpoint_every,
     )

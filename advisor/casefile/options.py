@@ -15,17 +15,18 @@ from fem.model import check_element_order
 
 from ..analysis.assessment import check_options
 from ..analysis.stages import Stage, check_stages
+from ..checkpoint import DEFAULT_EVERY, CheckpointEvery
 from ..errors import AdvisorError
 from .conditions import temperature
-from .reader import Table
+from .reader import Table, echo
 from .schema import OUTPUTS, RUN_KEYS, RUN_QUANTITIES
 from .validation import LIBRARY_ERRORS, build, raise_at
 
 
-def read_run(root: Table, parts: dict) -> tuple[float, dict, int]:
-    """``[run]``: the end time in s, the keyword arguments of :func:`fem.solve` and the element
-    order. ``parts`` holds the model's materials, boundaries, heat sources and probes, which
-    the run options are checked against."""
+def read_run(root: Table, parts: dict) -> tuple[float, dict, int, CheckpointEvery | None]:
+    """``[run]``: the end time in s, the keyword arguments of :func:`fem.solve`, the element
+    order and how often to keep a checkpoint. ``parts`` holds the model's materials,
+    boundaries, heat sources and probes, which the run options are checked against."""
     run = root.table("run")
     end_time = run.get("end_time", "time")
     options: dict = {"method": run.text("method", "crank-nicolson")}
@@ -51,8 +52,32 @@ def read_run(root: Table, parts: dict) -> tuple[float, dict, int]:
             run.fail("method", str(error))
     element_order = run.get("element_order", "number", 1)
     build(run, check_element_order, element_order, default="element_order")
+    checkpoint_every = read_checkpoint_every(run)
     run.done()
-    return end_time, options, int(element_order)
+    return end_time, options, int(element_order), checkpoint_every
+
+
+def read_checkpoint_every(run: Table) -> CheckpointEvery | None:
+    """``[run] checkpoint_every``: a wall-clock time ("60 s"), a whole number of steps, or
+    false (no checkpoints); default every 30 s of wall-clock time."""
+    value = run.raw("checkpoint_every", True)
+    if value is True:
+        return DEFAULT_EVERY
+    if value is False:
+        return None
+    if isinstance(value, int):
+        if value < 1:
+            run.fail("checkpoint_every", f"a number of steps must be 1 or more, got {value}")
+        return CheckpointEvery(steps=value)
+    if not isinstance(value, str):
+        run.fail(
+            "checkpoint_every",
+            f'expected a wall-clock time ("60 s"), a number of steps or false, got {echo(value)}',
+        )
+    seconds = run.quantity("checkpoint_every", value, "time")
+    if not seconds > 0:
+        run.fail("checkpoint_every", f"a wall-clock time must be above 0 s, got {echo(value)}")
+    return CheckpointEvery(seconds=seconds)
 
 
 def read_advisor(root: Table) -> dict:

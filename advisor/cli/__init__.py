@@ -105,7 +105,8 @@ def main(argv: list[str] | None = None) -> int:
         return _main(argv)
     except KeyboardInterrupt as stop:  # Ctrl-C or SIGTERM, wherever it came
         where = getattr(stop, "where", "")
-        print(f"soakwise: interrupted{where}; nothing written", file=sys.stderr)
+        outcome = getattr(stop, "outcome", "nothing written")
+        print(f"soakwise: interrupted{where}; {outcome}", file=sys.stderr)
         return EXIT_INTERRUPTED
     finally:
         if previous is not None:
