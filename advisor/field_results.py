@@ -31,6 +31,8 @@ class FieldResults:
         The case's title.
     outputs : mapping of str to bool
         The case's choice of optional outputs (``animation``, ``vtk``; no report is written).
+    mirrors : tuple of advisor.whole_part.Mirror
+        Lines the pictures unfold the modelled piece across.
     wall_seconds : float
         Wall-clock time of the run, s.
     """
@@ -40,6 +42,7 @@ class FieldResults:
     title: str = ""
     outputs: Mapping[str, bool] = field(default_factory=dict)
     wall_seconds: float = 0.0
+    mirrors: tuple = ()  # the whole part's mirror lines, for the pictures
 
     # What the histories writer reads of an assessment: no lumped curves, no quench readings.
     model_temperatures = property(lambda self: {})

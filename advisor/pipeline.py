@@ -289,7 +289,7 @@ def write_results(
     if isinstance(results, Results):
         assessment, chosen, mirrors = results.assessment, results.outputs, results.mirrors
     elif isinstance(results, FieldResults):
-        assessment, chosen, mirrors = results, results.outputs, ()
+        assessment, chosen, mirrors = results, results.outputs, results.mirrors
     else:
         assessment, chosen, mirrors = results, {}, ()
 

@@ -288,7 +288,7 @@ def write_folder(
         try:
             if isinstance(assessment, FieldResults):
                 files = _write_field_files(
-                    assessment, staging, choices.animation, choices.vtk, mp4, xdmf
+                    assessment, staging, choices.animation, choices.vtk, mp4, xdmf, mirrors
                 )
             else:
                 files = _write_files(assessment, staging, choices, mirrors)
@@ -407,7 +407,13 @@ def _send_result(task, sender) -> None:
 
 
 def _write_field_files(
-    results: FieldResults, staging: Path, animation: bool, vtk: bool, mp4: bool, xdmf: bool
+    results: FieldResults,
+    staging: Path,
+    animation: bool,
+    vtk: bool,
+    mp4: bool,
+    xdmf: bool,
+    mirrors: tuple = (),
 ) -> list[Path]:
     """The files of a run no lumped model applies to: summary, histories, animation, fields
     (no report or plots: they compare the lumped estimate with the field)."""
@@ -415,7 +421,7 @@ def _write_field_files(
     write_histories_csv(results, written[0])
     if animation:
         gif, film = staging / "animation.gif", staging / "animation.mp4" if mp4 else None
-        written += write_animation(results.solution, gif, film)
+        written += write_animation(results.solution, gif, film, mirrors=mirrors)
     if vtk:
         written += write_vtk_series(results.solution, staging / FIELD_FOLDER)
         if xdmf:

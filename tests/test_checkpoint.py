@@ -321,8 +321,8 @@ def test_the_command_line_resumes_to_the_same_results(tmp_path, monkeypatch, cap
     err = capsys.readouterr().err.strip().splitlines()
     kept = checkpoint_path(out)
     assert len(err) == 1 and re.fullmatch(
-        rf"soakwise: interrupted at t = [0-9.]+ s of 600 s; checkpoint of t = [0-9.]+ s kept "
-        rf"in {re.escape(str(kept))} \(resume with --resume\)",
+        rf"soakwise: interrupted at t = [0-9 .mins]+ of 10 min; checkpoint of t = [0-9 .mins]+ "
+        rf"kept in {re.escape(str(kept))} \(resume with --resume\)",
         err[0],
     ), err
     assert kept.is_file() and not out.exists()

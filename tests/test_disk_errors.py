@@ -60,7 +60,8 @@ def no_space(*args, **kwargs):
 # Each writer, with only the outputs it needs switched on (the others cost time).
 WRITERS = {
     "write_histories_csv": {},
-    "write_plots": {},
+    "write_line_plots": {},
+    "write_snapshots": {},
     "write_animation": {"animation": True},
     "write_vtk_series": {"vtk": True},
     "write_xdmf_series": {"vtk": True},

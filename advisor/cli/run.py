@@ -169,7 +169,9 @@ class Saving:
         saved = saved if saved is not None else self.resumed_at
         if saved is None or not self.path.is_file():
             return None
-        return f"checkpoint of t = {saved:.4g} s kept in {self.path} (resume with --resume)"
+        return (
+            f"checkpoint of t = {duration_text(saved)} kept in {self.path} (resume with --resume)"
+        )
 
     def remove(self) -> None:
         from ..checkpoint import remove_checkpoint
