@@ -15,10 +15,11 @@ leaves unbalanced is within ``BALANCE_SHARE`` of the tolerance times the part's 
 so that an early stop cannot spoil the run's energy balance.
 
 Each update is damped by a line search on the residual's norm (Armijo's test, step lengths
-halved): a full update that does not lower the residual is first retried with a fresh tangent,
-then shortened. Latent heat released over a narrow range, or a coefficient that jumps with the
-surface temperature, make the full update overshoot; the shortened one does not. When the
-iterations still fail, :class:`NewtonStepError` tells the march to retry the step smaller.
+halved): a full update that does not lower the residual is first retried with a fresh tangent
+(unless the tangent was renewed an iteration ago), then shortened. Latent heat released over
+a narrow range, or a coefficient that jumps with the surface temperature, make the full update
+overshoot; the shortened one does not. When the iterations still fail,
+:class:`NewtonStepError` tells the march to retry the step smaller.
 """
 
 from __future__ import annotations
@@ -171,7 +172,7 @@ class NewtonStep:
                 fresh, kept = True, 0
             direction = self.mixing.update(u[free], change)
             length, trial, trial_norm = self._search(u, direction, residual, norm, free)
-            if length < 1 and not fresh:  # try the exact tangent before damping
+            if length < 1 and kept >= 2:  # an older tangent: try the exact one before damping
                 change, largest = self._refresh(u, r, formula, step, t1, key)
                 fresh, kept = True, 0
                 direction = self.mixing.update(u[free], change)
