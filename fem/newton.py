@@ -15,16 +15,18 @@ leaves unbalanced is within ``BALANCE_SHARE`` of the tolerance times the part's 
 so that an early stop cannot spoil the run's energy balance.
 
 Each update is damped by a line search on the residual's norm (Armijo's test, step lengths
-halved): a full update that does not lower the residual is first retried with a fresh tangent,
-then shortened. Latent heat released over a narrow range, or a coefficient that jumps with the
-surface temperature, make the full update overshoot; the shortened one does not. When the
-iterations still fail, :class:`NewtonStepError` tells the march to retry the step smaller.
+halved): a full update that does not lower the residual is first retried with a fresh tangent
+(unless the tangent was renewed an iteration ago), then shortened. Latent heat released over
+a narrow range, or a coefficient that jumps with the surface temperature, make the full update
+overshoot; the shortened one does not. When the iterations still fail,
+:class:`NewtonStepError` tells the march to retry the step smaller.
 """
 
 from __future__ import annotations
 
 import math
 import time as clock
+from typing import NoReturn
 
 import numpy as np
 
@@ -147,16 +149,14 @@ class NewtonStep:
         norm = float(np.linalg.norm(r[free]))
         largest = math.inf
         stalled = iteration = kept = 0  # kept: iterations on the tangent since it was refreshed
-        tolerance = controls.newton_tolerance
+        tolerance = controls.newton_tolerance  # K
         while iteration < controls.max_newton_iterations:
             iteration += 1
             change = self.tangent[1].solve(-r[free])
             largest = float(np.abs(change).max(initial=0.0))
             if not math.isfinite(previous) and self.rate:
                 previous = largest / self.rate  # a step's first change: the last step's rate
-            if largest <= tolerance or self._converging(
-                largest, previous, tolerance
-            ):  # converged, if the step's heat balance closes too
+            if self._converged(largest, previous, tolerance):  # if the heat balance closes
                 self.mixing.update(u[free], change)
                 u[free] += change
                 r = residual(u)
@@ -164,18 +164,15 @@ class NewtonStep:
                     self.rate = largest / previous if math.isfinite(previous) else None
                     break
                 stagnant = largest > TANGENT_RATE * previous  # (the kept tangent's fault)
-                norm, previous, fresh, kept = float(np.linalg.norm(r[free])), largest, False, 0
-                if stagnant:
-                    self._factor(u, formula, step, t1, key)
-                    self.mixing.reset()
-                    fresh = True
+                norm, previous, kept = float(np.linalg.norm(r[free])), largest, 0
+                fresh = stagnant and self._renew(u, formula, step, t1, key)
                 continue
             if not fresh and self._stale(largest, previous, tolerance, kept):
                 change, largest = self._refresh(u, r, formula, step, t1, key)
                 fresh, kept = True, 0
             direction = self.mixing.update(u[free], change)
             length, trial, trial_norm = self._search(u, direction, residual, norm, free)
-            if length < 1 and not fresh:  # try the exact tangent before damping
+            if length < 1 and kept >= 2:  # an older tangent: try the exact one before damping
                 change, largest = self._refresh(u, r, formula, step, t1, key)
                 fresh, kept = True, 0
                 direction = self.mixing.update(u[free], change)
@@ -189,16 +186,16 @@ class NewtonStep:
             previous = largest
             stalled = stalled + 1 if length <= STALLED_LENGTH else 0
             if stalled >= STALLED_ITERATIONS:
-                break
+                self._fail(iteration, r, largest, stalled, step, t1)
         else:
-            self._fail(iteration, r, largest, stalled, step, t1)
-        if stalled >= STALLED_ITERATIONS:
             self._fail(iteration, r, largest, stalled, step, t1)
         cost.iterated(iteration)
         spent = clock.perf_counter() - started
         cost.iteration_seconds += spent - (cost.factorisation_seconds - factoring)
 
-    def _fail(self, iteration: int, r, largest: float, stalled: int, step: float, t1: float):
+    def _fail(
+        self, iteration: int, r, largest: float, stalled: int, step: float, t1: float
+    ) -> NoReturn:
         """Raise :class:`NewtonStepError` for a step whose iterations stalled or ran out."""
         self.run.cost.iterated(iteration)
         free = self.run.system.free_dofs
@@ -215,20 +212,28 @@ class NewtonStep:
             how,
         )
 
-    def _refresh(self, u, r, formula: StepFormula, step: float, t1: float, key):
-        """Refactorise the tangent at ``u`` and return Newton's update there with its largest
-        entry (K); the mixing starts again, since its updates came from the old tangent."""
+    def _renew(self, u, formula: StepFormula, step: float, t1: float, key) -> bool:
+        """Refactorise the tangent at ``u``; the mixing starts again, since its updates came
+        from the old tangent. True (the tangent is fresh)."""
         self._factor(u, formula, step, t1, key)
         self.mixing.reset()
+        return True
+
+    def _refresh(self, u, r, formula: StepFormula, step: float, t1: float, key):
+        """Refactorise the tangent at ``u`` and return Newton's update there with its largest
+        entry (K)."""
+        self._renew(u, formula, step, t1, key)
         change = self.tangent[1].solve(-r[self.run.system.free_dofs])
         return change, float(np.abs(change).max(initial=0.0))
 
     @staticmethod
-    def _converging(change: float, previous: float, tolerance: float) -> bool:
+    def _converged(change: float, previous: float, tolerance: float) -> bool:
         """Whether the iterate plus ``change`` (K) is within ``tolerance`` of the step's
-        solution by the rate θ shown since the ``previous`` change: the changes still to come,
-        θ/(1 − θ) of this one, are below it (Hairer & Wanner, *Solving Ordinary Differential
-        Equations II*, 2nd ed., §IV.8, from memory)."""
+        solution: the change is below it, or, at the rate θ shown since the ``previous``
+        change, the changes still to come, θ/(1 − θ) of this one, are (Hairer & Wanner,
+        *Solving Ordinary Differential Equations II*, 2nd ed., §IV.8, from memory)."""
+        if change <= tolerance:
+            return True
         if not math.isfinite(previous):
             return False
         rate = change / previous
