@@ -119,3 +119,19 @@ def test_an_insulated_part_heated_by_a_flux_reports_the_field(tmp_path, capsys):
     # The scheme conserves energy to round-off (its heat balance is exact for a constant
     # flux): the mean follows the first law to 1e-9 K.
     np.testing.assert_allclose(found["mean [degC]"], 100.0 + rise, atol=1e-9)
+
+
+def test_check_and_show_answer_a_case_of_the_field_alone(tmp_path, capsys):
+    """`check` says no lumped model applies instead of refusing; `show` reads the folder's
+    summary and gives the field's end state in the units of the run."""
+    text = CASE.format(title="fixed faces", right="faces", faces='fixed = "20 degC"', heated="")
+    out, _ = run(tmp_path, capsys, text)
+    case = tmp_path / "wall.toml"
+    assert case.is_file()
+    assert main(["check", str(case)]) == EXIT_OK
+    assert "No lumped model applies" in capsys.readouterr().err
+    assert main(["show", str(out)]) == EXIT_OK
+    shown = capsys.readouterr().out.splitlines()
+    summary = json.loads((out / "summary.json").read_text(encoding="utf-8"))
+    assert shown[0].startswith("No lumped model applies:")
+    assert f"(mean {summary['final']['mean_degC']:.4g} °C)" in shown[1]

@@ -24,11 +24,18 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 def execute(args: argparse.Namespace) -> int:
     from ..analysis.quick import quick_check
     from ..casefile.case import load_case
+    from ..field_results import no_lumped_reason
 
     case = load_case(args.case)
     options = case.advisor_options
+    model = case.model()
+    reason = no_lumped_reason(model)
+    if reason is not None:  # fixed temperatures or fluxes only: nothing to judge
+        log.info(f"No lumped model applies: {reason}; `soakwise run` gives the field.")
+        log.info(f"Caution: {CAUTION}")
+        return EXIT_OK
     check = quick_check(
-        case.model(),
+        model,
         target=options.get("target"),
         process=options.get("process"),
         end_time=case.end_time,

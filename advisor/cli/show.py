@@ -23,7 +23,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 def execute(args: argparse.Namespace) -> int:
     summary = read_summary(args.folder)
-    for line in summary_lines(summary):
+    lines = field_lines(summary) if "lumped_model" in summary else summary_lines(summary)
+    for line in lines:
         print(line)
     return EXIT_OK
 
@@ -35,13 +36,31 @@ def read_summary(folder: Path) -> dict:
         raise AdvisorError(f"{str(folder)!r} is not a results folder (no summary.json)")
     try:
         summary = json.loads(path.read_text(encoding="utf-8"))
-        for key in ("verdict", "inputs", "time_to_target_s", "peak_internal_difference_K"):
+        needed = ("verdict", "inputs", "time_to_target_s", "peak_internal_difference_K")
+        if "lumped_model" in summary:  # a run of the field alone
+            needed = ("lumped_model", "final", "peak_internal_difference_K")
+        for key in needed:
             summary[key]  # noqa: B018 - a KeyError names the missing part
     except (ValueError, KeyError, TypeError) as error:
         raise AdvisorError(
             f"{str(path)!r} cannot be read as a soakwise summary: {error}"
         ) from None
     return summary
+
+
+def field_lines(summary: dict) -> list[str]:
+    """A run no lumped model applies to, in words: why, the field at the end, its checks."""
+    final = summary["final"]
+    lines = [
+        f"No lumped model applies: {summary['lumped_model']['reason']}.",
+        f"At {duration_text(final['time_s'])} the field runs from {final['minimum_degC']:.4g} "
+        f"to {final['maximum_degC']:.4g} °C (mean {final['mean_degC']:.4g} °C).",
+        f"Peak internal temperature difference: {summary['peak_internal_difference_K']:.3g} K",
+    ]
+    checks = summary.get("checks", {})
+    lines += [f"Check: {w}" for w in checks.get("warnings", [])]
+    lines += [f"Note: {n}" for n in checks.get("notes", [])]
+    return [*lines, f"Caution: {summary['caution']}"]
 
 
 def summary_lines(summary: dict) -> list[str]:

@@ -39,6 +39,7 @@ def write_field_summary_json(results, path: Path, files: list[str]) -> None:
             "energy_balance_error": checks.energy_balance_error,
             "temperature_excursion_K": checks.temperature_excursion,
             "warnings": list(checks.warnings),
+            "notes": list(checks.notes),
         },
         "solver": {"method": stats.method, "steps": stats.steps, "unknowns": stats.unknowns},
         "files": files,
