@@ -30,6 +30,7 @@ import numpy as np
 
 from .errors import AdvisorError
 from .writers.atomic import atomic_path
+from .writers.version import soakwise_version
 
 FORMAT = 1
 DEFAULT_SECONDS = 30.0  # wall-clock time between checkpoints when a case does not say
@@ -63,16 +64,6 @@ def checkpoint_path(folder: Path) -> Path:
 def case_fingerprint(data: bytes) -> str:
     """The SHA-256 of a case file's bytes, hexadecimal: a checkpoint belongs to these bytes."""
     return hashlib.sha256(data).hexdigest()
-
-
-def soakwise_version() -> str:
-    """The installed soakwise's version ("unknown" when it is not installed)."""
-    from importlib.metadata import PackageNotFoundError, version
-
-    try:
-        return version("soakwise")
-    except PackageNotFoundError:
-        return "unknown"
 
 
 class Checkpointer:

@@ -13,7 +13,6 @@ import argparse
 import json
 import os
 import re
-import resource
 import signal
 import subprocess
 import sys
@@ -221,6 +220,8 @@ def run_process(command, timeout, memory_limit, log_path, cwd=ROOT) -> tuple[str
 
     def limits():
         if limit:
+            import resource  # Unix only: imported where it is used
+
             resource.setrlimit(resource.RLIMIT_AS, (limit, limit))
 
     with open(log_path, "wb") as log:

@@ -13,7 +13,6 @@ reads the quench-bar starter. The import footprint is read from a fresh interpre
 from __future__ import annotations
 
 import json
-import resource
 import statistics
 import subprocess
 import sys
@@ -52,6 +51,8 @@ def command_seconds(arguments: list[str], runs: int, results: str = "") -> dict:
         command += [a.format(out=scratch, results=results) for a in arguments]
         times, cpu = [], []
         for run in range(runs + 1):  # the first run warms the file cache and is not counted
+            import resource  # Unix only: imported where it is used
+
             before = resource.getrusage(resource.RUSAGE_CHILDREN)
             started = time.perf_counter()
             done = subprocess.run(command, cwd=ROOT, capture_output=True, text=True, timeout=120)

@@ -19,7 +19,6 @@ from __future__ import annotations
 import argparse
 import json
 import os
-import resource
 import statistics
 import subprocess
 import sys
@@ -38,6 +37,8 @@ def _starters() -> list[str]:
 
 
 def _cpu_of_children() -> float:
+    import resource  # Unix only: imported where it is used
+
     usage = resource.getrusage(resource.RUSAGE_CHILDREN)
     return usage.ru_utime + usage.ru_stime
 

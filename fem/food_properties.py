@@ -154,11 +154,6 @@ class Composition:
             for n, x in fractions.items()
         )
 
-    def sensible_specific_heat(self, temperature):
-        """Σ x_i c_i with the ice fraction at ``temperature`` (no latent heat), J/(kg·K)."""
-        fractions = self._fractions(temperature)
-        return sum(x * component(n, "specific_heat", temperature) for n, x in fractions.items())
-
     def specific_enthalpy(self, temperature, reference: float = -40.0):
         """h(T) in J/kg from ``reference`` °C: each component's ∫c dT (water's from 0 °C plus
         the latent heat, ice's from 0 °C), weighted by its mass fraction at T."""

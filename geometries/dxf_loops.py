@@ -109,7 +109,7 @@ def join_pieces(pieces: list[Piece], tolerance: float, units: str) -> list[Loop]
                     argument="path",
                 )
             if not near:
-                raise _gap(chain, ends, used, tree, units)
+                raise _gap(chain, ends, used, units)
             k = near[0]
             used[k // 2] = True
             piece = pieces[k // 2]
@@ -118,7 +118,7 @@ def join_pieces(pieces: list[Piece], tolerance: float, units: str) -> list[Loop]
     return loops
 
 
-def _gap(chain: list[Piece], ends: np.ndarray, used: np.ndarray, tree, units: str):
+def _gap(chain: list[Piece], ends: np.ndarray, used: np.ndarray, units: str):
     """The error for a chain whose last end meets nothing: where, and the nearest free end."""
     here = np.asarray(chain[-1].end)
     free = [k for k in range(len(ends)) if not used[k // 2]]

@@ -37,6 +37,7 @@ from scipy.optimize import brentq
 from advisor import AdvisorError
 from advisor.analysis.stages import Stage, arrival, check_stages
 from advisor.pipeline import run_model
+from advisor.time_words import duration_text
 from fem import Convection, Insulated, Material, StopWhen, ThermalModel
 from fem.events import stop_reason
 from fem.schedules import PiecewiseLinear
@@ -135,7 +136,8 @@ def test_the_stop_reason_is_stated(furnace_run):
     a = furnace_run
     assert a.solution.stop_reason.startswith("stopped at ")
     assert "probe 'core' reached 845 °C" in a.solution.stop_reason
-    assert a.ending.startswith(a.solution.stop_reason)
+    # the same words, the time said for a person
+    assert a.ending.startswith(f"stopped at {duration_text(a.solution.stop_time)}: probe 'core'")
     assert "the slowest point reached the target 845 °C" in a.ending
 
 
@@ -149,7 +151,7 @@ def test_end_time_reached_without_the_target_is_stated():
         advisor_options={"target": SOAK},
     ).assessment
     assert a.solution.stop_time is None
-    assert a.ending.startswith(f"end time reached ({RAMP:g} s)")
+    assert a.ending.startswith(f"end time reached ({duration_text(RAMP)})")
     assert "the stop condition (probe 'core' reaching 845 °C) was not met" in a.ending
     assert a.ending.endswith("target 845 °C not reached at the slowest point")
     assert stop_reason(None, None, 60.0) == "end time reached (60 s)"

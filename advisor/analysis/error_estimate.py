@@ -46,6 +46,7 @@ from fem import Solution, ThermalModel, solve
 from fem.scales import default_tolerance
 
 from ..errors import AdvisorError
+from ..time_words import duration_text
 from .lumped_fits import crossing_time
 
 SAFETY_FACTOR = 1.25  # Roache's factor of safety, as in Celik et al. (2008), from memory
@@ -164,7 +165,7 @@ def estimate_errors(
     -------
     ErrorEstimate
     """
-    started = _clock()
+    started = _now()
     fine_model = solution.model
     options = dict(run_options or {})
     end = float(solution.times[-1]) if end_time is None else float(end_time)
@@ -202,7 +203,7 @@ def estimate_errors(
         + f"; factor of safety {SAFETY_FACTOR:g}"
         + (P2_CAVEAT if fine_model.element_order == 2 else "")
     )
-    return ErrorEstimate(answers, p, q, ratio, method, warnings, _clock() - started)
+    return ErrorEstimate(answers, p, q, ratio, method, warnings, _now() - started)
 
 
 def _coarser_in_time(solution: Solution, model: ThermalModel, options: dict):
@@ -297,7 +298,8 @@ def estimate_lines(estimate: ErrorEstimate | None) -> list[str]:
     for a in estimate.answers.values():
         if a.name == "time_to_target":
             lines.append(
-                f"Discretisation error: {_words(a.name)} {a.value:.5g} s ± {a.estimate:.3g} s"
+                f"Discretisation error: {_words(a.name)} {duration_text(a.value)} ± "
+                f"{duration_text(a.estimate)}"
             )
         elif a.name == "peak_difference":
             lines.append(
@@ -388,7 +390,7 @@ def _words(name: str) -> str:
     return words.get(name, f"the temperature at probe {name.partition(':')[2]!r}")
 
 
-def _clock() -> float:
+def _now() -> float:
     import time
 
     return time.perf_counter()

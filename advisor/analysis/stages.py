@@ -20,6 +20,7 @@ import numpy as np
 from fem import Solution
 
 from ..errors import AdvisorError
+from ..time_words import duration_text
 from .lumped_fits import crossing_time
 
 PLACES = ("slowest", "mean")
@@ -50,7 +51,11 @@ class Stage:
 
     def describe(self) -> str:
         """The stage in words, e.g. ``"the slowest point reaches 21 °C within 2 h"``."""
-        when = f"by {_clock(self.by)}" if self.by is not None else f"within {_clock(self.within)}"
+        when = (
+            f"by {duration_text(self.by)}"
+            if self.by is not None
+            else f"within {duration_text(self.within)}"
+        )
         return f"{place_words(self.at)} reaches {self.reach:g} °C {when}"
 
 
@@ -135,7 +140,7 @@ def check_stages(stages: Sequence[Stage], probes: Sequence[str] | None = None) -
         _check_place(stage.at, probes, f"{key}.at")
         if i and stages[i - 1].reach == stage.reach:
             raise AdvisorError(
-                f"{key}.reach repeats the stage before ({stage.reach:g} degC); give each stage "
+                f"{key}.reach repeats the stage before ({stage.reach:g} °C); give each stage "
                 "its own temperature",
                 argument=f"{key}.reach",
             )
@@ -259,32 +264,33 @@ def run_ending(solution: Solution, target: float | None, slowest_time: float | N
     """How the run ended and whether the slowest point reached ``target``, in plain words:
     ``"stopped at 5400 s: probe 'core' reached 845 °C"``, ``"end time reached (7200 s);
     target 845 °C not reached at the slowest point"``."""
-    reason = solution.stop_reason or f"end time reached ({float(solution.times[-1]):.6g} s)"
+    if solution.stop_time is not None and ": " in solution.stop_reason:
+        # the solver's words name the condition; the time is said for a person here
+        reason = f"stopped at {duration_text(solution.stop_time)}: "
+        reason += solution.stop_reason.split(": ", 1)[1]
+    else:  # "end time reached (… s)", and what the stop condition did, if there was one
+        reason = f"end time reached ({duration_text(float(solution.times[-1]))})"
+        if solution.stop_reason.startswith("end time reached ("):
+            reason += solution.stop_reason[solution.stop_reason.index(")") + 1 :]
     if target is None:
         return reason
     if slowest_time is None:
         return f"{reason}; target {target:g} °C not reached at the slowest point"
-    return f"{reason}; the slowest point reached the target {target:g} °C at {slowest_time:.6g} s"
-
-
-def _clock(seconds: float | None) -> str:
-    """A time in s as words: '90 s', '15 min', '2 h'."""
-    if seconds is None:
-        return "—"
-    for unit, size in (("h", 3600.0), ("min", 60.0)):
-        if seconds >= size:
-            return f"{seconds / size:.4g} {unit}"
-    return f"{seconds:.4g} s"
+    return (
+        f"{reason}; the slowest point reached the target {target:g} °C at "
+        f"{duration_text(slowest_time)}"
+    )
 
 
 def ending_lines(ending: str, stages: Sequence[StageResult]) -> list[str]:
     """Lines for a terminal summary: how the run ended and each stage's result."""
     lines = [f"Run: {ending}."] if ending else []
     for i, r in enumerate(stages):
-        reached = "not reached" if r.reached is None else f"reached at {r.reached:.5g} s"
+        reached = "not reached" if r.reached is None else f"reached at {duration_text(r.reached)}"
         margin = ""
         if r.margin is not None:
-            margin = f", {abs(r.margin):.4g} s {'to spare' if r.margin >= 0 else 'late'}"
+            late = "to spare" if r.margin >= 0 else "late"
+            margin = f", {duration_text(abs(r.margin))} {late}"
         result = f"{r.status.upper()}, {reached}{margin}"
         lines.append(f"Stage {i + 1} ({r.stage.describe()}): {result}")
     return lines

@@ -128,7 +128,7 @@ def read_stages(advisor: Table, probes: tuple[str, ...] = ()) -> tuple[Stage, ..
 
 
 def read_outputs(root: Table) -> dict[str, bool]:
-    """``[outputs]``: which optional files to write (animation, report, VTK)."""
+    """``[outputs]``: which optional files to write (the switches of ``schema.OUTPUTS``)."""
     table = root.table("outputs", None)
     if table is None:
         return {}

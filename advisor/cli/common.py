@@ -50,8 +50,9 @@ def progress_display():
     return RunProgress() if log.isEnabledFor(logging.INFO) else None
 
 
-def report_run(assessment, folder: Path, files: list[Path]) -> None:
-    """Log the solver's figures, the Biot numbers, the verdict and where the files went."""
+def report_run(assessment, folder: Path, files: list[Path], more: tuple[str, ...] = ()) -> None:
+    """Log the solver's figures, the Biot numbers, the verdict, ``more`` lines (how the run
+    ended, its error estimate) and where the files went."""
     solution = assessment.solution
     stats = solution.stats
     log.debug(
@@ -76,6 +77,8 @@ def report_run(assessment, folder: Path, files: list[Path]) -> None:
         log.warning(f"check: {warning}")
     for note in solution.checks.notes:
         log.info(f"note: {note}")
+    for line in more:
+        log.info(line)
     for note in getattr(files, "notes", ()):  # an optional output skipped for its extra
         log.info(f"note: {note}")
     log.info(closing_line(folder, files))

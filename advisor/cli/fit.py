@@ -9,6 +9,7 @@ import sys
 from pathlib import Path
 
 from ..errors import AdvisorError
+from ..time_words import duration_text
 from .common import EXIT_OK, Interrupted, log, rearm_terminate
 
 SUMMARY = "fit heat-transfer coefficients (or an emissivity) to measured temperature curves"
@@ -175,7 +176,8 @@ def _report(outcome, out: Path, files) -> None:
     for reading in outcome.lumped:
         log.info(f"Lumped hand method: {reading.sentence()}.")
     log.info(
-        f"{result.trials} transient solves in {result.seconds:.3g} s. Wrote {len(files)} files "
-        f"to {out}/: open fit.html; fitted.toml holds the fitted boundary tables"
+        f"{result.trials} transient solves in {duration_text(result.seconds)}. Wrote "
+        f"{len(files)} files to {out}/: open fit.html; fitted.toml holds the fitted boundary "
+        "tables"
     )
     log.info(f"Caution: {CAUTION}")

@@ -49,7 +49,7 @@ def execute(args: argparse.Namespace) -> int:
     temperatures, k, c = _rows(entry)
     print(f"{entry.name}: {entry.source}")
     print(f"density {entry.material.density:.5g} kg/m^3; {entry.range_words()}")
-    print(f"{'T (degC)':>10} {'k (W/(m*K))':>12} {'c (J/(kg*K))':>13} {'alpha (mm^2/s)':>15}")
+    print(f"{'T (°C)':>10} {'k (W/(m·K))':>12} {'c (J/(kg·K))':>13} {'α (mm²/s)':>15}")
     for t, kk, cc in zip(temperatures, k, c, strict=True):
         alpha = kk / (entry.material.density * cc) * 1e6
         print(f"{t:10.4g} {kk:12.4g} {cc:13.5g} {alpha:15.4g}")

@@ -94,14 +94,13 @@ def execute(args: argparse.Namespace) -> int:
     if isinstance(results, FieldResults):
         report_field(results, out, files)
         return EXIT_OK
-    report_run(results.assessment, out, files)
     from ..analysis.error_estimate import estimate_lines
     from ..analysis.stages import ending_lines
 
-    for line in ending_lines(results.assessment.ending, results.assessment.stages):
-        log.info(line)
-    for line in estimate_lines(results.assessment.error_estimate):
-        log.info(line)
+    assessment = results.assessment
+    more = ending_lines(assessment.ending, assessment.stages)
+    more += estimate_lines(assessment.error_estimate)
+    report_run(assessment, out, files, tuple(more))
     return EXIT_OK
 
 
@@ -160,7 +159,7 @@ class Saving:
             return None
         state, self.resumed_at = read_checkpoint(self.path, self.fingerprint)
         self.started = True
-        log.info(f"Resuming from t = {self.resumed_at:.4g} s ({self.path})")
+        log.info(f"Resuming from t = {duration_text(self.resumed_at)} ({self.path})")
         return state
 
     def kept(self) -> str | None:

@@ -9,6 +9,7 @@ import numpy as np
 
 from ..errors import ModelError
 from ..materials import Material, PropertyTable
+from ..temperatures import KELVIN
 
 
 class LibraryTable(PropertyTable):
@@ -26,7 +27,7 @@ def table(temperatures, values) -> LibraryTable:
 
 def kelvin_table(kelvins, values) -> LibraryTable:
     """A library table from temperatures in K (as handbooks tabulate them)."""
-    return table([k - 273.15 for k in kelvins], values)
+    return table([k - KELVIN for k in kelvins], values)
 
 
 @dataclass(frozen=True)
@@ -72,7 +73,7 @@ def entry(
     what: str = "",
 ) -> LibraryEntry:
     """An entry whose material's user-facing source says what the data are and their range."""
-    span = "" if valid_range is None else f"; {valid_range[0]:g} to {valid_range[1]:g} degC"
+    span = "" if valid_range is None else f"; {valid_range[0]:.0f} to {valid_range[1]:.0f} °C"
     material = Material(conductivity, density, specific_heat, name, f"{source}{span}")
     varying = [
         words
@@ -113,9 +114,9 @@ def range_warnings(entries, materials: dict, lowest: float, highest: float) -> l
         slack = max(0.5, 1e-3 * (high - low))
         if lowest < low - slack or highest > high + slack:
             lines.append(
-                f"{where} ({lowest:.4g} to {highest:.4g} degC) leave the range of the "
-                f"library's data for {found.name!r} (region {region!r}: {low:g} to {high:g} "
-                "degC); beyond it the end values are used"
+                f"{where} ({lowest:.4g} to {highest:.4g} °C) leave the range of the "
+                f"library's data for {found.name!r} (region {region!r}: {low:.0f} to {high:.0f} "
+                "°C); beyond it the end values are used"
             )
     return lines
 
