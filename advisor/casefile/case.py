@@ -148,7 +148,9 @@ class Case:
                     self.context.fail("materials", message)
                 raise CaseError(f"{self.path.name}: materials: {message}")
             material = {region: self.materials[region] for region in section_mesh.regions}
-        check_probes(section_mesh, self.probes, self.raw.get("probes", {}), self.context)
+        piece = section_mesh.facts.symmetry_multiplier > 1 or bool(self.mirrors)
+        raw_probes = self.raw.get("probes", {})
+        check_probes(section_mesh, self.probes, raw_probes, self.context, piece)
         model = ThermalModel(
             section_mesh,
             material,

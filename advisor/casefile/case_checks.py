@@ -36,9 +36,12 @@ def shown_in(value: float, kind: str, unit: str | None) -> str:
     return f"{value / scale:.4g} {unit}"
 
 
-def check_probes(section_mesh, probes: dict, raw: dict, context: Context | None) -> None:
+def check_probes(
+    section_mesh, probes: dict, raw: dict, context: Context | None, piece: bool = False
+) -> None:
     """Refuse the first probe outside ``section_mesh`` at ``probes.<name>``, with the point
-    and the section's extent in the units the case wrote the probe in."""
+    and the section's extent in the units the case wrote the probe in; ``piece``: the mesh
+    is a symmetric piece of the part (the pictures show the whole), which the message says."""
     for name, point in probes.items():
         try:
             section_mesh.locate(np.asarray(point, dtype=float).reshape(2, 1))
@@ -56,6 +59,11 @@ def check_probes(section_mesh, probes: dict, raw: dict, context: Context | None)
                 f"section, which spans x = {length(x0)} to {length(x1)} and y = "
                 f"{length(y0)} to {length(y1)}"
             )
+            if piece:
+                message += (
+                    "; probes are placed on the modelled piece (the pictures mirror it to the "
+                    "whole part): give the point's mirror image inside the piece"
+                )
             _fail(context, f"probes.{name}", message)
 
 
