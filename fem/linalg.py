@@ -264,13 +264,19 @@ class LinearAlgebra:
         key = (float(f"{scale:.12e}"), self.system.exchange_key(time))
         return _remember(self._fixed_parts, key, make)
 
-    def load(self, time: float) -> np.ndarray:
-        """b(time), cached by the loads' coefficients (do not change the array in place)."""
+    def load(self, time: float) -> tuple[np.ndarray, float]:
+        """b(time) and its sum 1ᵀb (W), cached by the loads' coefficients (do not change the
+        array in place)."""
         system = self.system
         key = tuple(c.supplied(time) for _, c in system.flowing()) + tuple(
             q(time) for q in system.model.heat_sources.values()
         )
-        return _remember(self._loads, key, lambda: system.load(time))
+
+        def make():
+            load = system.load(time)
+            return load, float(load.sum())
+
+        return _remember(self._loads, key, make)
 
 
 def _fixed(system: ConductionSystem) -> np.ndarray:
