@@ -6,10 +6,11 @@ of radiation and c(T)). Two ways to factorise them, both reached through
 
 - ``"cholesky"``: L·Lᵀ from CHOLMOD through ``cholespy`` (a wheel with SuiteSparse inside),
   which orders the matrix itself (METIS nested dissection) and permutes inside its solve. It
-  stores one triangle: on the benchmark square a solve took 0.31 ms instead of 0.67 ms at 10k
-  unknowns, 5.9 ms instead of 14.4 ms at 97k and 131 ms instead of 188 ms at 992k, while its
-  factorisation took longer (16.1 s against 5.0 s of ordering and 7.5 s of LU at 992k; 1.4×
-  SuperLU's at 10k), so it pays from about 20 (97k) to 100 (10k) solves per factorisation.
+  stores one triangle: on the benchmark square's step matrix a solve took 0.29 ms instead of
+  0.63 ms at 10k unknowns, 7.6 ms instead of 14.7 ms at 97k and 145 ms instead of 188 ms at
+  992k, while its factorisation took longer (39 ms against 26 ms at 10k; 16.1 s against 5.0 s
+  of ordering and 7.5 s of LU at 992k), so it pays from about 50 (97k) to 100-150 (10k, 992k)
+  solves per factorisation.
   The default for the step matrices of fixed-step runs (one factorisation serves the run's
   steps; the driver chooses, :mod:`fem.transient`) when ``cholespy`` is installed; other
   factorisations (adaptive steps, exponential steps, Newton tangents) take it when asked.
@@ -264,13 +265,19 @@ class LinearAlgebra:
         key = (float(f"{scale:.12e}"), self.system.exchange_key(time))
         return _remember(self._fixed_parts, key, make)
 
-    def load(self, time: float) -> np.ndarray:
-        """b(time), cached by the loads' coefficients (do not change the array in place)."""
+    def load(self, time: float) -> tuple[np.ndarray, float]:
+        """b(time) and its sum 1ᵀb (W), cached by the loads' coefficients (do not change the
+        array in place)."""
         system = self.system
         key = tuple(c.supplied(time) for _, c in system.flowing()) + tuple(
             q(time) for q in system.model.heat_sources.values()
         )
-        return _remember(self._loads, key, lambda: system.load(time))
+
+        def make():
+            load = system.load(time)
+            return load, float(load.sum())
+
+        return _remember(self._loads, key, make)
 
 
 def _fixed(system: ConductionSystem) -> np.ndarray:

@@ -25,6 +25,8 @@ class LinearStep:
 
     def __init__(self, run: RunContext):
         self.run = run
+        # (field, column sums, 1ᵀA·T) of the last step: the next theta step needs it again
+        self._outflow: tuple[np.ndarray, np.ndarray, float] | None = None
 
     def solve(
         self,
@@ -42,7 +44,7 @@ class LinearStep:
         implicit = formula.matrix_scale(step)  # β·h/a0
         inside1 = t1 - 1e-9 * step
         _, column1 = algebra.operator(inside1)
-        load1 = algebra.load(inside1)
+        load1, total1 = algebra.load(inside1)
         rhs, inflow_old = self._right_side(formula, scale, t0 + 1e-9 * step, load1, states)
         factor = algebra.step_factor(implicit, inside1)
         reactions: dict[str, float] = {}
@@ -57,7 +59,9 @@ class LinearStep:
             u = factor.solve(rhs)
         self.run.cost.iterated(1)
         beta = formula.beta
-        inflow = beta * (load1.sum() - inner(column1, u)) + (1 - beta) * inflow_old
+        outflow = inner(column1, u)
+        self._outflow = (u, column1, outflow)
+        inflow = beta * (total1 - outflow) + (1 - beta) * inflow_old
         heat = step * (inflow + sum(reactions.values()))
         return StepResult(u, inner(self.run.capacity_columns, u), float(heat), reactions)
 
@@ -67,19 +71,27 @@ class LinearStep:
         a0, beta = formula.a[0], formula.beta
         if formula.history == 1 and beta < 1:
             _, column0 = algebra.operator(inside0)
-            load0 = algebra.load(inside0)
+            load0, total0 = algebra.load(inside0)
             explicit = algebra.explicit((1 - beta) * scale, inside0)
             rhs = explicit @ states[0]  # (M − (1 − β)·s·A0)·T0 in one product
             if load0 is load1:  # the same loads (cached by their coefficients)
                 rhs += scale * load1
             else:
                 rhs += scale * ((1 - beta) * load0 + beta * load1)
-            return rhs, load0.sum() - inner(column0, states[0])
+            return rhs, total0 - self._old_outflow(column0, states[0])
         # backward Euler and BDF2: no explicit operator part
         history = -sum(a / a0 * u for a, u in zip(formula.a[1:], states, strict=False))
         rhs = system.capacity @ history
         rhs += scale * beta * load1
         return rhs, 0.0
+
+    def _old_outflow(self, column: np.ndarray, field: np.ndarray) -> float:
+        """1ᵀA·T of the old state: the last step's when it is the same field and operator
+        (both cached objects, so identity is equality)."""
+        last = self._outflow
+        if last is not None and last[0] is field and last[1] is column:
+            return last[2]
+        return inner(column, field)
 
     def _reactions(self, rows: np.ndarray) -> dict[str, float]:
         """Each fixed group's heat flow into the part (W), from the unenforced rows of the
