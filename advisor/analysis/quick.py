@@ -172,10 +172,10 @@ def assumptions_broken(model: ThermalModel, temperature: float) -> tuple[str, ..
     }
     if tables:
         reasons.append(
-            f"the conductivity of {sorted(tables)} depends on temperature: the mode uses the "
-            "table's mid-range value, which moves the estimate either way"
+            f"the conductivity of {sorted(tables)} depends on temperature: the mode takes it at "
+            f"the starting {temperature:.4g} °C, which moves the estimate either way"
         )
-    reasons.extend(_heat_capacity_reasons(model))
+    reasons.extend(_heat_capacity_reasons(model, temperature))
     changing = sorted({n for n, c in model.conditions() if not c.is_constant()})
     changing += sorted(r for r, q in model.heat_sources.items() if not q.is_constant)
     if changing:
@@ -192,8 +192,9 @@ def assumptions_broken(model: ThermalModel, temperature: float) -> tuple[str, ..
     return tuple(reasons)
 
 
-def _heat_capacity_reasons(model: ThermalModel) -> list[str]:
-    """Latent heat (a specific-heat peak) or a specific heat that varies with temperature."""
+def _heat_capacity_reasons(model: ThermalModel, temperature: float) -> list[str]:
+    """Latent heat (a specific-heat peak) or a specific heat that varies with temperature;
+    the mode takes ρc at ``temperature`` °C."""
     latent, varying = [], []
     for region, material in model.materials.items():
         table = material.specific_heat
@@ -204,13 +205,13 @@ def _heat_capacity_reasons(model: ThermalModel) -> list[str]:
     if latent:
         reasons.append(
             f"{sorted(latent)} hold latent heat (a specific-heat peak): the mode uses one heat "
-            "capacity, the table's mid-range value, not the phase change's plateau; the "
-            "estimate can be off several-fold either way"
+            f"capacity, at the starting {temperature:.4g} °C, not the phase change's plateau; "
+            "the estimate can be off several-fold either way"
         )
     if varying:
         reasons.append(
-            f"the specific heat of {sorted(varying)} depends on temperature: the mode uses the "
-            "table's mid-range value, which moves the estimate either way"
+            f"the specific heat of {sorted(varying)} depends on temperature: the mode takes it "
+            f"at the starting {temperature:.4g} °C, which moves the estimate either way"
         )
     return reasons
 

@@ -42,6 +42,8 @@ def execute(args: argparse.Namespace) -> int:
     )
     for line in biot_lines(check.biot):
         log.info(line)
+    for reason in check.assumptions_broken:  # before the figures they qualify
+        log.warning(f"The modal estimate does not hold here: {reason}.")
     mode = check.mode
     log.info(
         f"Slowest-mode ratio: {mode.ratio:.3g} (a lumped model would need h = "
@@ -53,9 +55,9 @@ def execute(args: argparse.Namespace) -> int:
     )
     for name, value in check.time_to_target.items():
         shown = "not reached" if value is None else duration_text(value)
+        if "modal" in name and check.assumptions_broken and value is not None:
+            shown += " (not to be relied on: see above; `soakwise run` gives the field)"
         log.info(f"Time to {check.target:g} °C, {name}: {shown}")
     log.info(f"Expected direction: {check.expected_direction}.")
-    for reason in check.assumptions_broken:
-        log.warning(f"The modal estimate does not hold here: {reason}.")
     log.info(f"Caution: {CAUTION}")
     return EXIT_OK

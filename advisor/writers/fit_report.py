@@ -6,7 +6,17 @@ from __future__ import annotations
 from pathlib import Path
 
 from ..caution import CAUTION
-from .report_document import Bullets, Callout, Facts, Paragraph, Part, Picture, Report, Table
+from .report_document import (
+    Bullets,
+    Callout,
+    Facts,
+    Listing,
+    Paragraph,
+    Part,
+    Picture,
+    Report,
+    Table,
+)
 from .report_html import write_html_report
 
 FIT_HEADINGS = {
@@ -121,7 +131,7 @@ def _values(result) -> list:
         Table(("parameter", "value", "standard error", "95 % interval", "unit"), rows),
         Paragraph(
             "Standard errors come from the sensitivities at the fitted values and the residual "
-            f"scatter s = {result.scatter:.3g} K over {result.degrees_of_freedom:.1f} degrees of "
+            f"scatter s = {result.scatter:.3g} K over {result.degrees_of_freedom:.4g} degrees of "
             "freedom; the interval is ± t(0.975) standard errors."
         ),
     ]
@@ -228,8 +238,7 @@ def _fragment(outcome) -> list:
             )
         ),
     ]
-    lines = tuple(line for line in outcome.fragment.splitlines() if line.strip())
-    blocks.append(Bullets(lines, "fitted.toml:"))
+    blocks.append(Listing(outcome.fragment, "fitted.toml:"))
     return blocks
 
 

@@ -35,6 +35,14 @@ class Bullets:
 
 
 @dataclass(frozen=True)
+class Listing:
+    """Text shown as written, line by line (a file to copy), under an optional lead."""
+
+    text: str
+    lead: str = ""
+
+
+@dataclass(frozen=True)
 class Picture:
     """An image file, ``path`` relative to the report (POSIX separators)."""
 
@@ -53,7 +61,7 @@ class Callout:
     tone: str
 
 
-Block = Paragraph | Facts | Table | Bullets | Picture | Callout
+Block = Paragraph | Facts | Table | Bullets | Listing | Picture | Callout
 
 
 @dataclass(frozen=True)

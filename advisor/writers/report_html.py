@@ -17,6 +17,7 @@ from .report_document import (
     Bullets,
     Callout,
     Facts,
+    Listing,
     Paragraph,
     Picture,
     Report,
@@ -117,6 +118,9 @@ def _block(block: Block, root: Path) -> str:
         lead = f"<p>{_e(block.lead)}</p>" if block.lead else ""
         items = "".join(f"<li>{_e(item)}</li>" for item in block.items)
         return f"{lead}<ul>{items}</ul>"
+    if isinstance(block, Listing):
+        lead = f"<p>{_e(block.lead)}</p>" if block.lead else ""
+        return f'{lead}<div class="scroll"><pre>{_e(block.text)}</pre></div>'
     if isinstance(block, Picture):
         return (
             f'<figure><img src="{data_uri(root / block.path)}" alt="{_e(block.title)}">'

@@ -18,6 +18,7 @@ from .report_document import (
     Bullets,
     Callout,
     Facts,
+    Listing,
     Paragraph,
     Picture,
     Report,
@@ -48,6 +49,9 @@ def _block(block: Block) -> str:
     if isinstance(block, Bullets):
         lead = [e(block.lead), ""] if block.lead else []
         return "\n".join(lead + [f"- {e(item)}" for item in block.items])
+    if isinstance(block, Listing):
+        lead = [e(block.lead), ""] if block.lead else []
+        return "\n".join([*lead, "```toml", block.text.rstrip("\n"), "```"])
     if isinstance(block, Picture):
         title = e(block.title)
         return f"![{title}]({quote(block.path)})\n\n**{title}.** {e(block.caption)}"
