@@ -1,13 +1,31 @@
 """The analysis: the lumped family, Biot numbers, the slowest mode, the assessment and its
-verdict, and the quick check. No files, no terminal."""
+verdict, and the quick check. No files, no terminal.
 
-from .assessment import Assessment, LumpedError, Verdict, assess, check_request
-from .biot import BiotNumber, biot_numbers
-from .freezing import FreezingComparison, FreezingProduct, pham_time, plank_time
-from .lumped import FittedExponential, LumpedModel, TwoNodeModel
-from .modes import SlowestMode, slowest_mode
-from .quench import QuenchCurve, QuenchOutputs, quench_outputs, rate_of_change
-from .quick import QuickCheck, quick_check
+The public names are loaded on first use, so a module that needs only the verdict's words
+(``soakwise show``) does not load scipy with the lumped models.
+"""
+
+from __future__ import annotations
+
+from importlib import import_module
+from typing import TYPE_CHECKING
+
+# Public name → the module that defines it.
+_LAZY = {
+    **dict.fromkeys(
+        ("Assessment", "LumpedError", "Verdict", "assess", "check_request"), ".assessment"
+    ),
+    **dict.fromkeys(("BiotNumber", "biot_numbers"), ".biot"),
+    **dict.fromkeys(
+        ("FreezingComparison", "FreezingProduct", "pham_time", "plank_time"), ".freezing"
+    ),
+    **dict.fromkeys(("FittedExponential", "LumpedModel", "TwoNodeModel"), ".lumped"),
+    **dict.fromkeys(("SlowestMode", "slowest_mode"), ".modes"),
+    **dict.fromkeys(
+        ("QuenchCurve", "QuenchOutputs", "quench_outputs", "rate_of_change"), ".quench"
+    ),
+    **dict.fromkeys(("QuickCheck", "quick_check"), ".quick"),
+}
 
 __all__ = [
     "Assessment",
@@ -33,3 +51,25 @@ __all__ = [
     "rate_of_change",
     "slowest_mode",
 ]
+
+if TYPE_CHECKING:
+    from .assessment import Assessment, LumpedError, Verdict, assess, check_request
+    from .biot import BiotNumber, biot_numbers
+    from .freezing import FreezingComparison, FreezingProduct, pham_time, plank_time
+    from .lumped import FittedExponential, LumpedModel, TwoNodeModel
+    from .modes import SlowestMode, slowest_mode
+    from .quench import QuenchCurve, QuenchOutputs, quench_outputs, rate_of_change
+    from .quick import QuickCheck, quick_check
+
+
+def __getattr__(name: str):
+    module = _LAZY.get(name)
+    if module is None:
+        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+    value = getattr(import_module(module, __name__), name)
+    globals()[name] = value  # later look-ups skip this function
+    return value
+
+
+def __dir__() -> list[str]:
+    return sorted({*globals(), *_LAZY})

@@ -11,8 +11,8 @@ from fem import ThermalModel
 
 from ..errors import AdvisorError
 from .lumped import mean_coefficient, mean_initial
+from .verdict import COMMON_LIMIT
 
-COMMON_LIMIT = 0.1  # common practice: lumped estimates are usually accepted below Bi = 0.1
 EXPOSED_SHARE = 0.05  # our rule: an edge below 5 % of the largest coefficient is insulated
 # for the conduction distance (h = 5 inside a hollow profile against 800 outside)
 

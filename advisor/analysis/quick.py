@@ -23,10 +23,11 @@ from fem.modes import Eigenpair, slowest_eigenpair
 from fem.system import ConductionSystem
 
 from .assessment import check_request, correction
-from .biot import COMMON_LIMIT, BiotNumber, biot_numbers
+from .biot import BiotNumber, biot_numbers
 from .lumped import LumpedModel
 from .modes import SlowestMode, slowest_mode
 from .process_words import infer_process, process_words
+from .verdict import COMMON_LIMIT
 
 LATENT_PEAK = 3.0  # a specific-heat table peaking above 3× its lowest value holds latent heat
 

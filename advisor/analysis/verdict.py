@@ -7,8 +7,9 @@ from dataclasses import dataclass
 
 from ..errors import AdvisorError
 from ..time_words import duration_text
-from .biot import COMMON_LIMIT
 from .process_words import check_process, infer_process, process_words
+
+COMMON_LIMIT = 0.1  # common practice: lumped estimates are usually accepted below Bi = 0.1
 
 QUANTITIES = ("slowest", "mean", "peak_difference", "time_to_target")
 RATINGS = ("adequate", "marginal", "inadequate")

@@ -6,8 +6,7 @@ from __future__ import annotations
 from fem.interfaces import largest_jumps, probe_sides
 
 from ..analysis.assessment import Assessment
-from ..analysis.biot import COMMON_LIMIT
-from ..analysis.verdict import BIOT_NAMES
+from ..analysis.verdict import BIOT_NAMES, COMMON_LIMIT
 from .report_document import Block, Bullets, Callout, Facts, Paragraph, Part, Table, part
 from .report_words import (
     duration,
