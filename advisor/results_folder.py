@@ -280,27 +280,39 @@ def write_folder(
     choices = Choices(
         choices.report, choices.animation, choices.vtk, choices.plots, choices.svg, mp4, xdmf
     )
+
+    def write_into(staging: Path) -> list[Path]:
+        if isinstance(assessment, FieldResults):
+            return _write_field_files(
+                assessment, staging, choices.animation, choices.vtk, mp4, xdmf, mirrors
+            )
+        return _write_files(assessment, staging, choices, mirrors)
+
+    return WrittenFiles(staged_write(folder, force, write_into), notes)
+
+
+def staged_write(folder: Path, force: bool, write_into) -> list[Path]:
+    """Write a results folder whole or not at all: ``write_into(staging)`` fills a folder
+    under a temporary name beside ``folder`` (under the folder's lock), which then takes the
+    folder's place; a full disk or a permission taken away on the way is a
+    :class:`CannotWriteError` and nothing is left. Returns what ``write_into`` returned."""
+    folder = Path(folder)
     with results_lock(folder):
         check_results_folder(folder, force=force)  # as it is now that no one else writes it
         staging = Path(
             tempfile.mkdtemp(dir=folder.parent, prefix=f".{folder.name}.", suffix=".part")
         )
         try:
-            if isinstance(assessment, FieldResults):
-                files = _write_field_files(
-                    assessment, staging, choices.animation, choices.vtk, mp4, xdmf, mirrors
-                )
-            else:
-                files = _write_files(assessment, staging, choices, mirrors)
+            files = write_into(staging)
             _put_in_place(staging, folder)
-        except OSError as error:  # a full disk or a permission taken away while writing
+        except OSError as error:
             raise CannotWriteError(
                 f"the results could not be written to {str(folder)!r} ({_reason(error)}); "
                 "nothing was written"
             ) from error
         finally:
             shutil.rmtree(staging, ignore_errors=True)
-    return WrittenFiles(files, notes)
+    return files
 
 
 def _write_files(

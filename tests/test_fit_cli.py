@@ -248,3 +248,25 @@ def test_fitted_tables_of_every_kind_read_back_as_a_case():
     convection, radiation = case.boundaries["surface"]
     assert convection.curve[0][1] == curve
     assert radiation.emissivity == 0.62 and radiation.surroundings(0.0) == 30.0
+
+
+def test_a_full_disk_while_writing_the_fit_leaves_nothing(trial, tmp_path, capsys, monkeypatch):
+    """A disk that fills while the fit's folder is written ends in one line, exit 1, with no
+    folder, staging or lock left behind."""
+    import errno
+    import os
+
+    import advisor.writers.fit_report as fit_report
+    from advisor.cli import EXIT_FAILED
+
+    def no_space(*args, **kwargs):
+        raise OSError(errno.ENOSPC, os.strerror(errno.ENOSPC), "fit.html")
+
+    monkeypatch.setattr(fit_report, "write_fit_report", no_space)
+    case, measured = trial
+    out = tmp_path / "fit"
+    arguments = ["-q", "fit", str(case), "--measured", str(measured), "--fit", "h:surface"]
+    assert main([*arguments, "--out", str(out)]) == EXIT_FAILED
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "no space left on the device" in err[0], err
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["trial.csv", "trial.toml"]

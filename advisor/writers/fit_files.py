@@ -6,20 +6,18 @@ from __future__ import annotations
 
 import csv
 import json
-import shutil
-import tempfile
 from pathlib import Path
 
 import numpy as np
 
 from ..caution import CAUTION
-from ..folder_lock import results_lock
 from ..results_folder import (
     MARKER,
     PLOT_FOLDER,
-    _put_in_place,
     _write_marker,
+    check_can_write,
     check_results_folder,
+    staged_write,
 )
 from .atomic import write_text
 from .report_document import Picture
@@ -123,20 +121,13 @@ def write_fit_folder(outcome, folder: Path, *, force: bool = False) -> list[Path
     ------
     ResultsFolderExistsError
         If ``folder`` exists and may not be replaced; nothing is written.
+    CannotWriteError
+        If the folder cannot be written (no permission, no room); nothing is written.
     """
     folder = Path(folder)
     check_results_folder(folder, force=force)
-    with results_lock(folder):
-        check_results_folder(folder, force=force)
-        staging = Path(
-            tempfile.mkdtemp(dir=folder.parent, prefix=f".{folder.name}.", suffix=".part")
-        )
-        try:
-            files = _write_files(outcome, staging)
-            _put_in_place(staging, folder)
-        finally:
-            shutil.rmtree(staging, ignore_errors=True)
-    return files
+    check_can_write(folder)
+    return staged_write(folder, force, lambda staging: _write_files(outcome, staging))
 
 
 def _write_files(outcome, staging: Path) -> list[Path]:
