@@ -28,6 +28,9 @@ class HistoryRecorder:
         self._output_times: list[float] = []
         self._initial_stored = initial_stored
         self._interfaces: list[dict[str, tuple[float, float]]] = []  # per record, if any
+        # (largest internal difference, its time, the field then): a fast event may fall
+        # between output times, and pictures of the run must still show its peak
+        self._peak: tuple[float, float, np.ndarray | None] = (-1.0, 0.0, None)
 
     def record(
         self,
@@ -84,6 +87,9 @@ class HistoryRecorder:
 
     def _append(self, time, mean, temperature, probes, flows, stored, absorbed) -> None:
         low, high = int(np.argmin(temperature)), int(np.argmax(temperature))
+        spread = float(temperature[high] - temperature[low])
+        if spread > self._peak[0]:
+            self._peak = (spread, time, temperature[self._system.vertex_dofs].copy())
         self._rows.append(
             (
                 time,
@@ -121,6 +127,8 @@ class HistoryRecorder:
                 name: np.array([row[name] for row in self._interfaces], dtype=float)
                 for name in self._system.interfaces
             },
+            "peak": np.array(self._peak[:2], dtype=float),
+            "peak_field": np.asarray(self._peak[2], dtype=float),
         }
 
     def restore(self, state: dict) -> None:
@@ -159,6 +167,9 @@ class HistoryRecorder:
             {name: tuple(float(v) for v in values[i]) for name, values in interfaces.items()}
             for i in range(len(time) if interfaces else 0)
         ]
+        if "peak" in state:
+            spread, when = (float(v) for v in np.asarray(state["peak"]))
+            self._peak = (spread, when, np.asarray(state["peak_field"], dtype=float))
         # The fields kept so far (the initial one) are the state's first ones: add the rest.
         self._output_times = [float(t) for t in state["output_times"]]
         for field in np.asarray(state["fields"])[len(self._fields) :]:
@@ -189,4 +200,6 @@ class HistoryRecorder:
             fields=self._fields,
             interface_jump={n: self._interface_column(n, 0) for n in self._system.interfaces},
             interface_heat_flow={n: self._interface_column(n, 1) for n in self._system.interfaces},
+            peak_field=self._peak[2],
+            peak_field_time=self._peak[1] if self._peak[2] is not None else None,
         )

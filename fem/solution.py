@@ -161,6 +161,9 @@ class Solution:
         W (planar: W per metre of depth), at each time.
     stop_reason : str
         Why the run ended, in plain words (:func:`fem.events.stop_reason`).
+    peak_field, peak_field_time : ndarray and float, or None
+        The vertex temperatures (°C) at the recorded step of the largest internal difference,
+        and that step's time (s): a fast event may fall between output times.
     """
 
     model: ThermalModel
@@ -184,6 +187,8 @@ class Solution:
     interface_jump: dict[str, np.ndarray] = field(default_factory=dict)
     interface_heat_flow: dict[str, np.ndarray] = field(default_factory=dict)
     stop_reason: str = ""
+    peak_field: np.ndarray | None = None
+    peak_field_time: float | None = None
 
     @property
     def internal_difference(self) -> np.ndarray:

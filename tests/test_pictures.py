@@ -264,3 +264,30 @@ def test_the_outputs_table_switches_plots_svg_and_mp4(tmp_path):
     assert files == {"summary.json", "histories.csv", ".soakwise-results"}
     with pytest.raises(CaseError, match="outputs"):
         case_from_toml(text + "mp4 = 3\n", tmp_path / "quarter.toml")
+
+
+def test_a_fast_event_between_outputs_is_still_pictured():
+    """A 2 mm plate quenched hard peaks within seconds, long before the first of 50 outputs
+    over 10 minutes: the run keeps the field of its largest internal difference, the same
+    difference and time its histories show, and the snapshots draw it."""
+    from advisor.writers.field_plots import _with_peak
+    from fem import Convection, Material, ThermalModel, solve
+
+    plate = Rectangle(0.06, 0.002).mesh(0.0005)
+    oil = Convection(heat_transfer_coefficient=2000.0, ambient=60.0)
+    model = ThermalModel(
+        plate,
+        Material(40.0, 7850.0, 520.0),
+        {side: oil for side in ("left", "right", "top", "bottom")},
+        initial_temperature=850.0,
+    )
+    solution = solve(model, end_time=600.0, output_interval=12.0)
+    spread = solution.maximum - solution.minimum
+    peak = int(np.argmax(spread))
+    assert solution.peak_field_time == solution.times[peak] < solution.output_times[1]
+    assert np.ptp(solution.peak_field) == pytest.approx(spread[peak], rel=1e-12)
+    fields = [np.asarray(solution.fields[i]) for i in (1, 10, 20, 50)]
+    times = [float(solution.output_times[i]) for i in (1, 10, 20, 50)]
+    before = max(np.ptp(f) for f in fields)
+    _with_peak(solution, fields, times)
+    assert times[0] == solution.peak_field_time and np.ptp(fields[0]) > 2 * before

@@ -103,6 +103,21 @@ def scene(solution: Solution, mirrors: Sequence[Mirror] = ()) -> Scene:
     )
 
 
+def _with_peak(solution, fields: list, times: list) -> None:
+    """Put the field of the largest internal difference in place of the panel nearest its
+    time when no output time caught it (a fast event in a long run)."""
+    peak = getattr(solution, "peak_field", None)  # a stand-in solution may not have one
+    when = getattr(solution, "peak_field_time", None)
+    if peak is None or when in times:
+        return
+    nearest = int(np.argmin(np.abs(np.asarray(times) - when)))
+    if np.ptp(peak) > np.ptp(fields[nearest]):
+        fields[nearest], times[nearest] = np.asarray(peak, dtype=float), float(when)
+        order = np.argsort(times, kind="stable")
+        fields[:] = [fields[i] for i in order]
+        times[:] = [times[i] for i in order]
+
+
 def snapshot_canvas(assessment: Assessment, mirrors: Sequence[Mirror] = (), count: int = 4):
     """The snapshot picture's :class:`Canvas` and its index picture."""
     solution = assessment.solution
@@ -113,11 +128,13 @@ def snapshot_canvas(assessment: Assessment, mirrors: Sequence[Mirror] = (), coun
     title = f"Temperature (°C), each on its own scale; ▲ hottest, ▼ coldest — {whole.view}"
     layout, title = titled_layout(title, whole.extent, len(indices), SNAPSHOT_SIZE, False)
     fields = [np.asarray(solution.fields[i], dtype=float) for i in indices]
+    times = [float(solution.output_times[i]) for i in indices]
+    _with_peak(solution, fields, times)
     x, y = solution.model.section.vertices
     arts, maps = [], []
-    for k, (index, field) in enumerate(zip(indices, fields, strict=True)):
+    for k, (time, field) in enumerate(zip(times, fields, strict=True)):
         low, high = float(field.min()), float(field.max())
-        when = f"t = {clock(float(solution.output_times[index]))}: "
+        when = f"t = {clock(time)}: "
         ticks = plain_ticks(low, high, layout.panels[k].bar.width)
         if high - low < UNIFORM_BELOW:  # no colours, no extremes: rounding is not a gradient
             caption, markers = when + f"uniform at {(low + high) / 2:.2f} °C", []
@@ -129,8 +146,9 @@ def snapshot_canvas(assessment: Assessment, mirrors: Sequence[Mirror] = (), coun
         maps.append(maps[0] if maps else whole.pixel_map(layout, k))  # boxes of one size
     chrome, boxes = render_chrome(layout, title, arts)
     canvas = make_canvas(layout, chrome, [FIELD_MAP], maps, boxes)
-    for panel in layout.panels:
-        paint_bar(canvas, panel.bar, 0)
+    for panel, field in zip(layout.panels, fields, strict=True):
+        if np.ptp(field) >= UNIFORM_BELOW:  # a uniform panel has no scale to show
+            paint_bar(canvas, panel.bar, 0)
     shown = []
     for pixel_map_, field in zip(maps, fields, strict=True):
         low, high = float(field.min()), float(field.max())
