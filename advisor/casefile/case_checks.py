@@ -8,32 +8,7 @@ import numpy as np
 
 from ..errors import AdvisorError
 from .reader import Context
-from .units import _NUMBER, quantity, registry
-
-_TEMPERATURE_SYMBOLS = {"degC": "°C", "degF": "°F", "K": "K", "kelvin": "K", "celsius": "°C"}
-
-
-def unit_of(raw) -> str | None:
-    """The unit a case wrote a value in ("45 mm" → "mm"); None for a bare number."""
-    if not isinstance(raw, str):
-        return None
-    match = _NUMBER.match(raw)
-    return match.group(2) or None if match else None
-
-
-def shown_in(value: float, kind: str, unit: str | None) -> str:
-    """``value`` (SI, temperatures in °C) written in ``unit`` to four significant figures;
-    without a unit in the SI one (m, °C)."""
-    if kind == "temperature":
-        if unit is None:
-            return f"{value:.4g} °C"
-        ureg = registry()
-        converted = ureg.Quantity(value, ureg.degC).to(ureg.parse_units(unit)).magnitude
-        return f"{converted:.4g} {_TEMPERATURE_SYMBOLS.get(unit, unit)}"
-    if unit is None:
-        return f"{value:.4g} m"
-    scale = quantity(f"1 {unit}", kind)  # SI per unit
-    return f"{value / scale:.4g} {unit}"
+from .units import shown_in, unit_of
 
 
 def check_probes(

@@ -99,3 +99,30 @@ def _converted(magnitude: float, text: str, kind: str, value: str) -> float:
         raise UnitError(
             f"expected {described}, got {_shown(value)}: unknown unit {_shown(text)}"
         ) from None
+
+
+_TEMPERATURE_SYMBOLS = {"degC": "°C", "degF": "°F", "K": "K", "kelvin": "K", "celsius": "°C"}
+
+
+def unit_of(raw) -> str | None:
+    """The unit a case wrote a value in ("45 mm" → "mm"); None for a bare number."""
+    if not isinstance(raw, str):
+        return None
+    match = _NUMBER.match(raw)
+    return match.group(2) or None if match else None
+
+
+def shown_in(value: float, kind: str, unit: str | None, digits: int = 4) -> str:
+    """``value`` (SI, temperatures in °C) written in ``unit`` to ``digits`` significant
+    figures; without a unit in the SI one (m, °C). The one way messages give a value back in
+    the units the case wrote it in."""
+    if kind == "temperature":
+        if unit is None:
+            return f"{value:.{digits}g} °C"
+        ureg = registry()
+        converted = ureg.Quantity(value, ureg.degC).to(ureg.parse_units(unit)).magnitude
+        return f"{converted:.{digits}g} {_TEMPERATURE_SYMBOLS.get(unit, unit)}"
+    if unit is None:
+        return f"{value:.{digits}g} m"
+    scale = quantity(f"1 {unit}", kind)  # SI per unit
+    return f"{value / scale:.{digits}g} {unit}"

@@ -19,7 +19,7 @@ from geometries import GeometryError
 from ..errors import AdvisorError
 from ..time_words import duration_text
 from .reader import CaseError, Table, suggest
-from .units import registry
+from .units import registry, shown_in, unit_of
 
 LIBRARY_ERRORS = (ModelError, GeometryError)
 
@@ -98,8 +98,6 @@ def in_case_units(message: str, raw) -> str:
     as the case wrote that key: lengths in its unit ("-0.03 m" → "-30 mm"), times as a person
     reads them ("600 s" → "10 min"), temperatures in its unit with the degree sign. A value
     given as a bare number (SI already) or of another kind leaves the message as it is."""
-    from .case_checks import unit_of  # the case's own units module, loaded with the reader
-
     unit = unit_of(raw)
     if unit is None:
         return message
@@ -118,11 +116,7 @@ def in_case_units(message: str, raw) -> str:
         value = float(found[1])
         if symbol == "s":
             return duration_text(value)
-        if symbol == "degC":
-            converted = ureg.Quantity(value, ureg.degC).to(parsed).magnitude
-            shown = {"degC": "°C", "degF": "°F", "kelvin": "K"}.get(unit, unit)
-            return f"{converted:.6g} {shown}"
-        return f"{value / ureg.Quantity(1.0, parsed).to(ureg.m).magnitude:.6g} {unit}"
+        return shown_in(value, "temperature" if symbol == "degC" else "length", unit, 6)
 
     return _SI_VALUE.sub(rewritten, message)
 
