@@ -28,7 +28,7 @@ from .atomic import write_with
 from .field_plots import scene
 from .plot_style import FIELD_MAP, clock
 from .raster import dither_thresholds, levels
-from .raster_chrome import UNIFORM_BELOW, plain_ticks, render_chrome, titled_layout
+from .raster_chrome import plain_ticks, render_chrome, titled_layout, uniform_label
 from .raster_picture import (
     Canvas,
     draw_marker,
@@ -116,8 +116,9 @@ def render_frames(
         field = np.asarray(fields[index], dtype=float)
         coldest, hottest = float(field.min()), float(field.max())
         values = canvas.panels[0][0].values(field)
-        uniform = hottest - coldest < UNIFORM_BELOW
-        spread = (coldest, coldest) if uniform else (coldest, hottest)  # uniform: mid level
+        uniform = uniform_label(coldest, hottest)
+        # a uniform frame takes the scale's first level on its own panel: no gradient to show
+        spread = (coldest, coldest) if uniform else (coldest, hottest)
         count = canvas.palette.levels
         shown = [
             levels(values, low, high, count, thresholds),
@@ -126,7 +127,7 @@ def render_frames(
         picture = canvas.frame(shown, [0, 1])
         when = f"t = {clock(float(solution.output_times[index]))} of {end}"
         if uniform:
-            text = f"{when}   ·   uniform at {coldest:.2f} °C"
+            text = f"{when}   ·   {uniform}"
         else:
             text = (
                 f"{when}   ·   coldest {coldest:.4g} °C, hottest {hottest:.4g} °C, "

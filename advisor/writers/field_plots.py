@@ -22,12 +22,12 @@ from .atomic import write_with
 from .plot_style import COOL, FIELD_MAP, WARM, clock
 from .raster import PixelMap, levels, pixel_map, whole_extent
 from .raster_chrome import (
-    UNIFORM_BELOW,
     Lines,
     PanelArt,
     plain_ticks,
     render_chrome,
     titled_layout,
+    uniform_label,
 )
 from .raster_layout import Layout, part_extent
 from .raster_picture import Canvas, image_of, make_canvas, paint_bar
@@ -136,8 +136,9 @@ def snapshot_canvas(assessment: Assessment, mirrors: Sequence[Mirror] = (), coun
         low, high = float(field.min()), float(field.max())
         when = f"t = {clock(time)}: "
         ticks = plain_ticks(low, high, layout.panels[k].bar.width)
-        if high - low < UNIFORM_BELOW:  # no colours, no extremes: rounding is not a gradient
-            caption, markers = when + f"uniform at {(low + high) / 2:.2f} °C", []
+        uniform = uniform_label(low, high)
+        if uniform is not None:  # no colours, no extremes: rounding is not a gradient
+            caption, markers = when + uniform, []
         else:
             caption = when + f"{low:.4g} to {high:.4g} °C, ΔT {high - low:.3g} K"
             hot, cold = int(np.argmax(field)), int(np.argmin(field))
@@ -147,12 +148,12 @@ def snapshot_canvas(assessment: Assessment, mirrors: Sequence[Mirror] = (), coun
     chrome, boxes = render_chrome(layout, title, arts)
     canvas = make_canvas(layout, chrome, [FIELD_MAP], maps, boxes)
     for panel, field in zip(layout.panels, fields, strict=True):
-        if np.ptp(field) >= UNIFORM_BELOW:  # a uniform panel has no scale to show
+        if uniform_label(float(field.min()), float(field.max())) is None:  # else no scale
             paint_bar(canvas, panel.bar, 0)
     shown = []
     for pixel_map_, field in zip(maps, fields, strict=True):
         low, high = float(field.min()), float(field.max())
-        high = high if high - low >= UNIFORM_BELOW else low  # uniform: the middle level
+        high = high if uniform_label(low, high) is None else low  # uniform: one level
         shown.append(levels(pixel_map_.values(field), low, high, canvas.palette.levels))
     return canvas, canvas.frame(shown, [0] * len(shown))
 

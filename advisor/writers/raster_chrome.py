@@ -78,12 +78,22 @@ def _renderer(kind):
     return _RENDERERS[kind]
 
 
+def uniform_label(low: float, high: float) -> str | None:
+    """ "uniform at X °C" for a field whose range ``low``–``high`` °C is below
+    :data:`UNIFORM_BELOW` K (rounding, not a gradient: no colours, no extremes); None for a
+    field with a gradient to show. The one wording of snapshots, films and colour bars."""
+    if high - low >= UNIFORM_BELOW:
+        return None
+    return f"uniform at {_plain((low + high) / 2, 0.01)} °C"
+
+
 def plain_ticks(low: float, high: float, width: float) -> tuple[tuple[float, str], ...]:
     """Tick labels for a colour bar from ``low`` to ``high`` °C that is ``width`` px wide:
     round values written out in full, as many as fit without touching; a range below
     :data:`UNIFORM_BELOW` K is one label, "uniform at X °C"."""
-    if not high - low >= UNIFORM_BELOW:
-        return ((0.5, f"uniform at {_plain((low + high) / 2, 0.01)} °C"),)
+    uniform = uniform_label(low, high)
+    if uniform is not None:
+        return ((0.5, uniform),)
     from matplotlib.ticker import MaxNLocator
 
     for bins in (8, 6, 5, 4, 3, 2, 1):
