@@ -172,7 +172,7 @@ class Composition:
     def material(self, name: str, source: str, low: float = -40.0, high: float = 90.0):
         """A :class:`Material` with the enthalpy (latent heat included) and k(T) as tables over
         ``low``–``high`` °C (denser next to the freezing point), ρ at the freezing point."""
-        from .library.entries import table
+        from .material_data.entries import table
 
         coarse = np.arange(low, high + 1e-9, 2.0)
         offsets = np.geomspace(0.01, 8.0, 40)  # the kink at T_f stays local in the interpolant

@@ -3,12 +3,12 @@ copper, a nickel and a titanium alloy, ceramics, FR-4, concrete, glass and foods
 freezing, each with its source and valid range; and constants at 300 K under the first names.
 
 ``MATERIALS`` maps each name to its :class:`~fem.Material`; ``ENTRIES`` to its
-:class:`~fem.library.LibraryEntry` (source, valid range). See :mod:`fem.library`.
+:class:`~fem.material_data.MaterialEntry` (source, valid range). See :mod:`fem.material_data`.
 """
 
 from __future__ import annotations
 
-from .library import ENTRIES, LibraryEntry, lookup, range_warnings
+from .material_data import ENTRIES, MaterialEntry, lookup, range_warnings
 from .materials import Material
 
 MATERIALS: dict[str, Material] = {name: e.material for name, e in ENTRIES.items()}
@@ -23,12 +23,12 @@ def material(name: str) -> Material:
     return lookup(ENTRIES, name).material
 
 
-def library_entry(name: str) -> LibraryEntry:
+def material_entry(name: str) -> MaterialEntry:
     """A library entry (material, source, valid range) by name."""
     return lookup(ENTRIES, name)
 
 
 def run_range_warnings(materials: dict[str, Material], lowest: float, highest: float):
     """One line per library material whose valid range a run's temperatures (``lowest`` to
-    ``highest`` °C) left; see :func:`fem.library.range_warnings`."""
+    ``highest`` °C) left; see :func:`fem.material_data.range_warnings`."""
     return range_warnings(ENTRIES, materials, lowest, highest)

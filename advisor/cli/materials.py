@@ -33,7 +33,7 @@ def execute(args: argparse.Namespace) -> int:
         _list(solids)
         return EXIT_OK
     try:
-        entry = solids.library_entry(args.name)
+        entry = solids.material_entry(args.name)
     except ValueError:
         from difflib import get_close_matches
 

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .entries import LibraryEntry, entry, kelvin_table, table
+from .entries import MaterialEntry, entry, kelvin_table, table
 
 INCROPERA = "Incropera, DeWitt, Bergman & Lavine, Fundamentals of Heat and Mass Transfer, 6th ed."
 EUROCODE_STEEL = "EN 1993-1-2:2005, Design of steel structures, structural fire design"
@@ -58,7 +58,7 @@ def _sampled(function, low: float, high: float, dense=()) -> object:
     return table(points, function(points))
 
 
-def metals() -> list[LibraryEntry]:
+def metals() -> list[MaterialEntry]:
     """The metal entries."""
     return [
         entry(
@@ -127,7 +127,7 @@ def metals() -> list[LibraryEntry]:
     ]
 
 
-def _aluminium() -> list[LibraryEntry]:
+def _aluminium() -> list[MaterialEntry]:
     """6061-T6, 6063-T6 and 7075-T6: k and c at 25 °C from ASM Handbook Vol. 2 (1990); the
     rise of c with temperature that of pure aluminium in Incropera et al., Table A.1, and a
     small rise of k (from memory, approximate: the temper changes above about 200 °C)."""

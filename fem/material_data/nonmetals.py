@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .entries import LibraryEntry, entry, kelvin_table, table
+from .entries import MaterialEntry, entry, kelvin_table, table
 from .metals import INCROPERA
 
 EUROCODE_CONCRETE = "EN 1992-1-2:2004, Design of concrete structures, structural fire design"
@@ -30,7 +30,7 @@ def concrete_specific_heat_dry(theta):
     )
 
 
-def nonmetals() -> list[LibraryEntry]:
+def nonmetals() -> list[MaterialEntry]:
     """The non-metal entries."""
     concrete_points = np.arange(20.0, 1200.0 + 1e-9, 20.0)
     return [
@@ -82,7 +82,7 @@ def nonmetals() -> list[LibraryEntry]:
     ]
 
 
-def _laminate() -> list[LibraryEntry]:
+def _laminate() -> list[MaterialEntry]:
     """FR-4 glass-epoxy: k in the plane of the glass cloth and through it from Sarvar, Poole &
     Witting (1990), PCB glass-fibre laminates: thermal conductivity measurements and their
     effect on simulation, J. Electron. Mater. 19; c rising to the glass transition (all from

@@ -4,7 +4,7 @@
 from __future__ import annotations
 
 from ..food_properties import Composition
-from .entries import LibraryEntry
+from .entries import MaterialEntry
 
 CHOI_OKOS = (
     "Choi & Okos (1986), Effects of temperature and composition on the thermal properties of "
@@ -28,13 +28,13 @@ FOODS = {
 }
 
 
-def foods() -> list[LibraryEntry]:
+def foods() -> list[MaterialEntry]:
     """The food entries: k(T) and the enthalpy with the latent heat, −40 to 90 °C."""
     entries = []
     for name, (composition, words) in FOODS.items():
         source = f"{CHOI_OKOS}; {words}; {RANGE[0]:.0f} to {RANGE[1]:.0f} °C"
         material = composition.material(name, source, *RANGE)
         entries.append(
-            LibraryEntry(material, f"{CHOI_OKOS}; {words}", RANGE, "k(T), enthalpy with freezing")
+            MaterialEntry(material, f"{CHOI_OKOS}; {words}", RANGE, "k(T), enthalpy with freezing")
         )
     return entries

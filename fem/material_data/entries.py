@@ -31,7 +31,7 @@ def kelvin_table(kelvins, values) -> LibraryTable:
 
 
 @dataclass(frozen=True)
-class LibraryEntry:
+class MaterialEntry:
     """A library material with where its data come from and where it holds.
 
     Attributes
@@ -71,7 +71,7 @@ def entry(
     source: str,
     valid_range: tuple[float, float] | None,
     what: str = "",
-) -> LibraryEntry:
+) -> MaterialEntry:
     """An entry whose material's user-facing source says what the data are and their range."""
     span = "" if valid_range is None else f"; {valid_range[0]:.0f} to {valid_range[1]:.0f} °C"
     material = Material(conductivity, density, specific_heat, name, f"{source}{span}")
@@ -81,10 +81,10 @@ def entry(
         if isinstance(value, PropertyTable)
     ]
     description = what or (", ".join(varying) if varying else "constants")
-    return LibraryEntry(material, source, valid_range, description)
+    return MaterialEntry(material, source, valid_range, description)
 
 
-def entry_of(entries: dict[str, LibraryEntry], material: Material) -> LibraryEntry | None:
+def entry_of(entries: dict[str, MaterialEntry], material: Material) -> MaterialEntry | None:
     """The library entry ``material`` is, or None for a material of the user's own."""
     found = entries.get(getattr(material, "name", None))
     return found if found is not None and found.material == material else None
@@ -95,7 +95,7 @@ def range_warnings(entries, materials: dict, lowest: float, highest: float) -> l
 
     Parameters
     ----------
-    entries : dict of str to LibraryEntry
+    entries : dict of str to MaterialEntry
     materials : dict of str to Material
         The material of each region.
     lowest, highest : float
@@ -121,7 +121,7 @@ def range_warnings(entries, materials: dict, lowest: float, highest: float) -> l
     return lines
 
 
-def lookup(entries: dict[str, LibraryEntry], name: str) -> LibraryEntry:
+def lookup(entries: dict[str, MaterialEntry], name: str) -> MaterialEntry:
     try:
         return entries[name]
     except KeyError:

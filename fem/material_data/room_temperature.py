@@ -8,7 +8,7 @@ carbon steel and AISI 1010 rows had been swapped: plain carbon steel is 7854 kg/
 
 from __future__ import annotations
 
-from .entries import LibraryEntry, entry
+from .entries import MaterialEntry, entry
 
 _BOOK = "Incropera et al., Fundamentals of Heat and Mass Transfer, 6th ed."
 _TABLE_A1 = f"{_BOOK}, Table A.1, values at 300 K"
@@ -16,7 +16,7 @@ _TABLE_A3 = f"{_BOOK}, Table A.3, values at 300 K"
 _WHAT = "constants at 300 K"
 
 
-def room_temperature() -> list[LibraryEntry]:
+def room_temperature() -> list[MaterialEntry]:
     rows = (
         (237.0, 2702.0, 903.0, "aluminium, pure", _TABLE_A1),
         (177.0, 2770.0, 875.0, "aluminium alloy 2024-T6", _TABLE_A1),
