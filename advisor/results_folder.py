@@ -35,14 +35,9 @@ replaced only after the new one is whole. One run at a time writes a folder (see
 
 from __future__ import annotations
 
-import errno
 import importlib.util
 import json
-import math
-import multiprocessing
-import os
 import shutil
-import sys
 import tempfile
 import time
 from dataclasses import dataclass
@@ -52,6 +47,7 @@ from .analysis.assessment import Assessment
 from .errors import AdvisorError, ResultsFolderExistsError
 from .field_results import FieldResults
 from .folder_lock import results_lock
+from .folder_room import CannotWriteError, check_can_write, error_words
 from .writers.animation import mp4_available, write_animation
 from .writers.field_plots import write_snapshots
 from .writers.field_summary import write_field_summary_json
@@ -60,95 +56,13 @@ from .writers.plots import PLOTS, in_plot_order, write_line_plots, written_plots
 from .writers.report_content import Picture, build_report
 from .writers.report_html import write_html_report
 from .writers.report_markdown import write_markdown_report
+from .writers.side_by_side import side_by_side
 from .writers.summary_json import write_summary_json
 from .writers.vtk_series import write_vtk_series, write_xdmf_series
 
 PLOT_FOLDER = "plots"
 FIELD_FOLDER = "fields"
 MARKER = ".soakwise-results"
-
-# Sizes of a results folder, measured on the quench-bar starter (753 nodes, 51 output times:
-# plots and report 2.3 MB, fields 3.9 MB, about 100 bytes a node a frame with the XDMF copy,
-# a GIF frame 5 kB; at 43 nodes 7.5 kB a frame), rounded up: an estimate to refuse a run
-# whose results cannot fit.
-FIXED_BYTES = 4_000_000
-FIELD_BYTES_PER_NODE = 120
-FIELD_BYTES_PER_FRAME = 10_000  # a frame's headers and its entries in the series' indexes
-ANIMATION_BYTES_PER_FRAME = 20_000
-
-
-class CannotWriteError(OSError):
-    """The results cannot be written where asked: no permission, not a folder, or no room.
-    The message says which, with the figures; nothing was written."""
-
-
-def expected_size(nodes: int, outputs: int, *, vtk: bool = True, animation: bool = True) -> int:
-    """An upper estimate of a results folder's size in bytes, for ``nodes`` mesh nodes and
-    ``outputs`` output times (see the measured sizes above)."""
-    size = FIXED_BYTES
-    if vtk:
-        size += (FIELD_BYTES_PER_FRAME + FIELD_BYTES_PER_NODE * nodes) * outputs
-    if animation:
-        size += ANIMATION_BYTES_PER_FRAME * outputs
-    return size
-
-
-def check_can_write(folder: Path, expected_bytes: int | None = None) -> None:
-    """Check, before a solve, that results folder ``folder`` can be made: the nearest existing
-    folder on its path is a folder this process may write in and, with ``expected_bytes``,
-    has that much room.
-
-    Raises
-    ------
-    CannotWriteError
-        With the reason and the figures; nothing is changed.
-    """
-    folder = Path(os.path.abspath(folder))
-    where = folder.parent
-    while not where.exists() and not where.is_symlink() and where != where.parent:
-        where = where.parent
-    if not where.is_dir():
-        raise CannotWriteError(
-            f"cannot write {str(folder)!r}: {str(where)!r} is a file, not a folder"
-        )
-    try:
-        with tempfile.TemporaryFile(dir=where, prefix=".soakwise-probe."):
-            pass
-    except OSError as error:
-        raise CannotWriteError(
-            f"cannot write in {str(where)!r} ({error.strerror or error}); choose a results "
-            "folder (--out) where you may write"
-        ) from None
-    if expected_bytes is None:
-        return
-    free = shutil.disk_usage(where).free
-    if free < expected_bytes:
-        raise CannotWriteError(
-            f"not enough room for the results in {str(where)!r}: about "
-            f"{_megabytes(expected_bytes)} expected, {_megabytes(free)} free; free some space, "
-            "choose another folder (--out) or turn outputs off ([outputs] vtk = false, "
-            "animation = false)"
-        )
-
-
-def check_room(folder: Path, model, end_time: float, run_options: dict, outputs: dict) -> None:
-    """:func:`check_can_write` with the expected size of the results of ``model`` (a
-    :class:`fem.ThermalModel`) run to ``end_time`` s with a case's run options and
-    ``[outputs]`` choices."""
-    if run_options.get("output_times") is not None:
-        count = len(tuple(run_options["output_times"])) + 1
-    else:
-        interval = run_options.get("output_interval") or end_time / 50
-        count = math.floor(end_time / interval + 1e-9) + 2
-    nodes = int(model.section.mesh.p.shape[1])
-    size = expected_size(
-        nodes, count, vtk=outputs.get("vtk", True), animation=outputs.get("animation", True)
-    )
-    check_can_write(folder, size)
-
-
-def _megabytes(size: float) -> str:
-    return f"{math.ceil(size / 1e5) / 10:g} MB"
 
 
 def check_results_folder(folder: Path, *, force: bool, keep: tuple[Path, ...] = ()) -> None:
@@ -307,7 +221,7 @@ def staged_write(folder: Path, force: bool, write_into) -> list[Path]:
             _put_in_place(staging, folder)
         except OSError as error:
             raise CannotWriteError(
-                f"the results could not be written to {str(folder)!r} ({_reason(error)}); "
+                f"the results could not be written to {str(folder)!r} ({error_words(error)}); "
                 "nothing was written"
             ) from error
         finally:
@@ -364,60 +278,6 @@ def _write_files(
     return files
 
 
-def side_by_side(first, second) -> tuple:
-    """``first()`` in a forked process while ``second()`` runs here; their results.
-
-    The writers are independent and the solve is over, so the matplotlib plots (``first``)
-    and the pixel pictures and field files (``second``) share the cores. Where processes
-    cannot be forked safely (other than on Linux) or no core is free (a load average, this
-    run's own included, above the cores less half a core: a second process then only takes
-    turns with this one, measured 10–15 % slower at a load of 8 on two cores), one runs after
-    the other. An error in either is raised here.
-    """
-    cores = os.cpu_count() or 1
-    load = os.getloadavg()[0] if hasattr(os, "getloadavg") else float(cores)
-    # fork only on Linux: macOS system libraries are not safe to use in a forked child
-    if not sys.platform.startswith("linux") or load > cores - 0.5:
-        return first(), second()
-    receiver, sender = multiprocessing.get_context("fork").Pipe(duplex=False)
-    child = multiprocessing.get_context("fork").Process(
-        target=_send_result, args=(first, sender), daemon=True
-    )
-    child.start()
-    sender.close()
-    try:
-        here = second()
-        try:
-            kind, value = receiver.recv()
-        except EOFError:
-            child.join()
-            raise AdvisorError(
-                f"the plot writer stopped without an answer (exit code {child.exitcode})"
-            ) from None
-        child.join()
-    finally:
-        if child.is_alive():
-            child.terminate()
-            child.join()
-        receiver.close()
-    if kind == "error":
-        raise value
-    return value, here
-
-
-def _send_result(task, sender) -> None:
-    """Run ``task`` in the forked process; send ("done", result) or ("error", exception)."""
-    try:
-        sender.send(("done", task()))
-    except BaseException as error:  # noqa: BLE001 - every failure goes back to the parent
-        try:
-            sender.send(("error", error))
-        except Exception:  # noqa: BLE001 - an exception that does not pickle
-            sender.send(("error", AdvisorError(f"the plot writer failed: {error!r}")))
-    finally:
-        sender.close()
-
-
 def _write_field_files(
     results: FieldResults,
     staging: Path,
@@ -443,15 +303,6 @@ def _write_field_files(
     write_field_summary_json(results, staging / "summary.json", names)
     _write_marker(staging / MARKER, names)
     return files
-
-
-def _reason(error: OSError) -> str:
-    """An operating-system error in a few words: "No space left on device" or the like."""
-    if isinstance(error, CannotWriteError):
-        return str(error)
-    if error.errno in (errno.ENOSPC, getattr(errno, "EDQUOT", errno.ENOSPC)):
-        return "no space left on the device"
-    return error.strerror or str(error).splitlines()[0][:200]
 
 
 def _write_marker(path: Path, names: list[str]) -> None:

@@ -15,12 +15,13 @@ from pathlib import Path
 
 import pytest
 
+import advisor.folder_room as folder_room
 import advisor.pipeline as pipeline
 import advisor.results_folder as results_folder
 from advisor import assess, write_results
 from advisor.casefile.starters import starter_text
 from advisor.cli import EXIT_FAILED, EXIT_OK, main
-from advisor.results_folder import CannotWriteError, expected_size
+from advisor.folder_room import CannotWriteError, expected_size
 from fem import Convection, Material, ThermalModel, solve
 from geometries import Rectangle
 
@@ -135,7 +136,7 @@ def test_no_room_for_the_results_is_found_after_meshing_before_the_solve(
     monkeypatch.setattr(pipeline, "run_model", solve_forbidden)
     usage = shutil.disk_usage(tmp_path)
     monkeypatch.setattr(
-        results_folder.shutil, "disk_usage", lambda path: usage._replace(free=1_000_000)
+        folder_room.shutil, "disk_usage", lambda path: usage._replace(free=1_000_000)
     )
     status = main(["-q", "run", str(case), "--out", str(tmp_path / "out")])
     line = one_error_line(capsys)
@@ -157,5 +158,5 @@ def test_the_size_estimate_bounds_a_real_results_folder(tmp_path, capsys):
     estimate = expected_size(nodes, outputs)
     # An upper estimate, within a factor that still makes it useful.
     assert size <= estimate <= 5 * size, (size, estimate)
-    per_frame = results_folder.FIELD_BYTES_PER_FRAME + results_folder.FIELD_BYTES_PER_NODE * nodes
+    per_frame = folder_room.FIELD_BYTES_PER_FRAME + folder_room.FIELD_BYTES_PER_NODE * nodes
     assert fields <= per_frame * outputs

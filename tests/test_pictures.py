@@ -225,15 +225,16 @@ def test_an_axisymmetric_section_takes_only_lines_across_its_axis(tmp_path):
 
 def test_writers_side_by_side_give_the_same_files_and_pass_errors_on(tmp_path, monkeypatch):
     import advisor.results_folder as results_folder
+    import advisor.writers.side_by_side as writers_together
     from advisor.pipeline import run_case, write_results
 
     if not __import__("sys").platform.startswith("linux"):
         pytest.skip("the writers fork only on Linux; elsewhere they run one after the other")
     results = run_case(quarter_case("", tmp_path))
-    monkeypatch.setattr(results_folder.os, "getloadavg", lambda: (0.0, 0.0, 0.0))
-    monkeypatch.setattr(results_folder.os, "cpu_count", lambda: 2)
+    monkeypatch.setattr(writers_together.os, "getloadavg", lambda: (0.0, 0.0, 0.0))
+    monkeypatch.setattr(writers_together.os, "cpu_count", lambda: 2)
     forked = write_results(results, tmp_path / "forked", report=False, vtk=False)
-    monkeypatch.setattr(results_folder.os, "getloadavg", lambda: (9.0, 9.0, 9.0))
+    monkeypatch.setattr(writers_together.os, "getloadavg", lambda: (9.0, 9.0, 9.0))
     alone = write_results(results, tmp_path / "alone", report=False, vtk=False)
     assert forked == alone and Path("plots/histories.png") in forked
     for name in forked:
@@ -242,7 +243,7 @@ def test_writers_side_by_side_give_the_same_files_and_pass_errors_on(tmp_path, m
     def broken(*args, **kwargs):
         raise RuntimeError("drawing failed")
 
-    monkeypatch.setattr(results_folder.os, "getloadavg", lambda: (0.0, 0.0, 0.0))
+    monkeypatch.setattr(writers_together.os, "getloadavg", lambda: (0.0, 0.0, 0.0))
     monkeypatch.setattr(results_folder, "write_line_plots", broken)
     with pytest.raises(RuntimeError, match="drawing failed"):
         write_results(results, tmp_path / "broken", report=False, vtk=False)

@@ -49,8 +49,9 @@ def execute(args: argparse.Namespace) -> int:
     from ..casefile.case import load_case
     from ..field_results import FieldResults
     from ..folder_lock import results_lock
+    from ..folder_room import check_can_write, check_room
     from ..pipeline import run_case, write_results
-    from ..results_folder import check_can_write, check_results_folder, check_room
+    from ..results_folder import check_results_folder
 
     case = load_case(args.case)  # every check that needs no mesh, before anything is written
     out = results_folder(args.case, args.out)

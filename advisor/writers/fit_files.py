@@ -11,14 +11,8 @@ from pathlib import Path
 import numpy as np
 
 from ..caution import CAUTION
-from ..results_folder import (
-    MARKER,
-    PLOT_FOLDER,
-    _write_marker,
-    check_can_write,
-    check_results_folder,
-    staged_write,
-)
+from ..folder_room import check_can_write
+from ..results_folder import MARKER, PLOT_FOLDER, _write_marker, check_results_folder, staged_write
 from .atomic import write_text
 from .report_document import Picture
 from .version import soakwise_version
