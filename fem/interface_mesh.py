@@ -225,9 +225,7 @@ def _corner(t: np.ndarray, triangles: np.ndarray, vertex: np.ndarray) -> np.ndar
 def _assembled_split(section, corner_vertex, facets_of, region_of, names) -> SplitSectionMesh:
     """The split mesh from the new corner numbering, with its edge groups carried over and the
     two faces of each interface."""
-    from skfem import MeshTri, MeshTri2
-
-    from geometries.mesh_arrays import triangle_topology
+    from geometries.mesh_arrays import scikit_mesh, triangle_topology
 
     mesh = section.mesh
     n_vertices = mesh.nvertices
@@ -241,19 +239,12 @@ def _assembled_split(section, corner_vertex, facets_of, region_of, names) -> Spl
         new_facet[mesh.t2f[k]] = linear.t2f[k]
     boundaries = {name: np.sort(new_facet[f]) for name, f in mesh.boundaries.items()}
     subdomains = dict(mesh.subdomains)
+    middle = None
     if mesh.p.shape[1] > n_vertices:  # quadratic: mid-edge nodes in the new facets' order
         middle = np.empty((2, linear.facets.shape[1]))
         for k in range(3):
             middle[:, linear.t2f[k]] = mesh.p[:, n_vertices + mesh.t2f[k]]
-        split = MeshTri2(
-            doflocs=np.ascontiguousarray(np.hstack([vertices, middle])),
-            t=t,
-            _boundaries=boundaries,
-            _subdomains=subdomains,
-            sort_t=False,
-        )
-    else:
-        split = MeshTri(vertices, t, _boundaries=boundaries, _subdomains=subdomains, sort_t=False)
+    split = scikit_mesh(vertices, t, boundaries, subdomains, middle)
     linear.attach(split)
     sides = {
         pair: _sides(mesh, linear, corner_vertex, facets, region_of, names.index(pair[0]), pair)

@@ -65,17 +65,10 @@ def section_mesh_from_arrays(
             f"symmetry_multiplier must be a whole number >= 1, got {symmetry_multiplier!r}"
         )
 
+    middle = None
     if triangles.shape[1] == 6:  # quadratic: the mid-edge nodes follow the corners
-        doflocs = np.hstack([vertices, _mid_edge_nodes(points, triangles, topology)])
-        mesh = MeshTri2(
-            doflocs=np.ascontiguousarray(doflocs),
-            t=t,
-            _boundaries=boundaries,
-            _subdomains=subdomains,
-            sort_t=False,
-        )
-    else:
-        mesh = MeshTri(vertices, t, _boundaries=boundaries, _subdomains=subdomains, sort_t=False)
+        middle = _mid_edge_nodes(points, triangles, topology)
+    mesh = scikit_mesh(vertices, t, boundaries, subdomains, middle)
     topology.attach(mesh)
     return SectionMesh(mesh=mesh, facts=section_facts(mesh, axisymmetric, symmetry_multiplier))
 
@@ -169,6 +162,29 @@ def _region_elements(
             f"{int(np.sum(covered > 1))} have several; each triangle needs exactly one region"
         )
     return subdomains
+
+
+def scikit_mesh(
+    vertices: np.ndarray,
+    t: np.ndarray,
+    boundaries: Mapping[str, np.ndarray],
+    subdomains: Mapping[str, np.ndarray],
+    middle: np.ndarray | None = None,
+) -> MeshTri:
+    """scikit-fem's triangle mesh of ``vertices`` (2, n) and corners ``t`` (3, m) as given (not
+    re-sorted), with its named facets and elements; quadratic when ``middle`` holds the
+    mid-edge nodes (2, n_facets) in the mesh's facet order."""
+    if middle is None:
+        return MeshTri(
+            vertices, t, _boundaries=dict(boundaries), _subdomains=dict(subdomains), sort_t=False
+        )
+    return MeshTri2(
+        doflocs=np.ascontiguousarray(np.hstack([vertices, middle])),
+        t=t,
+        _boundaries=dict(boundaries),
+        _subdomains=dict(subdomains),
+        sort_t=False,
+    )
 
 
 def triangle_topology(t: np.ndarray, n_vertices: int) -> _Topology:
