@@ -7,10 +7,10 @@ the mesher or the plotting.
 
 from __future__ import annotations
 
-from importlib import import_module
 from typing import TYPE_CHECKING
 
 from .errors import AdvisorError, ResultsFolderExistsError
+from .lazy_names import lazy_names
 
 # Public name → the module that defines it.
 _LAZY = {
@@ -78,15 +78,4 @@ if TYPE_CHECKING:
     )
     from .pipeline import Results, run_case, run_model, write_results
 
-
-def __getattr__(name: str):
-    module = _LAZY.get(name)
-    if module is None:
-        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
-    value = getattr(import_module(module, __name__), name)
-    globals()[name] = value  # later look-ups skip this function
-    return value
-
-
-def __dir__() -> list[str]:
-    return sorted({*globals(), *_LAZY})
+__getattr__, __dir__ = lazy_names(__name__, _LAZY)

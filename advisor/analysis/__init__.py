@@ -7,8 +7,9 @@ The public names are loaded on first use, so a module that needs only the verdic
 
 from __future__ import annotations
 
-from importlib import import_module
 from typing import TYPE_CHECKING
+
+from ..lazy_names import lazy_names
 
 # Public name → the module that defines it.
 _LAZY = {
@@ -61,15 +62,4 @@ if TYPE_CHECKING:
     from .quench import QuenchCurve, QuenchOutputs, quench_outputs, rate_of_change
     from .quick import QuickCheck, quick_check
 
-
-def __getattr__(name: str):
-    module = _LAZY.get(name)
-    if module is None:
-        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
-    value = getattr(import_module(module, __name__), name)
-    globals()[name] = value  # later look-ups skip this function
-    return value
-
-
-def __dir__() -> list[str]:
-    return sorted({*globals(), *_LAZY})
+__getattr__, __dir__ = lazy_names(__name__, _LAZY)

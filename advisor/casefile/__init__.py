@@ -13,12 +13,8 @@ command line to list its choices) does not load pint, numpy or the solver.
 
 from __future__ import annotations
 
+from ..lazy_names import lazy_names
+
 __all__ = ["Case", "CaseError", "case_from_data", "case_from_toml", "load_case"]
 
-
-def __getattr__(name: str):
-    if name in __all__:
-        from . import case
-
-        return getattr(case, name)
-    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+__getattr__, __dir__ = lazy_names(__name__, dict.fromkeys(__all__, ".case"))

@@ -14,6 +14,8 @@ The names below load on first use, so ``import advisor`` stays light.
 
 from __future__ import annotations
 
+from ..lazy_names import lazy_names
+
 __all__ = [
     "ANSWER_COLUMNS",
     "StudyError",
@@ -38,10 +40,4 @@ _WHERE = {
     "read_study": "tables",
 }
 
-
-def __getattr__(name: str):
-    if name in _WHERE:
-        from importlib import import_module
-
-        return getattr(import_module(f".{_WHERE[name]}", __name__), name)
-    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+__getattr__, __dir__ = lazy_names(__name__, {k: f".{v}" for k, v in _WHERE.items()})
