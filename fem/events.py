@@ -102,7 +102,12 @@ STOP_QUANTITIES = {
 }
 
 
-def stop_reason(stop: StopWhen | None, stop_time: float | None, end_time: float) -> str:
+def stop_reason(
+    stop: StopWhen | None,
+    stop_time: float | None,
+    end_time: float,
+    said: Callable[[float], str] = lambda seconds: f"{seconds:.6g} s",
+) -> str:
     """Why the run ended, in plain words: the stop condition met (and when) or the end time
     reached (and, with a stop condition, that it was not met).
 
@@ -114,6 +119,8 @@ def stop_reason(stop: StopWhen | None, stop_time: float | None, end_time: float)
         When it was met, s (None if it was not, or there was none).
     end_time : float
         The requested end time, s.
+    said : callable, optional
+        How a time in s is written (the advisor writes durations for a person).
 
     Examples
     --------
@@ -123,12 +130,12 @@ def stop_reason(stop: StopWhen | None, stop_time: float | None, end_time: float)
     'end time reached (7200 s)'
     """
     if stop is None:
-        return f"end time reached ({end_time:.6g} s)"
+        return f"end time reached ({said(end_time)})"
     what = STOP_QUANTITIES.get(stop.quantity, f"probe {stop.quantity!r}")
     if stop_time is not None:
-        return f"stopped at {stop_time:.6g} s: {what} reached {stop.target:g} °C"
+        return f"stopped at {said(stop_time)}: {what} reached {stop.target:g} °C"
     return (
-        f"end time reached ({end_time:.6g} s); the stop condition ({what} reaching "
+        f"end time reached ({said(end_time)}); the stop condition ({what} reaching "
         f"{stop.target:g} °C) was not met"
     )
 

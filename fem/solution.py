@@ -7,6 +7,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from .events import StopWhen
 from .fields import FieldSeries
 from .model import ThermalModel
 
@@ -161,6 +162,8 @@ class Solution:
         W (planar: W per metre of depth), at each time.
     stop_reason : str
         Why the run ended, in plain words (:func:`fem.events.stop_reason`).
+    stop : StopWhen or None
+        The run's stop condition, for words of its own about the ending.
     peak_field, peak_field_time : ndarray and float, or None
         The vertex temperatures (°C) at the recorded step of the largest internal difference,
         and that step's time (s): a fast event may fall between output times.
@@ -187,6 +190,7 @@ class Solution:
     interface_jump: dict[str, np.ndarray] = field(default_factory=dict)
     interface_heat_flow: dict[str, np.ndarray] = field(default_factory=dict)
     stop_reason: str = ""
+    stop: StopWhen | None = None
     peak_field: np.ndarray | None = None
     peak_field_time: float | None = None
 

@@ -214,6 +214,7 @@ def _run(model, controls: RunControls, fields: FieldSeries, hooks: dict) -> Solu
         final_state=march.final_state,
         stop_time=march.stop_time,
         stop_reason=stop_reason(controls.stop, march.stop_time, controls.end_time),
+        stop=controls.stop,
         **histories,
     )
 

@@ -18,6 +18,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from fem import Solution
+from fem.events import stop_reason
 
 from ..errors import AdvisorError
 from ..time_words import duration_text
@@ -264,14 +265,8 @@ def run_ending(solution: Solution, target: float | None, slowest_time: float | N
     """How the run ended and whether the slowest point reached ``target``, in plain words:
     ``"stopped at 5400 s: probe 'core' reached 845 °C"``, ``"end time reached (7200 s);
     target 845 °C not reached at the slowest point"``."""
-    if solution.stop_time is not None and ": " in solution.stop_reason:
-        # the solver's words name the condition; the time is said for a person here
-        reason = f"stopped at {duration_text(solution.stop_time)}: "
-        reason += solution.stop_reason.split(": ", 1)[1]
-    else:  # "end time reached (… s)", and what the stop condition did, if there was one
-        reason = f"end time reached ({duration_text(float(solution.times[-1]))})"
-        if solution.stop_reason.startswith("end time reached ("):
-            reason += solution.stop_reason[solution.stop_reason.index(")") + 1 :]
+    end = float(solution.times[-1])
+    reason = stop_reason(solution.stop, solution.stop_time, end, said=duration_text)
     if target is None:
         return reason
     if slowest_time is None:
