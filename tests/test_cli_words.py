@@ -134,3 +134,15 @@ def test_a_skipped_optional_output_is_said_once(folder, tmp_path, capsys, monkey
     notes = [line for line in err.splitlines() if line.startswith("note: ")]
     assert len(notes) == 1 and "xdmf" in notes[0], err
     assert not (out / "fields" / "temperature.xdmf").exists()
+
+
+def test_a_reader_that_stops_early_is_no_error():
+    """`soakwise materials | head -1`: the closed pipe ends the listing quietly, status 0."""
+    import subprocess
+    import sys
+
+    command = [sys.executable, "-m", "advisor.cli", "materials"]
+    listing = subprocess.Popen(command, stdout=subprocess.PIPE, stderr=subprocess.PIPE)
+    listing.stdout.close()  # the reader is gone before the first line is written
+    status = listing.wait(timeout=60)
+    assert listing.stderr.read() == b"" and status == 0

@@ -140,10 +140,15 @@ def _main(argv: list[str] | None) -> int:
         parser.print_help()
         return EXIT_USAGE
     try:
-        return COMMANDS[args.command].execute(args)
+        status = COMMANDS[args.command].execute(args)
+        sys.stdout.flush()  # a reader that stopped early shows here, not at exit
+        return status
     except (AdvisorError, *_loaded(USAGE_ERRORS)) as error:
         print(f"soakwise: error: {error}", file=sys.stderr)
         return EXIT_USAGE
+    except BrokenPipeError:  # the reader (head, a pager) stopped reading: nothing is wrong
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())  # no error at exit
+        return EXIT_OK
     except (*_loaded(RUN_FAILURES), OSError, RuntimeError, ArithmeticError) as error:
         print(f"soakwise: the run failed: {error}", file=sys.stderr)
         return EXIT_FAILED
