@@ -10,11 +10,14 @@ References, computed here from ``tests/exact_series.py`` (its own root-finding a
   from memory): θ*_bar = θ*_wall(x)·θ*_wall(y), θ*_short = θ*_cylinder(r)·θ*_wall(z).
 
 Each case runs at two mesh sizes (P1 elements, default adaptive Crank–Nicolson), and the
-estimate (two extra solves on a mesh twice as coarse, Richardson with the element's order 2,
-factor of safety 1.25) is set against the true error of the slowest point's time to target,
-of its temperature (largest over the output times after t = 0) and of the peak internal
-difference. Effectivity (estimate/true) in [1, 3] means the estimate bounds the error without
-crying wolf; each test states what it asks and what was measured.
+estimate (two extra solves on a mesh twice as coarse: Richardson with the element's order 2,
+and in time with Crank–Nicolson's order 2; factor of safety 1.5) is set against the true error
+of the slowest point's time to target, of its temperature (largest over the output times after
+t = 0) and of the peak internal difference. Effectivity (estimate/true) in [1, 3] means the
+estimate bounds the error without crying wolf; it is asked of every answer on every run, with
+two exceptions whose cause each test checks against the exact solution rather than assumes.
+The factor of safety was chosen on these runs (see ``SAFETY_FACTOR``); its check on cases it
+was not chosen on is ``tests/test_error_estimate_other_cases.py``.
 """
 
 from __future__ import annotations
@@ -165,35 +168,66 @@ def effectivities(request):
     target = AMBIENT + THETA_TARGET * (INITIAL - AMBIENT)
     estimate = estimate_errors(solution, coarse, end_time=end, target=target, heading=AMBIENT)
     true = true_errors(solution, centre, fastest)
-    return {key: (estimate.answers[key], abs(error)) for key, error in true.items()}
+    found = {key: (estimate.answers[key], abs(error)) for key, error in true.items()}
+    found["run"] = (name, divisions, solution, centre, fastest)
+    return found
 
 
 def test_the_estimate_brackets_the_slowest_point_temperature(effectivities):
-    """Measured effectivities 0.88–1.91 over the ten runs: Richardson's two-mesh estimate
-    with the factor of safety 1.25 may fall short by a little where the coarse mesh (R/2.5)
-    is not yet in the asymptotic range, so 0.85 is the lower bound asked."""
+    """Measured effectivities 1.05–2.29 over the ten runs (1.05 on the sphere at R/5, whose
+    coarse mesh of R/2.5 is outside the asymptotic range); asked: [1, 3]."""
     answer, error = effectivities["slowest"]
-    assert 0.85 * error <= answer.estimate <= 3.0 * error
+    assert error <= answer.estimate <= 3.0 * error, answer.estimate / error
 
 
-def test_the_estimate_bounds_the_time_to_target(effectivities):
-    """Never below the true error. Measured effectivities 1.08–3.8, and 20.7 on the sphere
-    whose coarse mesh (R/2.5) has three elements across the radius while the true error is
-    5e-4 of the time: asked, within [1, 3] or, above it, an estimate below 1.5 % of the time
-    (the estimate stays small against the 5 % tolerance it is judged by)."""
+def test_the_estimate_brackets_the_time_to_target(effectivities):
+    """Measured effectivities 1.24–2.84 on nine runs; asked: [1, 3].
+
+    The exception is the sphere at R/5 (measured 23): there the run's temperature error at
+    the centre changes sign at the crossing, so the true error of the time is 6e-4 of it,
+    which a two-mesh estimate cannot see. The test checks that cause on the exact series (a
+    true error below 0.1 % of the time, the temperature error of opposite signs at output
+    times within 2 s of the crossing) and then asks the estimate to bound the error and stay
+    below 1.5 % of the time (a third of the 5 % tolerance it is judged by)."""
     answer, error = effectivities["time_to_target"]
     assert answer.estimate >= error
-    assert answer.estimate <= max(3.0 * error, 0.015 * answer.value)
+    if answer.estimate <= 3.0 * error:
+        return
+    _, _, solution, centre, _ = effectivities["run"]
+    assert error < 1e-3 * answer.value
+    near = solution.output_times[np.abs(solution.output_times - answer.value) <= 2.0]
+    exact = AMBIENT + (INITIAL - AMBIENT) * np.array([centre(ALPHA * t / R**2) for t in near])
+    wrong = np.interp(near, solution.times, solution.maximum) - exact
+    assert wrong.min() < 0.0 < wrong.max(), wrong
+    assert answer.estimate <= 0.015 * answer.value
 
 
-def test_the_estimate_of_the_peak_difference_is_within_a_factor_three(effectivities):
-    """The peak internal difference comes early (Fo ≈ 0.03–0.1), while the surface layer is
-    a few elements thick: at R/10 the error still falls more slowly than h² (measured on the
-    square bar: 0.32, 0.099, 0.029 K at R/10, R/20, R/40), so two meshes underestimate it.
-    Measured effectivities 0.33–2.29 (under 1 at R/10 for four of the five shapes); asked:
-    from 0.3 to 3 (a known limitation, stated in the module's description)."""
+def test_the_estimate_brackets_the_peak_difference(effectivities):
+    """The estimate adds the magnitudes of the hottest and the coldest temperature's errors
+    at the peak (their Richardson estimates change sign between R/5 and R/10, so the
+    difference's own estimate fell to 0.33 of the true error). Measured effectivities
+    1.20–2.34 on eight runs; asked: [1, 3].
+
+    The exceptions are the square bar and the short cylinder at R/5 (measured 3.13 and 3.56):
+    there the two temperatures' true errors have the same sign and partly cancel in the
+    difference, which a bound by magnitudes ignores. The test checks that cause on the exact
+    series (same sign at the output times either side of the peak) and then asks at most 4."""
     answer, error = effectivities["peak_difference"]
-    assert 0.3 * error <= answer.estimate <= 3.0 * error
+    assert error <= answer.estimate, answer.estimate / error
+    if answer.estimate <= 3.0 * error:
+        return
+    _, _, solution, centre, fastest = effectivities["run"]
+    peak = solution.times[int(np.argmax(solution.internal_difference))]
+    k = int(np.searchsorted(solution.output_times, peak))
+    either = solution.output_times[k - 1 : k + 1]
+    drive = INITIAL - AMBIENT
+    errors = [
+        np.interp(either, solution.times, history)
+        - (AMBIENT + drive * np.array([exact(ALPHA * t / R**2) for t in either]))
+        for exact, history in ((centre, solution.maximum), (fastest, solution.minimum))
+    ]
+    assert np.all(np.concatenate(errors) > 0) or np.all(np.concatenate(errors) < 0), errors
+    assert answer.estimate <= 4.0 * error
 
 
 def test_a_case_asks_for_its_error_estimate(tmp_path):
@@ -249,7 +283,7 @@ ERROR_ESTIMATE
 
 def test_quadratic_elements_use_order_three_and_say_where_they_fall_short():
     """P2: Richardson with order 3; on this wall the slowest point's estimate was measured at
-    0.06 of its true error (the quadratic nodes' early overshoot), which the description
+    0.08 of its true error (the quadratic nodes' early overshoot), which the description
     states rather than hides."""
     edges = {"bottom": "symmetry", "top": "cooled", "left": "ends", "right": "ends"}
 
