@@ -175,7 +175,8 @@ def estimate_errors(
         f"two extra solves on a mesh {ratio:.3g} times coarser; space: Richardson with the "
         f"P{fine_model.element_order} elements' order {p}; time: "
         + (
-            f"the coarse solve again at half the time resolution, order {q}"
+            f"the coarse solve again at half the time resolution (steps doubled, every second "
+            f"output time), order {q}"
             if coarser is not None
             else "the exponential steps' own bound"
         )
