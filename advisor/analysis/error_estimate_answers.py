@@ -19,14 +19,12 @@ from fem import Solution
 
 from .lumped_fits import crossing_time
 
-# The factor of safety on |space| + |time|. Roache ("Quantification of uncertainty in
-# computational fluid dynamics", Annu. Rev. Fluid Mech. 29 (1997) 123–160, from memory) gives
-# 3 for two grids of unverified order and 1.25 for three grids with the observed order; here
-# the order is assumed (two grids), and 1.5 is what put the estimates of the five exact
-# solutions of tests/test_error_estimate.py, at two mesh sizes each, between 1 and 3 times the
-# true error (1.25 left the slowest point's temperature at 0.87–0.95 where the coarse mesh
-# is outside the asymptotic range; 3 put the rest at up to 4.6): calibrated, not published.
-SAFETY_FACTOR = 1.5
+# Roache's factor of safety ("Quantification of uncertainty in computational fluid dynamics",
+# Annu. Rev. Fluid Mech. 29 (1997) 123–160, from memory: 1.25 with three grids, 3 with two),
+# 1.25 as Celik et al. (2008) use it: with each part measured (the time part including the
+# start-up steps), the estimates of tests/test_error_estimate.py were never below the true
+# error, while 3 would have put them at up to 10 times it.
+SAFETY_FACTOR = 1.25
 
 
 @dataclass(frozen=True)
@@ -44,8 +42,7 @@ class AnswerError:
         ``"s"`` or ``"K"``.
     space, time : float
         The space and time parts in the answer's unit: signed (fine − exact, estimated) for
-        the time to target and the temperatures; for the peak difference, bounds ≥ 0 (the sum
-        of the magnitudes of its hottest and coldest temperatures' parts).
+        the time to target and the temperatures; magnitudes (≥ 0) for the peak difference.
     estimate : float
         F_s·(|space| + |time|), the ± stated beside the answer.
     allowed : float
@@ -77,6 +74,7 @@ class Runs:
         The run, and the same problem on the coarse mesh with the run's time settings.
     coarser : fem.Solution or None
         The coarse mesh at half the time resolution (None for exponential steps).
+
     ratio : float
         r, the coarse mesh's element size over the run's.
     space_order, time_order : int
@@ -174,24 +172,27 @@ def _time_to_target(runs, target, drive, heating, tolerance) -> AnswerError | No
 
 
 def _peak_difference(runs: Runs, allowed: float) -> AnswerError:
-    """The peak internal difference T_max − T_min: the magnitudes of the parts of T_max and
-    of T_min added (their errors may have opposite signs on one mesh and the same on the
+    """The peak internal difference T_max − T_min. Space: the magnitudes of the parts of T_max
+    and of T_min added (their errors may have opposite signs on one mesh and the same on the
     other, so the difference's own Richardson estimate can miss), the larger of their values
-    at the output times either side of the run's peak (early on, the estimates change
-    quickly between output times); in the time part also how far the peak may lie above the
-    steps' largest value."""
+    at the output times either side of the run's peak. Time: Richardson on the coarse and
+    coarser solves' peaks themselves, which holds the error of sampling the peak at the steps
+    (for exponential steps their bound and that sampling error, from the run's history)."""
     fine = runs.fine
     i = int(np.argmax(fine.internal_difference))
     peak_time = float(fine.times[i])
     shared = _shared_outputs(runs)
     k = int(np.searchsorted(shared, peak_time))
     either = shared[max(k - 1, 0) : k + 1]
-    space = time = 0.0
+    space = 0.0
     for pick in (lambda r: r.maximum, lambda r: r.minimum):
-        s, t = _parts(runs, pick, either)
+        s, _ = _parts(runs, pick, either)
         space += float(np.max(np.abs(s)))
-        time += float(np.max(np.abs(t)))
-    time += _sampling_error(fine.times, fine.internal_difference, i)
+    if runs.coarser is None:
+        time = runs.bound + _sampling_error(fine.times, fine.internal_difference, i)
+    else:
+        peaks = [float(r.internal_difference.max()) for r in (runs.coarse, runs.coarser)]
+        time = abs(peaks[1] - peaks[0]) / (2.0**runs.time_order - 1.0)
     estimate = SAFETY_FACTOR * (space + time)
     value = float(fine.internal_difference[i])
     return AnswerError("peak_difference", value, "K", space, time, estimate, allowed)
