@@ -158,13 +158,12 @@ def _time_to_target(runs, target, drive, heating, tolerance) -> AnswerError | No
     space, time = _parts(runs, lambda r: _slowest(r, heating), either)
     recorded = _at(fine, history, either)
     slope = _slope(fine.times, history, crossing)
-    if len(either) == 2:
+    if len(either) == 2 and recorded[1] != recorded[0]:
         slope = (recorded[1] - recorded[0]) / (either[1] - either[0])
-    weight = np.interp(crossing, either, np.linspace(0.0, 1.0, len(either)))
-    at = lambda part: (1.0 - weight) * part[0] + weight * part[-1]  # noqa: E731
     # A history too high by E reaches a falling target E/|T'| later: Δt = −E/T'.
-    space_s = -at(space) / slope
-    time_s = -at(time) / slope + _reading_error(fine.times, history, crossing)
+    space_s = -float(np.interp(crossing, either, space)) / slope
+    time_s = -float(np.interp(crossing, either, time)) / slope
+    time_s += _reading_error(fine.times, history, crossing)
     estimate = SAFETY_FACTOR * (abs(space_s) + abs(time_s))
     return AnswerError(
         "time_to_target", crossing, "s", space_s, time_s, estimate, tolerance * crossing
@@ -234,7 +233,8 @@ def _sampling_error(times, history, i: int) -> float:
 def _slope(times, history, at: float) -> float:
     """dT/dt of ``history`` in the step holding ``at``, K/s."""
     i = int(np.clip(np.searchsorted(times, at), 1, len(times) - 1))
-    return float((history[i] - history[i - 1]) / (times[i] - times[i - 1]))
+    slope = float((history[i] - history[i - 1]) / (times[i] - times[i - 1]))
+    return slope if slope != 0.0 else 1e-300  # a crossing has a slope; guard a flat step
 
 
 def _slowest(run: Solution, heating: bool) -> np.ndarray:
