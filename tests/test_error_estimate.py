@@ -193,19 +193,25 @@ def effectivities(request):
     return found
 
 
+def least(effectivities) -> float:
+    """The smallest effectivity asked: 1 with P1 (measured 1.10 upwards); 0.65 with P2, whose
+    error is mostly the start-up steps', which on the sphere's coarse mesh change the
+    temperature by only 0.6 of what they do on the run's (measured 0.75 there, 1.01 upwards
+    elsewhere). The bounds leave 10 % room or more against the values measured, as gmsh's
+    versions may place the nodes differently."""
+    return 1.0 if effectivities["run"][1] == 1 else 0.65
+
+
 def test_the_estimate_brackets_the_slowest_point_temperature(effectivities):
     """Measured effectivities (estimate / true error, each the largest over the output times)
     1.16–1.92 with P1 but on the cylinder at R/5 (3.34, where the true space and time errors
     have opposite signs and partly cancel), 1.06–1.20 with P2 but on the sphere (0.76 and
-    0.75: the error is the start-up steps' there, and on the sphere's coarse mesh doubling
-    them changes the temperature by 0.6 of what it does on the run's). Asked: at least the
-    true error (P2: 0.7 of it), and at most 3 times the error the two parts would make
-    without cancelling (their true magnitudes added, from a reference run on the same mesh
-    with far shorter steps)."""
+    0.75). Asked: at least :func:`least`, and at most 3 times the error the two parts would
+    make without cancelling (their true magnitudes added, from a reference run on the same
+    mesh with far shorter steps; measured at most 2.2 of it)."""
     answer, error, uncancelled = effectivities["slowest"]
-    order = effectivities["run"][1]
-    least = 1.0 if order == 1 else 0.7
-    assert least * error <= answer.estimate <= 3.0 * uncancelled, answer.estimate / error
+    assert least(effectivities) * error <= answer.estimate, answer.estimate / error
+    assert answer.estimate <= 3.0 * uncancelled, answer.estimate / uncancelled
 
 
 def test_the_estimate_brackets_the_time_to_target(effectivities):
@@ -214,13 +220,13 @@ def test_the_estimate_brackets_the_time_to_target(effectivities):
     cancel, and the sphere at R/5 (22), where the run's temperature error at the centre
     changes sign at the crossing, so the true error of the time is 6e-4 of it and its space
     part nearly nothing, which a two-mesh estimate cannot see. Asked: at least the true
-    error, and at most 3 times the error the parts would make without cancelling; for the
-    sphere at R/5 the cause is checked on the exact series (a true error below 0.1 % of the
-    time, the temperature error of opposite signs at output times within 2 s of the
-    crossing) and the estimate asked to stay below 1.5 % of the time (a third of the 5 %
-    tolerance it is judged by)."""
+    error (:func:`least`), and at most 3 times the error the parts would make without
+    cancelling; for the sphere at R/5 the cause is checked on the exact series (a true error
+    below 0.1 % of the time, the temperature error of opposite signs at output times within
+    2 s of the crossing) and the estimate asked to stay below 1.5 % of the time (a third of
+    the 5 % tolerance it is judged by)."""
     answer, error, uncancelled = effectivities["time_to_target"]
-    assert answer.estimate >= error
+    assert answer.estimate >= least(effectivities) * error
     if answer.estimate <= 3.0 * uncancelled:
         return
     _, _, _, solution, centre = effectivities["run"]
@@ -238,10 +244,11 @@ def test_the_estimate_brackets_the_peak_difference(effectivities):
     difference's own estimate fell to 0.33 of the true error) and Richardson's time error of
     the peak. Measured effectivities 1.10–2.22 with P1 and 1.01–1.72 with P2 but three, the
     sphere, square bar and short cylinder at R/5 (3.41, 3.65, 4.23), where the true space and
-    time errors have opposite signs and partly cancel. Asked: at least the true error, and at
-    most 3 times the error the parts would make without cancelling."""
+    time errors have opposite signs and partly cancel. Asked: at least the true error
+    (:func:`least`), and at most 3 times the error the parts would make without cancelling."""
     answer, error, uncancelled = effectivities["peak_difference"]
-    assert error <= answer.estimate <= 3.0 * uncancelled, answer.estimate / error
+    assert least(effectivities) * error <= answer.estimate, answer.estimate / error
+    assert answer.estimate <= 3.0 * uncancelled, answer.estimate / uncancelled
 
 
 def test_a_case_asks_for_its_error_estimate(tmp_path):

@@ -134,9 +134,11 @@ def test_the_time_to_target_is_bracketed(effectivities):
     """Measured effectivities 0.85–4.09: under 1 on the sphere at Biot 5 and R/4 (0.85),
     above 3 on the sphere at Biot 0.3 and R/4 and the cylinder at Biot 0.3 and R/8 (3.42,
     4.09, where the true parts cancel: 1.10 against the uncancelled error, at most 2.23 on
-    any run). Asked: at least 0.8 of the true error, at most 3 times the uncancelled one."""
+    any run). Asked: at least 0.75 of the true error, at most 3 times the uncancelled one
+    (room of 10 % or more against the values measured, as gmsh's versions may place the nodes
+    differently)."""
     against_true, against_uncancelled = effectivities["time_to_target"]
-    assert against_true >= 0.8
+    assert against_true >= 0.75
     assert against_uncancelled <= 3.0
 
 
@@ -145,7 +147,7 @@ def test_the_peak_difference_is_bracketed(effectivities):
     bar at Biot 0.3 and R/4, whose true error is 0.1 % of its peak difference of 44 K; against
     the uncancelled error 0.99–2.92 (the hottest and coldest temperatures' errors, and the
     space and time parts, cancel in the difference). Asked: at least the true error, at most
-    3 times the uncancelled one."""
+    3.3 times the uncancelled one (10 % room against the 2.92 measured)."""
     against_true, against_uncancelled = effectivities["peak_difference"]
     assert against_true >= 1.0
-    assert against_uncancelled <= 3.0
+    assert against_uncancelled <= 3.3
