@@ -146,8 +146,12 @@ def hand_crank_nicolson(model: ThermalModel, step: float, steps: int):
     return u, np.array(reactions)
 
 
+@pytest.mark.parametrize("threads", [1, 2])
 @pytest.mark.parametrize("fixed", [False, True])
-def test_linear_steps_match_crank_nicolson_written_out(fixed):
+def test_linear_steps_match_crank_nicolson_written_out(monkeypatch, fixed, threads):
+    """With the explicit products on one thread, and cut into two row blocks on two threads
+    (what large meshes get)."""
+    monkeypatch.setattr(fem.linalg, "PRODUCT_THREADS", threads)
     model = slab_model(fixed)
     steps, step = 40, 10.0
     expected, reactions = hand_crank_nicolson(model, step, steps)
@@ -162,3 +166,25 @@ def test_linear_steps_match_crank_nicolson_written_out(fixed):
         assert recorded.size == steps + 1  # every step and t = 0
         scale = np.abs(reactions).max()
         assert np.abs(recorded[1:] - reactions).max() <= 1e-10 * scale
+
+
+@pytest.mark.parametrize("threads", [1, 2, 3, 7])
+def test_row_block_products_match_scipy(threads):
+    """E·x and c + E·x on row blocks against scipy's own product: the same sums row by row,
+    so round-off alike (1e-14 relative); a block left out or taken twice would be off by a
+    whole row. The matrix has empty rows and a long dense row (blocks of unequal rows)."""
+    rng = np.random.default_rng(11)
+    matrix = sp.random(300, 200, density=0.05, random_state=rng, format="lil")
+    matrix[7, :] = rng.random(200)
+    matrix[40:60, :] = 0.0
+    matrix = matrix.tocsr()
+    x, c = rng.random(200), rng.random(300)
+    product = fem.linalg.RowBlockProduct(matrix, threads=threads)
+    assert product.cuts[0] == 0 and product.cuts[-1] == 300
+    assert np.all(np.diff(product.cuts) > 0)
+    reference = matrix @ x
+    assert np.abs(product(x) - reference).max() <= 1e-14 * np.abs(reference).max()
+    into = c.copy()
+    summed = product.add_to(x, into)
+    assert summed is into
+    assert np.abs(summed - (c + reference)).max() <= 1e-14 * np.abs(c + reference).max()
