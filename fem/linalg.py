@@ -26,8 +26,6 @@ threshold pivoting below that size, COLAMD with partial pivoting above.
 from __future__ import annotations
 
 import functools
-import os
-import threading
 import time as clock
 from collections import OrderedDict
 from collections.abc import Callable
@@ -39,6 +37,7 @@ import scipy.sparse.linalg as spla
 
 from .errors import ModelError
 from .ordering import PermutedFactor, nested_dissection
+from .products import RowBlockProduct, local_numbering
 from .system import ConductionSystem
 
 FACTOR_CACHE = 4
@@ -50,11 +49,6 @@ SYMMETRIC_SOLVERS = ("cholesky", "superlu")
 # The factorisation of the step matrices; None: "cholesky" when cholespy is installed, else
 # "superlu". A setting for comparisons (the benchmarks, the tests).
 SYMMETRIC_SOLVER: str | None = None
-# Threads for the explicit product of a step; None: two where two cores are free to this
-# process and the matrix has PARALLEL_FROM entries or more (below that a thread's hand-over,
-# ~0.1 ms, costs more than half a product saves).
-PRODUCT_THREADS: int | None = None
-PARALLEL_FROM = 1_000_000
 
 
 @functools.cache
@@ -130,83 +124,6 @@ class CholeskyFactor:
         return x
 
 
-class RowBlockProduct:
-    """x ↦ E·x (or c + E·x, into c) for a sparse matrix E, its rows cut into blocks of equal
-    entries multiplied at once on as many threads (scipy's kernel lets go of the interpreter
-    lock).
-
-    A step's explicit product reads the whole matrix from memory: on the 992k-node square
-    (7.0 entries a row, the mesh's own node numbering) 16.4 ms on one thread, 8.1 ms on two.
-    Each row is summed as ``E @ x`` sums it, starting from ``c``.
-    """
-
-    def __init__(self, matrix: sp.spmatrix, threads: int | None = None):
-        self.matrix = matrix = sp.csr_matrix(matrix)
-        self.shape = matrix.shape
-        threads = threads or PRODUCT_THREADS or _product_threads(matrix.nnz)
-        wanted = np.linspace(0, matrix.nnz, threads + 1)
-        self.cuts = np.unique(np.searchsorted(matrix.indptr, wanted).clip(0, self.shape[0]))
-        self.cuts[[0, -1]] = 0, self.shape[0]
-        self._kernel = _csr_kernel() if self.cuts.size > 2 else None
-
-    def __call__(self, x: np.ndarray) -> np.ndarray:
-        """E·x, a new array."""
-        return self.add_to(x, np.zeros(self.shape[0]))
-
-    def add_to(self, x: np.ndarray, out: np.ndarray) -> np.ndarray:
-        """out + E·x, summed into ``out`` (a float64 array of E's rows), which is returned."""
-        x = np.ascontiguousarray(x, dtype=np.float64)
-        if self._kernel is None or self.matrix.dtype != np.float64:
-            out += self.matrix @ x
-            return out
-        blocks = list(zip(self.cuts[:-1], self.cuts[1:], strict=True))
-        pending = [_thread_pool().submit(self._block, lo, hi, x, out) for lo, hi in blocks[1:]]
-        self._block(*blocks[0], x, out)
-        for job in pending:
-            job.result()
-        return out
-
-    def _block(self, lo: int, hi: int, x: np.ndarray, out: np.ndarray) -> None:
-        """out[lo:hi] += E[lo:hi]·x (the row pointers of a block index the whole arrays)."""
-        m = self.matrix
-        self._kernel(hi - lo, m.shape[1], m.indptr[lo : hi + 1], m.indices, m.data, x, out[lo:hi])
-
-
-def _product_threads(entries: int) -> int:
-    """Two threads for products of PARALLEL_FROM entries or more where two cores are free."""
-    try:
-        cores = len(os.sched_getaffinity(0))
-    except AttributeError:  # not on Linux
-        cores = os.cpu_count() or 1
-    return 2 if cores >= 2 and entries >= PARALLEL_FROM else 1
-
-
-@functools.cache
-def _csr_kernel():
-    """scipy's row-by-row product y += A·x on CSR arrays, or None where it is not found (the
-    products are then made by ``@`` on one thread)."""
-    try:
-        from scipy.sparse._sparsetools import csr_matvec
-    except ImportError:
-        return None
-    return csr_matvec
-
-
-_pools: dict[int, object] = {}
-_pools_lock = threading.Lock()
-
-
-def _thread_pool():
-    """One worker thread per process (a forked child makes its own: threads do not fork)."""
-    from concurrent.futures import ThreadPoolExecutor
-
-    with _pools_lock:
-        pool = _pools.get(os.getpid())
-        if pool is None:
-            pool = _pools[os.getpid()] = ThreadPoolExecutor(1, thread_name_prefix="fem-product")
-        return pool
-
-
 @dataclass
 class Cost:
     """What a run spent on linear algebra and iterations (the counters of SolverStats)."""
@@ -241,6 +158,18 @@ class LinearAlgebra:
         self._explicit: OrderedDict = OrderedDict()
         self._fixed_parts: OrderedDict = OrderedDict()
         self._loads: OrderedDict = OrderedDict()
+        self._numbered_loads: OrderedDict = OrderedDict()
+
+    @functools.cached_property
+    def numbering(self) -> np.ndarray | None:
+        """The order in which the steps number the unknowns (``numbering[k]`` is the degree of
+        freedom numbered k), or None for the system's own numbering: a numbering that keeps
+        neighbours close (:func:`fem.products.local_numbering`) for Cholesky steps on large
+        meshes without fixed temperatures. Step factors and explicit products are made in it."""
+        system = self.system
+        if self.step_solver != "cholesky" or system.free_dofs.size != system.size:
+            return None
+        return local_numbering(abs(system.capacity) + abs(self.operator(0.0)[0]))
 
     def factor(self, matrix: sp.spmatrix, symmetric: bool = False, solver: str = "superlu"):
         """A factorisation of the free block of ``matrix``: an object with ``solve(rhs)``.
@@ -302,16 +231,17 @@ class LinearAlgebra:
         """The factor of M + scale·A(time) (by ``step_solver``), kept in a small cache (most
         recently used kept)."""
         key = (float(f"{scale:.12e}"), self.system.exchange_key(time))
-        return _remember(
-            self._factors,
-            key,
-            lambda: self.factor(
-                self.system.capacity + scale * self.system.exchange_operator(time),
-                symmetric=True,
-                solver=self.step_solver,
-            ),
-            recency=True,
-        )
+
+        def make():
+            matrix = self.system.capacity + scale * self.system.exchange_operator(time)
+            order = self.numbering
+            if order is None:
+                return self.factor(matrix, symmetric=True, solver=self.step_solver)
+            matrix = sp.csr_matrix(matrix)[order][:, order]
+            factor = self.factor(matrix, symmetric=True, solver=self.step_solver)
+            return PermutedFactor(factor, order)  # .factor solves in the numbering
+
+        return _remember(self._factors, key, make, recency=True)
 
     def shifted_solver(self, shift: float, time: float) -> Callable[[np.ndarray], np.ndarray]:
         """x ↦ (M + shift·A(time))⁻¹x on the free degrees of freedom."""
@@ -327,19 +257,23 @@ class LinearAlgebra:
         return _remember(self._operators, self.system.exchange_key(time), make)
 
     def explicit(self, scale: float, time: float) -> RowBlockProduct:
-        """x ↦ (M − scale·A(time))·x, the explicit part of a theta step, cached beside the
-        factors."""
+        """x ↦ (M − scale·A(time))·x, the explicit part of a theta step, in the steps'
+        :attr:`numbering`, cached beside the factors."""
         key = (float(f"{scale:.12e}"), self.system.exchange_key(time))
-        return _remember(
-            self._explicit,
-            key,
-            lambda: RowBlockProduct(self.system.capacity - scale * self.operator(time)[0]),
-        )
+
+        def make():
+            matrix = sp.csr_matrix(self.system.capacity - scale * self.operator(time)[0])
+            order = self.numbering
+            return RowBlockProduct(matrix if order is None else matrix[order][:, order])
+
+        return _remember(self._explicit, key, make)
 
     @functools.cached_property
     def capacity(self) -> RowBlockProduct:
-        """x ↦ M·x (the history of backward Euler and BDF2 steps)."""
-        return RowBlockProduct(self.system.capacity)
+        """x ↦ M·x in the steps' :attr:`numbering` (the history of backward Euler and BDF2
+        steps)."""
+        matrix, order = sp.csr_matrix(self.system.capacity), self.numbering
+        return RowBlockProduct(matrix if order is None else matrix[order][:, order])
 
     def fixed_parts(self, scale: float, time: float) -> tuple[sp.csr_matrix, sp.csr_matrix]:
         """The step matrix S = M + scale·A(time) split at the fixed degrees of freedom: its
@@ -359,15 +293,28 @@ class LinearAlgebra:
         """b(time) and its sum 1ᵀb (W), cached by the loads' coefficients (do not change the
         array in place)."""
         system = self.system
-        key = tuple(c.supplied(time) for _, c in system.flowing()) + tuple(
-            q(time) for q in system.model.heat_sources.values()
-        )
 
         def make():
             load = system.load(time)
             return load, float(load.sum())
 
-        return _remember(self._loads, key, make)
+        return _remember(self._loads, self._load_key(time), make)
+
+    def numbered_load(self, time: float) -> np.ndarray:
+        """b(time) in the steps' :attr:`numbering` (the same array when there is none)."""
+        order = self.numbering
+        if order is None:
+            return self.load(time)[0]
+        return _remember(
+            self._numbered_loads, self._load_key(time), lambda: self.load(time)[0][order]
+        )
+
+    def _load_key(self, time: float) -> tuple:
+        """What the loads at ``time`` depend on: the conditions' and sources' values."""
+        system = self.system
+        return tuple(c.supplied(time) for _, c in system.flowing()) + tuple(
+            q(time) for q in system.model.heat_sources.values()
+        )
 
 
 def _fixed(system: ConductionSystem) -> np.ndarray:
