@@ -227,3 +227,18 @@ def test_a_local_numbering_brings_neighbours_together():
         assert np.abs(coo.row - coo.col).mean() >= k * k / 4
         assert fem.products.local_numbering(grid) is None  # banded already: |i − j| ≤ k
     assert fem.products.local_numbering(shuffled) is None  # small: the mesh's numbering
+
+
+def test_steps_keep_the_mesh_numbering_with_fixed_temperatures_or_superlu(monkeypatch):
+    """The steps' own numbering is for Cholesky runs where every unknown is free (the fixed
+    temperatures' coupling and reactions are kept in the mesh's numbering)."""
+    number_every_run(monkeypatch)
+    held = LinearAlgebra(assemble(slab_model(fixed=True)), Cost(), "superlu")
+    assert held.numbering is None
+    free = assemble(slab_model(fixed=False))
+    assert LinearAlgebra(free, Cost(), "superlu").numbering is None
+    if cholesky_available():
+        order = LinearAlgebra(free, Cost(), "cholesky").numbering
+        assert order is not None and np.array_equal(np.sort(order), np.arange(free.size))
+        held = LinearAlgebra(assemble(slab_model(fixed=True)), Cost(), "cholesky")
+        assert held.numbering is None
