@@ -19,6 +19,10 @@ of radiation and c(T)). Two ways to factorise them, both reached through
   by minimum degree on AᵀA + A for small problems and by nested dissection of the mesh
   (:mod:`fem.ordering`, computed once per run) from ``NESTED_DISSECTION_FROM`` unknowns.
 
+From 200k unknowns, a Cholesky run without fixed temperatures factorises its step matrices and
+makes its explicit products in a numbering of its own that keeps neighbours close in memory
+(:attr:`LinearAlgebra.numbering`, :mod:`fem.products`).
+
 Newton tangents that k(T) makes unsymmetric keep SuperLU: the symmetric ordering with
 threshold pivoting below that size, COLAMD with partial pivoting above.
 """

@@ -47,7 +47,7 @@ class LinearStep:
         implicit = formula.matrix_scale(step)  # β·h/a0
         inside1 = t1 - 1e-9 * step
         _, column1 = algebra.operator(inside1)
-        load1, total1 = algebra.load(inside1)
+        total1 = algebra.load(inside1)[1]
         factor = algebra.step_factor(implicit, inside1)
         order = algebra.numbering  # None with fixed temperatures
         inside0 = t0 + 1e-9 * step
