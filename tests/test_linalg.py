@@ -33,6 +33,7 @@ from fem import (
     solve,
 )
 from fem.linalg import Cost, LinearAlgebra, cholesky_available, choose_symmetric_solver
+from fem.schedules import PiecewiseLinear
 from geometries import Rectangle
 
 needs_cholesky = pytest.mark.skipif(
@@ -242,3 +243,35 @@ def test_steps_keep_the_mesh_numbering_with_fixed_temperatures_or_superlu(monkey
         assert order is not None and np.array_equal(np.sort(order), np.arange(free.size))
         held = LinearAlgebra(assemble(slab_model(fixed=True)), Cost(), "cholesky")
         assert held.numbering is None
+
+
+@needs_cholesky
+@pytest.mark.parametrize("method", ["crank-nicolson", "bdf2"])
+def test_numbered_steps_with_changing_loads_agree_with_superlu(monkeypatch, method):
+    """Loads that change every step (an ambient ramped up and down) and BDF2's history, in
+    the steps' own numbering with Cholesky, against SuperLU in the mesh's numbering (a
+    different factorisation and order of operations: 1e-10 of the span, as above)."""
+    section = Rectangle(
+        0.04, 0.02, edge_names={"left": "a", "right": "b", "top": "c", "bottom": "c"}
+    ).mesh(size=0.0015)
+    ramp = PiecewiseLinear([0.0, 200.0, 400.0], [20.0, 300.0, 100.0])
+    model = ThermalModel(
+        section,
+        STEEL,
+        boundaries={"a": Convection(800.0, ramp), "b": Convection(500.0, 60.0), "c": Insulated()},
+        initial_temperature=850.0,
+    )
+    runs = {}
+    for solver in ("superlu", "cholesky"):
+        monkeypatch.setattr(fem.linalg, "SYMMETRIC_SOLVER", solver)
+        if solver == "cholesky":
+            number_every_run(monkeypatch)
+        runs[solver] = solve(
+            model, end_time=400.0, time_step=10.0, output_interval=100.0, method=method
+        )
+    a, b = runs["superlu"], runs["cholesky"]
+    span = 850.0 - 20.0
+    assert np.abs(a.final_state - b.final_state).max() <= 1e-10 * span
+    assert np.abs(a.mean - b.mean).max() <= 1e-10 * span
+    flow = np.abs(a.heat_flow["a"]).max()
+    assert np.abs(a.heat_flow["a"] - b.heat_flow["a"]).max() <= 1e-10 * flow
