@@ -50,9 +50,13 @@ def local_numbering(matrix: sp.spmatrix) -> np.ndarray | None:
     order = reverse_cuthill_mckee(matrix, symmetric_mode=True).astype(np.int64)
     rank = np.empty_like(order)
     rank[order] = np.arange(order.size)
-    rows = np.repeat(np.arange(matrix.shape[0]), np.diff(matrix.indptr))
-    before = np.abs(rows - matrix.indices).mean()
-    after = np.abs(rank[rows] - rank[matrix.indices]).mean()
+    # mean |i − j| over 100k entries spread evenly through the matrix (all of them took 0.5 s
+    # at 7M entries; the ratio only has to be told from LOCALITY_GAIN)
+    entries = np.unique(np.linspace(0, matrix.nnz - 1, min(matrix.nnz, 100_000)).astype(int))
+    rows = np.searchsorted(matrix.indptr, entries, side="right") - 1
+    columns = matrix.indices[entries]
+    before = np.abs(rows - columns).mean()
+    after = np.abs(rank[rows] - rank[columns]).mean()
     return order if after * LOCALITY_GAIN <= before else None
 
 
