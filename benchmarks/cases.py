@@ -228,7 +228,11 @@ def task_soakwise(params: dict, reporter) -> dict:
             result["error"] = _square_error(section, solution.output_times, solution.fields)
         if params.get("factor_analysis") and spy.last is not None:
             if spy.last_matrix is not None and spy.kinds.get("cholesky"):
-                result["factor"] = cholesky_size(spy.last_matrix, section.mesh.p)
+                points = section.mesh.p  # in the numbering the steps factorised in
+                if spy.numbering is not None:
+                    points = points[:, spy.numbering]
+                result["factor"] = cholesky_size(spy.last_matrix, points)
+                result["step_numbering"] = "local" if spy.numbering is not None else "mesh"
             else:
                 result["factor"] = factor_size(spy.last)
             result["factor"]["solve_only_seconds"] = time_solves(spy.last)

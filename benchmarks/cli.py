@@ -760,7 +760,15 @@ def main(argv: list[str] | None = None) -> int:
     from .report import build_report, print_report, raw_outcomes, reload_suite
 
     if args.rerender is not None:
-        earlier = json.loads(args.rerender.read_text())
+        try:
+            earlier = json.loads(args.rerender.read_text())
+        except OSError as error:
+            parser().error(f"--rerender: cannot read {args.rerender}: {error.strerror}")
+        except json.JSONDecodeError as error:
+            parser().error(
+                f"--rerender: {args.rerender} line {error.lineno} column {error.colno}: "
+                f"not JSON ({error.msg})"
+            )
         suite = reload_suite(earlier, Outcome)
         source = earlier.get("source") or {**source_state(ROOT), "recorded": "at --rerender"}
         report = build_report(suite.args, suite, earlier["machine"], source, 0.0)

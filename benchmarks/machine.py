@@ -118,7 +118,8 @@ class TimedFactor:
 class FactorSpy:
     """While active, wrap ``scipy.sparse.linalg.splu`` and ``fem.linalg.CholeskyFactor``:
     count and time factorisations and triangular solves, keep the last factor (and, for a
-    Cholesky factor, its matrix), and optionally choose the symmetric solver.
+    Cholesky factor, its matrix and the numbering the steps took, if any), and optionally
+    choose the symmetric solver.
 
     ``symmetric_solver`` (``"cholesky"`` or ``"superlu"``) sets ``fem.linalg.SYMMETRIC_SOLVER``
     for the run: ``"superlu"`` is the what-if of the path used before Cholesky was the default.
@@ -133,6 +134,7 @@ class FactorSpy:
         self.solve_seconds = 0.0
         self.last = None
         self.last_matrix = None  # the matrix of the last Cholesky factor
+        self.numbering = None  # the steps' own numbering of the unknowns, if they took one
         self.kinds: dict[str, int] = {}
         self.calls: list[dict] = []
 
@@ -154,6 +156,7 @@ class FactorSpy:
         import fem.linalg
 
         original, cholesky = spla.splu, fem.linalg.CholeskyFactor
+        numbering = fem.linalg.local_numbering
         chosen = fem.linalg.SYMMETRIC_SOLVER
         spy = self
 
@@ -171,8 +174,13 @@ class FactorSpy:
                 "cholesky", time.perf_counter() - started, factor, {"cholesky": "cholespy"}
             )
 
+        def recorded_numbering(matrix):
+            spy.numbering = numbering(matrix)
+            return spy.numbering
+
         spla.splu = splu
         fem.linalg.CholeskyFactor = timed_cholesky
+        fem.linalg.local_numbering = recorded_numbering
         if self.symmetric_solver is not None:
             fem.linalg.SYMMETRIC_SOLVER = self.symmetric_solver
         try:
@@ -180,6 +188,7 @@ class FactorSpy:
         finally:
             spla.splu = original
             fem.linalg.CholeskyFactor = cholesky
+            fem.linalg.local_numbering = numbering
             fem.linalg.SYMMETRIC_SOLVER = chosen
 
     def summary(self) -> dict:

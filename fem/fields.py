@@ -34,10 +34,10 @@ class FieldSeries:
         return self._folder
 
     def append(self, field: np.ndarray) -> None:
-        field = np.array(field, dtype=float)
         if self._folder is None:
-            self._items.append(field)
+            self._items.append(np.array(field, dtype=float))  # kept: a copy of its own
             return
+        field = np.asarray(field, dtype=float)  # written now: no copy needed
         path = self._folder / f"field_{len(self._items):05d}.npy"
         handle, temporary = tempfile.mkstemp(dir=self._folder, suffix=".npy.part")
         with os.fdopen(handle, "wb") as stream:

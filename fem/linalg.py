@@ -19,6 +19,10 @@ of radiation and c(T)). Two ways to factorise them, both reached through
   by minimum degree on AᵀA + A for small problems and by nested dissection of the mesh
   (:mod:`fem.ordering`, computed once per run) from ``NESTED_DISSECTION_FROM`` unknowns.
 
+From 200k unknowns, a Cholesky run without fixed temperatures factorises its step matrices and
+makes its explicit products in a numbering of its own that keeps neighbours close in memory
+(:attr:`LinearAlgebra.numbering`, :mod:`fem.products`).
+
 Newton tangents that k(T) makes unsymmetric keep SuperLU: the symmetric ordering with
 threshold pivoting below that size, COLAMD with partial pivoting above.
 """
@@ -37,6 +41,7 @@ import scipy.sparse.linalg as spla
 
 from .errors import ModelError
 from .ordering import PermutedFactor, nested_dissection
+from .products import RowBlockProduct, local_numbering
 from .system import ConductionSystem
 
 FACTOR_CACHE = 4
@@ -157,6 +162,18 @@ class LinearAlgebra:
         self._explicit: OrderedDict = OrderedDict()
         self._fixed_parts: OrderedDict = OrderedDict()
         self._loads: OrderedDict = OrderedDict()
+        self._numbered_loads: OrderedDict = OrderedDict()
+
+    @functools.cached_property
+    def numbering(self) -> np.ndarray | None:
+        """The order in which the steps number the unknowns (``numbering[k]`` is the degree of
+        freedom numbered k), or None for the system's own numbering: a numbering that keeps
+        neighbours close (:func:`fem.products.local_numbering`) for Cholesky steps on large
+        meshes without fixed temperatures. Step factors and explicit products are made in it."""
+        system = self.system
+        if self.step_solver != "cholesky" or system.free_dofs.size != system.size:
+            return None
+        return local_numbering(abs(system.capacity) + abs(self.operator(0.0)[0]))
 
     def factor(self, matrix: sp.spmatrix, symmetric: bool = False, solver: str = "superlu"):
         """A factorisation of the free block of ``matrix``: an object with ``solve(rhs)``.
@@ -218,16 +235,17 @@ class LinearAlgebra:
         """The factor of M + scale·A(time) (by ``step_solver``), kept in a small cache (most
         recently used kept)."""
         key = (float(f"{scale:.12e}"), self.system.exchange_key(time))
-        return _remember(
-            self._factors,
-            key,
-            lambda: self.factor(
-                self.system.capacity + scale * self.system.exchange_operator(time),
-                symmetric=True,
-                solver=self.step_solver,
-            ),
-            recency=True,
-        )
+
+        def make():
+            matrix = self.system.capacity + scale * self.system.exchange_operator(time)
+            order = self.numbering
+            if order is None:
+                return self.factor(matrix, symmetric=True, solver=self.step_solver)
+            matrix = sp.csr_matrix(matrix)[order][:, order]
+            factor = self.factor(matrix, symmetric=True, solver=self.step_solver)
+            return PermutedFactor(factor, order)  # .factor solves in the numbering
+
+        return _remember(self._factors, key, make, recency=True)
 
     def shifted_solver(self, shift: float, time: float) -> Callable[[np.ndarray], np.ndarray]:
         """x ↦ (M + shift·A(time))⁻¹x on the free degrees of freedom."""
@@ -242,14 +260,24 @@ class LinearAlgebra:
 
         return _remember(self._operators, self.system.exchange_key(time), make)
 
-    def explicit(self, scale: float, time: float) -> sp.csr_matrix:
-        """M − scale·A(time), the explicit part of a theta step, cached beside the factors."""
+    def explicit(self, scale: float, time: float) -> RowBlockProduct:
+        """x ↦ (M − scale·A(time))·x, the explicit part of a theta step, in the steps'
+        :attr:`numbering`, cached beside the factors."""
         key = (float(f"{scale:.12e}"), self.system.exchange_key(time))
-        return _remember(
-            self._explicit,
-            key,
-            lambda: (self.system.capacity - scale * self.operator(time)[0]).tocsr(),
-        )
+
+        def make():
+            matrix = sp.csr_matrix(self.system.capacity - scale * self.operator(time)[0])
+            order = self.numbering
+            return RowBlockProduct(matrix if order is None else matrix[order][:, order])
+
+        return _remember(self._explicit, key, make)
+
+    @functools.cached_property
+    def capacity(self) -> RowBlockProduct:
+        """x ↦ M·x in the steps' :attr:`numbering` (the history of backward Euler and BDF2
+        steps)."""
+        matrix, order = sp.csr_matrix(self.system.capacity), self.numbering
+        return RowBlockProduct(matrix if order is None else matrix[order][:, order])
 
     def fixed_parts(self, scale: float, time: float) -> tuple[sp.csr_matrix, sp.csr_matrix]:
         """The step matrix S = M + scale·A(time) split at the fixed degrees of freedom: its
@@ -269,15 +297,28 @@ class LinearAlgebra:
         """b(time) and its sum 1ᵀb (W), cached by the loads' coefficients (do not change the
         array in place)."""
         system = self.system
-        key = tuple(c.supplied(time) for _, c in system.flowing()) + tuple(
-            q(time) for q in system.model.heat_sources.values()
-        )
 
         def make():
             load = system.load(time)
             return load, float(load.sum())
 
-        return _remember(self._loads, key, make)
+        return _remember(self._loads, self._load_key(time), make)
+
+    def numbered_load(self, time: float) -> np.ndarray:
+        """b(time) in the steps' :attr:`numbering` (the same array when there is none)."""
+        order = self.numbering
+        if order is None:
+            return self.load(time)[0]
+        return _remember(
+            self._numbered_loads, self._load_key(time), lambda: self.load(time)[0][order]
+        )
+
+    def _load_key(self, time: float) -> tuple:
+        """What the loads at ``time`` depend on: the conditions' and sources' values."""
+        system = self.system
+        return tuple(c.supplied(time) for _, c in system.flowing()) + tuple(
+            q(time) for q in system.model.heat_sources.values()
+        )
 
 
 def _fixed(system: ConductionSystem) -> np.ndarray:

@@ -89,7 +89,7 @@ class HistoryRecorder:
         low, high = int(np.argmin(temperature)), int(np.argmax(temperature))
         spread = float(temperature[high] - temperature[low])
         if spread > self._peak[0]:
-            self._peak = (spread, time, temperature[self._system.vertex_dofs].copy())
+            self._peak = (spread, time, temperature[self._system.vertex_dofs])  # a gather: a copy
         self._rows.append(
             (
                 time,
