@@ -38,6 +38,7 @@ from __future__ import annotations
 import importlib.util
 import json
 import shutil
+import sys
 import tempfile
 import time
 from dataclasses import dataclass
@@ -48,17 +49,35 @@ from .errors import AdvisorError, ResultsFolderExistsError
 from .field_results import FieldResults
 from .folder_lock import results_lock
 from .folder_room import CannotWriteError, check_can_write, error_words
-from .writers.animation import mp4_available, write_animation
-from .writers.field_plots import write_snapshots
+from .lazy_names import lazy_names
 from .writers.field_summary import write_field_summary_json
 from .writers.histories_csv import write_histories_csv
-from .writers.plots import PLOTS, in_plot_order, write_line_plots, written_plots
+from .writers.plot_list import PLOTS, in_plot_order, written_plots
 from .writers.report_content import Picture, build_report
 from .writers.report_html import write_html_report
 from .writers.report_markdown import write_markdown_report
 from .writers.side_by_side import side_by_side
 from .writers.summary_json import write_summary_json
 from .writers.vtk_series import write_vtk_series, write_xdmf_series
+
+# The writers that load matplotlib and Pillow, loaded where the pictures are drawn (a warm
+# writer process, see :func:`advisor.writers.side_by_side.warm_writer`), not here.
+__getattr__, __dir__ = lazy_names(
+    __name__,
+    {
+        "mp4_available": "advisor.writers.animation",
+        "write_animation": "advisor.writers.animation",
+        "write_line_plots": "advisor.writers.plots",
+        "write_snapshots": "advisor.writers.field_plots",
+    },
+)
+
+
+def _writer(name: str):
+    """The writer ``name`` of this module as it is now (loaded on first use; a test may have
+    replaced it)."""
+    return getattr(sys.modules[__name__], name)
+
 
 PLOT_FOLDER = "plots"
 FIELD_FOLDER = "fields"
@@ -186,7 +205,7 @@ def write_folder(
     check_can_write(folder)
     notes: list[str] = []
     mp4 = choices.animation and _optional(
-        choices.mp4, mp4_available(), "animation.mp4", "mp4", notes
+        choices.mp4, _writer("mp4_available")(), "animation.mp4", "mp4", notes
     )
     xdmf = choices.vtk and _optional(
         choices.xdmf, xdmf_available(), "fields/temperature.xdmf", "xdmf", notes
@@ -232,35 +251,33 @@ def staged_write(folder: Path, force: bool, write_into) -> list[Path]:
 def _write_files(
     assessment: Assessment, staging: Path, choices: Choices, mirrors: tuple
 ) -> list[Path]:
-    """Write every file into ``staging``; return their paths relative to it, summary first."""
-    formats = ("png", "svg") if choices.svg else ("png",)
-    plots = staging / PLOT_FOLDER
+    """Write every file into ``staging``; return their paths relative to it, summary first.
 
-    def line_plots() -> list[Path]:
-        return write_line_plots(assessment, plots, formats) if choices.plots else []
+    The pictures (plots and animation, matplotlib and Pillow) are drawn in another process
+    while the histories and field files are written here (:func:`.writers.side_by_side`); the
+    report, which embeds the pictures, comes after both."""
+    plots = staging / PLOT_FOLDER
 
     def the_rest() -> list[Path]:
         written = [staging / "histories.csv"]
         write_histories_csv(assessment, written[0])
-        if choices.plots:
-            written += write_snapshots(assessment, plots / "field_snapshots", formats, mirrors)
-        if choices.animation:
-            written += write_animation(
-                assessment.solution,
-                staging / "animation.gif",
-                staging / "animation.mp4" if choices.mp4 else None,
-                mirrors=mirrors,
-            )
         if choices.vtk:
             written += write_vtk_series(assessment.solution, staging / FIELD_FOLDER)
             if choices.xdmf:
                 written += write_xdmf_series(assessment.solution, staging / FIELD_FOLDER)
         return written
 
-    drawn, rest = side_by_side(line_plots, the_rest)
-    in_plots = [p for p in rest if p.parent == plots]
+    if choices.plots or choices.animation:
+        pictures, rest = side_by_side(
+            (draw_pictures, (assessment, staging, choices, mirrors)), the_rest
+        )
+    else:
+        pictures, rest = [], the_rest()
     written = (
-        rest[:1] + in_plot_order(drawn + in_plots) + [p for p in rest[1:] if p.parent != plots]
+        rest[:1]
+        + in_plot_order([p for p in pictures if p.parent == plots])
+        + [p for p in pictures if p.parent != plots]
+        + rest[1:]
     )
 
     files = [Path("summary.json")]
@@ -278,6 +295,33 @@ def _write_files(
     return files
 
 
+def draw_pictures(
+    assessment: Assessment, staging: Path, choices: Choices, mirrors: tuple
+) -> list[Path]:
+    """The run's pictures in ``staging``: the line plots (in yet another process when a core
+    is free) beside the field snapshots and the animation; return their paths."""
+    formats = ("png", "svg") if choices.svg else ("png",)
+    plots = staging / PLOT_FOLDER
+
+    def pixel_pictures() -> list[Path]:
+        drawn = []
+        if choices.plots:
+            write_snapshots = _writer("write_snapshots")
+            drawn += write_snapshots(assessment, plots / "field_snapshots", formats, mirrors)
+        if choices.animation:
+            film = staging / "animation.mp4" if choices.mp4 else None
+            gif = staging / "animation.gif"
+            drawn += _writer("write_animation")(assessment.solution, gif, film, mirrors=mirrors)
+        return drawn
+
+    if not choices.plots:
+        return pixel_pictures()
+    line_plots, pixels = side_by_side(
+        (_writer("write_line_plots"), (assessment, plots, formats)), pixel_pictures
+    )
+    return line_plots + pixels
+
+
 def _write_field_files(
     results: FieldResults,
     staging: Path,
@@ -293,7 +337,7 @@ def _write_field_files(
     write_histories_csv(results, written[0])
     if animation:
         gif, film = staging / "animation.gif", staging / "animation.mp4" if mp4 else None
-        written += write_animation(results.solution, gif, film, mirrors=mirrors)
+        written += _writer("write_animation")(results.solution, gif, film, mirrors=mirrors)
     if vtk:
         written += write_vtk_series(results.solution, staging / FIELD_FOLDER)
         if xdmf:
