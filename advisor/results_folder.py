@@ -68,6 +68,7 @@ __getattr__, __dir__ = lazy_names(
         "mp4_available": "advisor.writers.animation",
         "write_animation": "advisor.writers.animation",
         "write_line_plots": "advisor.writers.plots",
+        "write_process_plots": "advisor.writers.plots",
         "write_snapshots": "advisor.writers.field_plots",
     },
 )
@@ -298,28 +299,33 @@ def _write_files(
 def draw_pictures(
     assessment: Assessment, staging: Path, choices: Choices, mirrors: tuple
 ) -> list[Path]:
-    """The run's pictures in ``staging``: the line plots (in yet another process when a core
-    is free) beside the field snapshots and the animation; return their paths."""
+    """The run's pictures in ``staging``: the four plots over time (in yet another process
+    when a core is free) beside the process plots, the field snapshots and the animation,
+    two shares of about the same time; return their paths."""
     formats = ("png", "svg") if choices.svg else ("png",)
     plots = staging / PLOT_FOLDER
 
-    def pixel_pictures() -> list[Path]:
+    def the_others() -> list[Path]:
         drawn = []
         if choices.plots:
+            drawn += _writer("write_process_plots")(assessment, plots, formats)
             write_snapshots = _writer("write_snapshots")
             drawn += write_snapshots(assessment, plots / "field_snapshots", formats, mirrors)
         if choices.animation:
             film = staging / "animation.mp4" if choices.mp4 else None
-            gif = staging / "animation.gif"
-            drawn += _writer("write_animation")(assessment.solution, gif, film, mirrors=mirrors)
+            drawn += _animation(assessment.solution, staging / "animation.gif", film, mirrors)
         return drawn
 
     if not choices.plots:
-        return pixel_pictures()
-    line_plots, pixels = side_by_side(
-        (_writer("write_line_plots"), (assessment, plots, formats)), pixel_pictures
-    )
-    return line_plots + pixels
+        return the_others()
+    over_time = (_writer("write_line_plots"), (assessment, plots, formats, False))
+    line_plots, others = side_by_side(over_time, the_others)
+    return line_plots + others
+
+
+def _animation(solution, gif: Path, film: Path | None, mirrors: tuple) -> list[Path]:
+    """The animation as GIF and, when ``film`` is given, MP4; their paths."""
+    return _writer("write_animation")(solution, gif, film, mirrors=mirrors)
 
 
 def _write_field_files(
@@ -333,15 +339,23 @@ def _write_field_files(
 ) -> list[Path]:
     """The files of a run no lumped model applies to: summary, histories, animation, fields
     (no report or plots: they compare the lumped estimate with the field)."""
-    written = [staging / "histories.csv"]
-    write_histories_csv(results, written[0])
-    if animation:
+
+    def the_rest() -> list[Path]:
+        written = [staging / "histories.csv"]
+        write_histories_csv(results, written[0])
+        if vtk:
+            written += write_vtk_series(results.solution, staging / FIELD_FOLDER)
+            if xdmf:
+                written += write_xdmf_series(results.solution, staging / FIELD_FOLDER)
+        return written
+
+    if animation:  # Pillow and matplotlib in the other process, as for a full run
         gif, film = staging / "animation.gif", staging / "animation.mp4" if mp4 else None
-        written += _writer("write_animation")(results.solution, gif, film, mirrors=mirrors)
-    if vtk:
-        written += write_vtk_series(results.solution, staging / FIELD_FOLDER)
-        if xdmf:
-            written += write_xdmf_series(results.solution, staging / FIELD_FOLDER)
+        task = (_animation, (results.solution, gif, film, mirrors))
+        pictures, rest = side_by_side(task, the_rest)
+    else:
+        pictures, rest = [], the_rest()
+    written = rest[:1] + pictures + rest[1:]
     files = [Path("summary.json")] + [p.relative_to(staging) for p in written] + [Path(MARKER)]
     names = [f.as_posix() for f in files]
     write_field_summary_json(results, staging / "summary.json", names)

@@ -250,6 +250,43 @@ def test_writers_side_by_side_give_the_same_files_and_pass_errors_on(tmp_path, m
     assert not (tmp_path / "broken").exists()
 
 
+def test_a_warm_writer_gives_the_same_files_ends_with_its_block_and_passes_errors_on(
+    tmp_path, monkeypatch
+):
+    import multiprocessing
+
+    import advisor.results_folder as results_folder
+    import advisor.writers.side_by_side as writers_together
+    from advisor.pipeline import run_case, write_results
+
+    if not __import__("sys").platform.startswith("linux"):
+        pytest.skip("the writers fork only on Linux; elsewhere they run one after the other")
+    results = run_case(quarter_case("", tmp_path))
+    monkeypatch.setattr(writers_together, "cores_free", lambda: False)
+    alone = write_results(results, tmp_path / "alone", report=True, vtk=False)
+    monkeypatch.setattr(writers_together, "cores_free", lambda: True)
+    with writers_together.warm_writer(writers_together.load_plotting) as warm:
+        assert warm is not None and warm.alive()
+        warmed = write_results(results, tmp_path / "warm", report=True, vtk=False)
+        assert not warm.alive()  # one task each: a second write forks afresh
+        again = write_results(results, tmp_path / "again", report=True, vtk=False)
+    assert multiprocessing.active_children() == []  # the block ended the process
+    assert warmed == alone == again and Path("plots/field_snapshots.png") in warmed
+    for name in alone:  # the same pictures: pixels drawn by the same code in either process
+        if name.suffix == ".png":
+            first = np.asarray(Image.open(tmp_path / "alone" / name))
+            assert np.array_equal(first, np.asarray(Image.open(tmp_path / "warm" / name)))
+
+    def broken(*args, **kwargs):
+        raise RuntimeError("the animation failed")
+
+    monkeypatch.setattr(results_folder, "write_animation", broken)  # before the fork
+    with writers_together.warm_writer(lambda: None), pytest.raises(RuntimeError, match="anim"):
+        write_results(results, tmp_path / "broken", report=False, vtk=False)
+    assert not (tmp_path / "broken").exists()
+    assert multiprocessing.active_children() == []
+
+
 def test_the_outputs_table_switches_plots_svg_and_mp4(tmp_path):
     from advisor.pipeline import run_case, write_results
 

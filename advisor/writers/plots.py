@@ -48,13 +48,25 @@ def write_plots(
 
 
 def write_line_plots(
-    assessment: Assessment, folder: Path, formats: Sequence[str] = ("png",)
+    assessment: Assessment,
+    folder: Path,
+    formats: Sequence[str] = ("png",),
+    process: bool = True,
 ) -> list[Path]:
     """Write the plots matplotlib draws (every plot but the field snapshots, and the process
-    plots); return their paths."""
+    plots unless ``process`` is False); return their paths."""
     paths = []
     for stem, build in BUILDERS.items():
         paths += save_figure(build(assessment), Path(folder) / stem, formats)
+    return paths + (write_process_plots(assessment, folder, formats) if process else [])
+
+
+def write_process_plots(
+    assessment: Assessment, folder: Path, formats: Sequence[str] = ("png",)
+) -> list[Path]:
+    """Write the process plots the assessment has (:func:`.process_plots.process_plots`);
+    return their paths."""
+    paths = []
     for stem, figure in process_plots(assessment).items():
         paths += save_figure(figure, Path(folder) / stem, formats)
     return paths
@@ -66,5 +78,6 @@ __all__ = [
     "in_plot_order",
     "write_line_plots",
     "write_plots",
+    "write_process_plots",
     "written_plots",
 ]
