@@ -65,7 +65,6 @@ from .writers.vtk_series import write_vtk_series, write_xdmf_series
 __getattr__, __dir__ = lazy_names(
     __name__,
     {
-        "mp4_available": "advisor.writers.animation",
         "write_animation": "advisor.writers.animation",
         "write_line_plots": "advisor.writers.plots",
         "write_process_plots": "advisor.writers.plots",
@@ -145,6 +144,12 @@ def _not_replaceable(folder: Path, keep: tuple[Path, ...]) -> str | None:
     return None
 
 
+def mp4_available() -> bool:
+    """True when imageio-ffmpeg (the ``mp4`` extra) is installed, so MP4 can be written
+    (asked here without loading the animation's writer, which loads matplotlib)."""
+    return importlib.util.find_spec("imageio_ffmpeg") is not None
+
+
 def xdmf_available() -> bool:
     """True when h5py (the ``xdmf`` extra) is installed, so an XDMF series can be written."""
     return importlib.util.find_spec("h5py") is not None
@@ -206,7 +211,7 @@ def write_folder(
     check_can_write(folder)
     notes: list[str] = []
     mp4 = choices.animation and _optional(
-        choices.mp4, _writer("mp4_available")(), "animation.mp4", "mp4", notes
+        choices.mp4, mp4_available(), "animation.mp4", "mp4", notes
     )
     xdmf = choices.vtk and _optional(
         choices.xdmf, xdmf_available(), "fields/temperature.xdmf", "xdmf", notes
