@@ -231,10 +231,9 @@ def test_writers_side_by_side_give_the_same_files_and_pass_errors_on(tmp_path, m
     if not __import__("sys").platform.startswith("linux"):
         pytest.skip("the writers fork only on Linux; elsewhere they run one after the other")
     results = run_case(quarter_case("", tmp_path))
-    monkeypatch.setattr(writers_together.os, "getloadavg", lambda: (0.0, 0.0, 0.0))
-    monkeypatch.setattr(writers_together.os, "cpu_count", lambda: 2)
+    monkeypatch.setattr(writers_together, "cores_free", lambda: True)
     forked = write_results(results, tmp_path / "forked", report=False, vtk=False)
-    monkeypatch.setattr(writers_together.os, "getloadavg", lambda: (9.0, 9.0, 9.0))
+    monkeypatch.setattr(writers_together, "cores_free", lambda: False)
     alone = write_results(results, tmp_path / "alone", report=False, vtk=False)
     assert forked == alone and Path("plots/histories.png") in forked
     for name in forked:
@@ -243,11 +242,27 @@ def test_writers_side_by_side_give_the_same_files_and_pass_errors_on(tmp_path, m
     def broken(*args, **kwargs):
         raise RuntimeError("drawing failed")
 
-    monkeypatch.setattr(writers_together.os, "getloadavg", lambda: (0.0, 0.0, 0.0))
+    monkeypatch.setattr(writers_together, "cores_free", lambda: True)
     monkeypatch.setattr(results_folder, "write_line_plots", broken)
     with pytest.raises(RuntimeError, match="drawing failed"):
         write_results(results, tmp_path / "broken", report=False, vtk=False)
     assert not (tmp_path / "broken").exists()
+
+
+@pytest.mark.parametrize(
+    ("load", "others", "free"),
+    [(0.2, 3, True), (1.9, 0, True), (1.9, 1, False), (8.0, 5, False)],
+)
+def test_a_second_process_is_started_only_when_a_core_is_free(load, others, free, monkeypatch):
+    import advisor.writers.side_by_side as writers_together
+
+    monkeypatch.setattr(writers_together.sys, "platform", "linux")
+    monkeypatch.setattr(writers_together.os, "cpu_count", lambda: 2)
+    monkeypatch.setattr(writers_together.os, "getloadavg", lambda: (load, load, load))
+    monkeypatch.setattr(writers_together, "_others_running", lambda: others)
+    assert writers_together.cores_free() is free
+    monkeypatch.setattr(writers_together.os, "cpu_count", lambda: 1)
+    assert writers_together.cores_free() is False  # one core: nothing runs beside
 
 
 def test_a_warm_writer_gives_the_same_files_ends_with_its_block_and_passes_errors_on(

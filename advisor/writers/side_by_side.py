@@ -24,12 +24,24 @@ _warm: WarmWriter | None = None  # the process :func:`warm_writer` started, whil
 
 def cores_free() -> bool:
     """True when a second process can run beside this one: on Linux (macOS system libraries
-    are not safe to use in a forked child) with a load average, this run's own included,
-    below the cores less half a core (a second process then only takes turns with this one,
-    measured 10–15 % slower at a load of 8 on two cores)."""
+    are not safe to use in a forked child) with two cores or more, and either a load average
+    below the cores less half a core (above it a second process only takes turns with this
+    one, measured 10–15 % slower at a load of 8 on two cores) or no other process running
+    now (the load average still counts the runs just before this one)."""
     cores = os.cpu_count() or 1
-    load = os.getloadavg()[0] if hasattr(os, "getloadavg") else float(cores)
-    return sys.platform.startswith("linux") and load <= cores - 0.5
+    if not sys.platform.startswith("linux") or cores < 2:
+        return False
+    return os.getloadavg()[0] <= cores - 0.5 or _others_running() < cores - 1
+
+
+def _others_running() -> int:
+    """Processes running or ready to run now besides this one (from /proc/loadavg)."""
+    try:
+        with open("/proc/loadavg", encoding="ascii") as status:
+            running = int(status.read().split()[3].split("/")[0])
+    except (OSError, ValueError, IndexError):
+        return os.cpu_count() or 1
+    return running - 1
 
 
 def side_by_side(first: tuple[Callable, tuple], second: Callable[[], object]) -> tuple:
