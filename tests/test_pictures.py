@@ -302,6 +302,36 @@ def test_a_warm_writer_gives_the_same_files_ends_with_its_block_and_passes_error
     assert multiprocessing.active_children() == []
 
 
+def test_a_run_with_a_warm_writer_loads_no_plotting_in_its_own_process(tmp_path):
+    import subprocess
+    import sys
+
+    if not sys.platform.startswith("linux"):
+        pytest.skip("the writers fork only on Linux; elsewhere they run one after the other")
+    case = tmp_path / "quarter.toml"
+    case.write_text(textwrap.dedent(QUARTER).format(mirrors=""), encoding="utf-8")
+    out = tmp_path / "out"
+    script = textwrap.dedent(
+        f"""
+        import sys
+        import advisor.writers.side_by_side as writers
+        writers.cores_free = lambda: True  # the writer process whatever the machine's load
+        from advisor.cli import main
+        status = main(["-q", "run", {str(case)!r}, "--out", {str(out)!r}])
+        print(status, *(name in sys.modules for name in ("matplotlib", "PIL")))
+        """
+    )
+    root = Path(__file__).resolve().parent.parent  # this checkout, not an installed copy
+    done = subprocess.run(
+        [sys.executable, "-c", script], cwd=root, capture_output=True, text=True, timeout=300
+    )
+    assert done.stdout.split() == ["0", "False", "False"], done.stderr[-2000:]
+    for name in ("plots/histories.png", "plots/field_snapshots.png", "animation.gif"):
+        assert (out / name).stat().st_size > 0
+    report = (out / "report.html").read_text(encoding="utf-8")
+    assert report.count("data:image/png;base64,") >= 5  # the plots embedded after drawing
+
+
 def test_the_outputs_table_switches_plots_svg_and_mp4(tmp_path):
     from advisor.pipeline import run_case, write_results
 
