@@ -302,6 +302,23 @@ def test_a_warm_writer_gives_the_same_files_ends_with_its_block_and_passes_error
     assert multiprocessing.active_children() == []
 
 
+def test_a_writer_process_that_has_gone_leaves_its_task_to_run_here():
+    import sys
+
+    import advisor.writers.side_by_side as writers_together
+
+    if not sys.platform.startswith("linux"):
+        pytest.skip("the writers fork only on Linux; elsewhere they run one after the other")
+    writer = writers_together.WarmWriter(warm=None)
+    writer._process.terminate()  # as if it had been killed while loading
+    writer._process.join()
+    try:
+        there, here = writer.run(sum, ([1, 2, 3],), lambda: "here")
+    finally:
+        writer.close()
+    assert (there, here) == (6, "here")
+
+
 def test_a_run_with_a_warm_writer_loads_no_plotting_in_its_own_process(tmp_path):
     import subprocess
     import sys

@@ -1,10 +1,10 @@
-"""Two writers at once: the matplotlib plots in a forked process while the pixel pictures
-and field files are written here (the solve is over, so they share the cores).
+"""Two writers at once: the pictures (matplotlib and Pillow) in a forked process while the
+histories and field files are written here (the solve is over, so they share the cores).
 
 A command can start that process before it reads the case (:func:`warm_writer`): it loads
-matplotlib, Pillow and the fonts on the second core while this process loads, meshes and
-solves, and draws the plots when handed them, so neither the imports nor a fork after the
-solve lie on the run's path.
+matplotlib, Pillow, the picture writers and the fonts on the second core while this process
+reads, meshes and solves, and draws the pictures when handed them, so neither those imports
+nor a fork after the solve lie on the run's path, and this process never loads matplotlib.
 """
 
 from __future__ import annotations
@@ -106,34 +106,41 @@ class WarmWriter:
         return not self._used and self._process.is_alive()
 
     def run(self, function: Callable, arguments: tuple, here: Callable[[], object]) -> tuple:
-        """``function(*arguments)`` there while ``here()`` runs here; both results."""
+        """``function(*arguments)`` there while ``here()`` runs here; both results. A
+        process that can no longer be handed the task (it ended) leaves it to run here."""
         self._used = True
-        sent: list[BaseException] = []
+        if self._given:  # the process has it already and is drawing
+            mine = here()
+            return self._answer(), mine
+        refused: list[BaseException] = []
 
-        def send() -> None:  # in a thread: the process may still be importing
+        def send() -> None:  # in a thread: the process may still be loading
             try:
                 self._connection.send((function, arguments))
-            except Exception as error:  # noqa: BLE001 - told after here() below
-                sent.append(error)
+            except Exception as error:  # noqa: BLE001 - gone, or a task that does not pickle
+                refused.append(error)
 
         sender = threading.Thread(target=send, daemon=True)
-        if not self._given:
-            sender.start()
+        sender.start()
         mine = here()
-        if not self._given:
-            sender.join()
-        if sent:
-            raise AdvisorError(f"the plots could not be handed to their writer: {sent[0]!r}")
+        sender.join()
+        if refused:
+            return function(*arguments), mine
+        return self._answer(), mine
+
+    def _answer(self):
+        """The task's result from the process, or its error raised here."""
         try:
             kind, value = self._connection.recv()
         except EOFError:
             self._process.join()
             raise AdvisorError(
-                f"the plot writer stopped without an answer (exit code {self._process.exitcode})"
+                "the picture writer stopped without an answer "
+                f"(exit code {self._process.exitcode})"
             ) from None
         if kind == "error":
             raise value
-        return value, mine
+        return value
 
     def close(self) -> None:
         """End the process (at once if it is still waiting or drawing) and free the pipe."""
@@ -166,7 +173,7 @@ def _serve(warm, task, connection, theirs) -> None:
         try:
             connection.send(("error", error))
         except Exception:  # noqa: BLE001 - an exception that does not pickle
-            connection.send(("error", AdvisorError(f"the plot writer failed: {error!r}")))
+            connection.send(("error", AdvisorError(f"the picture writer failed: {error!r}")))
     finally:
         connection.close()
 
