@@ -38,7 +38,6 @@ from __future__ import annotations
 import importlib.util
 import json
 import shutil
-import sys
 import tempfile
 import time
 from dataclasses import dataclass
@@ -49,9 +48,9 @@ from .errors import AdvisorError, ResultsFolderExistsError
 from .field_results import FieldResults
 from .folder_lock import results_lock
 from .folder_room import CannotWriteError, check_can_write, error_words
-from .lazy_names import lazy_names
 from .writers.field_summary import write_field_summary_json
 from .writers.histories_csv import write_histories_csv
+from .writers.pictures import draw_animation, draw_pictures
 from .writers.plot_list import PLOTS, in_plot_order, written_plots
 from .writers.report_content import Picture, build_report
 from .writers.report_html import write_html_report
@@ -59,25 +58,6 @@ from .writers.report_markdown import write_markdown_report
 from .writers.side_by_side import side_by_side
 from .writers.summary_json import write_summary_json
 from .writers.vtk_series import write_vtk_series, write_xdmf_series
-
-# The writers that load matplotlib and Pillow, loaded where the pictures are drawn (a warm
-# writer process, see :func:`advisor.writers.side_by_side.warm_writer`), not here.
-__getattr__, __dir__ = lazy_names(
-    __name__,
-    {
-        "write_animation": "advisor.writers.animation",
-        "write_line_plots": "advisor.writers.plots",
-        "write_process_plots": "advisor.writers.plots",
-        "write_snapshots": "advisor.writers.field_plots",
-    },
-)
-
-
-def _writer(name: str):
-    """The writer ``name`` of this module as it is now (loaded on first use; a test may have
-    replaced it)."""
-    return getattr(sys.modules[__name__], name)
-
 
 PLOT_FOLDER = "plots"
 FIELD_FOLDER = "fields"
@@ -274,9 +254,8 @@ def _write_files(
         return written
 
     if choices.plots or choices.animation:
-        pictures, rest = side_by_side(
-            (draw_pictures, (assessment, staging, choices, mirrors)), the_rest
-        )
+        drawing = (assessment, staging, plots, choices, mirrors)
+        pictures, rest = side_by_side((draw_pictures, drawing), the_rest)
     else:
         pictures, rest = [], the_rest()
     written = (
@@ -299,38 +278,6 @@ def _write_files(
     write_summary_json(assessment, staging / "summary.json", names)
     _write_marker(staging / MARKER, names)
     return files
-
-
-def draw_pictures(
-    assessment: Assessment, staging: Path, choices: Choices, mirrors: tuple
-) -> list[Path]:
-    """The run's pictures in ``staging``: the four plots over time (in yet another process
-    when a core is free) beside the process plots, the field snapshots and the animation,
-    two shares of about the same time; return their paths."""
-    formats = ("png", "svg") if choices.svg else ("png",)
-    plots = staging / PLOT_FOLDER
-
-    def the_others() -> list[Path]:
-        drawn = []
-        if choices.plots:
-            drawn += _writer("write_process_plots")(assessment, plots, formats)
-            write_snapshots = _writer("write_snapshots")
-            drawn += write_snapshots(assessment, plots / "field_snapshots", formats, mirrors)
-        if choices.animation:
-            film = staging / "animation.mp4" if choices.mp4 else None
-            drawn += _animation(assessment.solution, staging / "animation.gif", film, mirrors)
-        return drawn
-
-    if not choices.plots:
-        return the_others()
-    over_time = (_writer("write_line_plots"), (assessment, plots, formats, False))
-    line_plots, others = side_by_side(over_time, the_others)
-    return line_plots + others
-
-
-def _animation(solution, gif: Path, film: Path | None, mirrors: tuple) -> list[Path]:
-    """The animation as GIF and, when ``film`` is given, MP4; their paths."""
-    return _writer("write_animation")(solution, gif, film, mirrors=mirrors)
 
 
 def _write_field_files(
@@ -356,7 +303,7 @@ def _write_field_files(
 
     if animation:  # Pillow and matplotlib in the other process, as for a full run
         gif, film = staging / "animation.gif", staging / "animation.mp4" if mp4 else None
-        task = (_animation, (results.solution, gif, film, mirrors))
+        task = (draw_animation, (results.solution, gif, film, mirrors))
         pictures, rest = side_by_side(task, the_rest)
     else:
         pictures, rest = [], the_rest()

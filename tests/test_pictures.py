@@ -224,7 +224,7 @@ def test_an_axisymmetric_section_takes_only_lines_across_its_axis(tmp_path):
 
 
 def test_writers_side_by_side_give_the_same_files_and_pass_errors_on(tmp_path, monkeypatch):
-    import advisor.results_folder as results_folder
+    import advisor.writers.pictures as pictures
     import advisor.writers.side_by_side as writers_together
     from advisor.pipeline import run_case, write_results
 
@@ -243,7 +243,7 @@ def test_writers_side_by_side_give_the_same_files_and_pass_errors_on(tmp_path, m
         raise RuntimeError("drawing failed")
 
     monkeypatch.setattr(writers_together, "cores_free", lambda: True)
-    monkeypatch.setattr(results_folder, "write_line_plots", broken)
+    monkeypatch.setattr(pictures, "write_line_plots", broken)
     with pytest.raises(RuntimeError, match="drawing failed"):
         write_results(results, tmp_path / "broken", report=False, vtk=False)
     assert not (tmp_path / "broken").exists()
@@ -270,7 +270,7 @@ def test_a_warm_writer_gives_the_same_files_ends_with_its_block_and_passes_error
 ):
     import multiprocessing
 
-    import advisor.results_folder as results_folder
+    import advisor.writers.pictures as pictures
     import advisor.writers.side_by_side as writers_together
     from advisor.pipeline import run_case, write_results
 
@@ -295,7 +295,7 @@ def test_a_warm_writer_gives_the_same_files_ends_with_its_block_and_passes_error
     def broken(*args, **kwargs):
         raise RuntimeError("the animation failed")
 
-    monkeypatch.setattr(results_folder, "write_animation", broken)  # before the fork
+    monkeypatch.setattr(pictures, "write_animation", broken)  # before the fork
     with writers_together.warm_writer(lambda: None), pytest.raises(RuntimeError, match="anim"):
         write_results(results, tmp_path / "broken", report=False, vtk=False)
     assert not (tmp_path / "broken").exists()

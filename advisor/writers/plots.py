@@ -52,12 +52,14 @@ def write_line_plots(
     folder: Path,
     formats: Sequence[str] = ("png",),
     process: bool = True,
+    stems: Sequence[str] | None = None,
 ) -> list[Path]:
-    """Write the plots matplotlib draws (every plot but the field snapshots, and the process
-    plots unless ``process`` is False); return their paths."""
+    """Write the plots matplotlib draws (every plot of :data:`BUILDERS`, or those of
+    ``stems``, and the process plots unless ``process`` is False); return their paths."""
     paths = []
     for stem, build in BUILDERS.items():
-        paths += save_figure(build(assessment), Path(folder) / stem, formats)
+        if stems is None or stem in stems:
+            paths += save_figure(build(assessment), Path(folder) / stem, formats)
     return paths + (write_process_plots(assessment, folder, formats) if process else [])
 
 

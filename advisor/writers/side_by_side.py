@@ -184,11 +184,12 @@ def load_plotting() -> None:
     with text saved as PNG in memory)."""
     import io
 
-    from .. import results_folder
+    from .. import results_folder  # noqa: F401 - loaded now, unpickled with the pictures' task
+    from . import pictures
     from .plot_style import new_figure
 
     for name in ("write_line_plots", "write_snapshots", "write_animation"):
-        getattr(results_folder, name)  # loaded now, used when handed the pictures
+        getattr(pictures, name)  # loaded now, used when handed the pictures
 
     figure = new_figure(2.0, 1.5)
     axes = figure.subplots()
