@@ -239,19 +239,14 @@ def _write_files(
 ) -> list[Path]:
     """Write every file into ``staging``; return their paths relative to it, summary first.
 
-    The pictures (plots and animation, matplotlib and Pillow) are drawn in another process
-    while the histories and field files are written here (:func:`.writers.side_by_side`); the
-    report, which embeds the pictures, comes after both."""
+    The pictures (plots and animation, matplotlib and Pillow) are drawn in other processes
+    while the histories and field files are written here
+    (:func:`.writers.side_by_side.side_by_side`); the report, which embeds the pictures,
+    comes after both."""
     plots = staging / PLOT_FOLDER
 
     def the_rest() -> list[Path]:
-        written = [staging / "histories.csv"]
-        write_histories_csv(assessment, written[0])
-        if choices.vtk:
-            written += write_vtk_series(assessment.solution, staging / FIELD_FOLDER)
-            if choices.xdmf:
-                written += write_xdmf_series(assessment.solution, staging / FIELD_FOLDER)
-        return written
+        return _histories_and_fields(assessment, staging, choices.vtk, choices.xdmf)
 
     if choices.plots or choices.animation:
         drawing = (assessment, staging, plots, choices, mirrors)
@@ -293,13 +288,7 @@ def _write_field_files(
     (no report or plots: they compare the lumped estimate with the field)."""
 
     def the_rest() -> list[Path]:
-        written = [staging / "histories.csv"]
-        write_histories_csv(results, written[0])
-        if vtk:
-            written += write_vtk_series(results.solution, staging / FIELD_FOLDER)
-            if xdmf:
-                written += write_xdmf_series(results.solution, staging / FIELD_FOLDER)
-        return written
+        return _histories_and_fields(results, staging, vtk, xdmf)
 
     if animation:  # Pillow and matplotlib in the other process, as for a full run
         gif, film = staging / "animation.gif", staging / "animation.mp4" if mp4 else None
@@ -313,6 +302,18 @@ def _write_field_files(
     write_field_summary_json(results, staging / "summary.json", names)
     _write_marker(staging / MARKER, names)
     return files
+
+
+def _histories_and_fields(results, staging: Path, vtk: bool, xdmf: bool) -> list[Path]:
+    """histories.csv and, when asked, the field series (VTK, XDMF) of ``results`` (an
+    assessment or field results) in ``staging``; their paths, histories first."""
+    written = [staging / "histories.csv"]
+    write_histories_csv(results, written[0])
+    if vtk:
+        written += write_vtk_series(results.solution, staging / FIELD_FOLDER)
+        if xdmf:
+            written += write_xdmf_series(results.solution, staging / FIELD_FOLDER)
+    return written
 
 
 def _write_marker(path: Path, names: list[str]) -> None:
