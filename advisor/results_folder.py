@@ -48,11 +48,10 @@ from .errors import AdvisorError, ResultsFolderExistsError
 from .field_results import FieldResults
 from .folder_lock import results_lock
 from .folder_room import CannotWriteError, check_can_write, error_words
-from .writers.animation import mp4_available, write_animation
-from .writers.field_plots import write_snapshots
 from .writers.field_summary import write_field_summary_json
 from .writers.histories_csv import write_histories_csv
-from .writers.plots import PLOTS, in_plot_order, write_line_plots, written_plots
+from .writers.pictures import draw_animation, draw_pictures
+from .writers.plot_list import PLOTS, in_plot_order, written_plots
 from .writers.report_content import Picture, build_report
 from .writers.report_html import write_html_report
 from .writers.report_markdown import write_markdown_report
@@ -123,6 +122,12 @@ def _not_replaceable(folder: Path, keep: tuple[Path, ...]) -> str | None:
         if path.is_dir() and not any(f.startswith(name + "/") for f in listed):
             return f"it holds the folder {name!r}, which soakwise did not write"
     return None
+
+
+def mp4_available() -> bool:
+    """True when imageio-ffmpeg (the ``mp4`` extra) is installed, so MP4 can be written
+    (asked here without loading the animation's writer, which loads matplotlib)."""
+    return importlib.util.find_spec("imageio_ffmpeg") is not None
 
 
 def xdmf_available() -> bool:
@@ -232,35 +237,27 @@ def staged_write(folder: Path, force: bool, write_into) -> list[Path]:
 def _write_files(
     assessment: Assessment, staging: Path, choices: Choices, mirrors: tuple
 ) -> list[Path]:
-    """Write every file into ``staging``; return their paths relative to it, summary first."""
-    formats = ("png", "svg") if choices.svg else ("png",)
+    """Write every file into ``staging``; return their paths relative to it, summary first.
+
+    The pictures (plots and animation, matplotlib and Pillow) are drawn in other processes
+    while the histories and field files are written here
+    (:func:`.writers.side_by_side.side_by_side`); the report, which embeds the pictures,
+    comes after both."""
     plots = staging / PLOT_FOLDER
 
-    def line_plots() -> list[Path]:
-        return write_line_plots(assessment, plots, formats) if choices.plots else []
-
     def the_rest() -> list[Path]:
-        written = [staging / "histories.csv"]
-        write_histories_csv(assessment, written[0])
-        if choices.plots:
-            written += write_snapshots(assessment, plots / "field_snapshots", formats, mirrors)
-        if choices.animation:
-            written += write_animation(
-                assessment.solution,
-                staging / "animation.gif",
-                staging / "animation.mp4" if choices.mp4 else None,
-                mirrors=mirrors,
-            )
-        if choices.vtk:
-            written += write_vtk_series(assessment.solution, staging / FIELD_FOLDER)
-            if choices.xdmf:
-                written += write_xdmf_series(assessment.solution, staging / FIELD_FOLDER)
-        return written
+        return _histories_and_fields(assessment, staging, choices.vtk, choices.xdmf)
 
-    drawn, rest = side_by_side(line_plots, the_rest)
-    in_plots = [p for p in rest if p.parent == plots]
+    if choices.plots or choices.animation:
+        drawing = (assessment, staging, plots, choices, mirrors)
+        pictures, rest = side_by_side((draw_pictures, drawing), the_rest)
+    else:
+        pictures, rest = [], the_rest()
     written = (
-        rest[:1] + in_plot_order(drawn + in_plots) + [p for p in rest[1:] if p.parent != plots]
+        rest[:1]
+        + in_plot_order([p for p in pictures if p.parent == plots])
+        + [p for p in pictures if p.parent != plots]
+        + rest[1:]
     )
 
     files = [Path("summary.json")]
@@ -289,20 +286,34 @@ def _write_field_files(
 ) -> list[Path]:
     """The files of a run no lumped model applies to: summary, histories, animation, fields
     (no report or plots: they compare the lumped estimate with the field)."""
-    written = [staging / "histories.csv"]
-    write_histories_csv(results, written[0])
-    if animation:
+
+    def the_rest() -> list[Path]:
+        return _histories_and_fields(results, staging, vtk, xdmf)
+
+    if animation:  # Pillow and matplotlib in the other process, as for a full run
         gif, film = staging / "animation.gif", staging / "animation.mp4" if mp4 else None
-        written += write_animation(results.solution, gif, film, mirrors=mirrors)
-    if vtk:
-        written += write_vtk_series(results.solution, staging / FIELD_FOLDER)
-        if xdmf:
-            written += write_xdmf_series(results.solution, staging / FIELD_FOLDER)
+        task = (draw_animation, (results.solution, gif, film, mirrors))
+        pictures, rest = side_by_side(task, the_rest)
+    else:
+        pictures, rest = [], the_rest()
+    written = rest[:1] + pictures + rest[1:]
     files = [Path("summary.json")] + [p.relative_to(staging) for p in written] + [Path(MARKER)]
     names = [f.as_posix() for f in files]
     write_field_summary_json(results, staging / "summary.json", names)
     _write_marker(staging / MARKER, names)
     return files
+
+
+def _histories_and_fields(results, staging: Path, vtk: bool, xdmf: bool) -> list[Path]:
+    """histories.csv and, when asked, the field series (VTK, XDMF) of ``results`` (an
+    assessment or field results) in ``staging``; their paths, histories first."""
+    written = [staging / "histories.csv"]
+    write_histories_csv(results, written[0])
+    if vtk:
+        written += write_vtk_series(results.solution, staging / FIELD_FOLDER)
+        if xdmf:
+            written += write_xdmf_series(results.solution, staging / FIELD_FOLDER)
+    return written
 
 
 def _write_marker(path: Path, names: list[str]) -> None:

@@ -18,6 +18,7 @@ import pytest
 import advisor.folder_room as folder_room
 import advisor.pipeline as pipeline
 import advisor.results_folder as results_folder
+import advisor.writers.pictures as pictures
 from advisor import assess, write_results
 from advisor.casefile.starters import starter_text
 from advisor.cli import EXIT_FAILED, EXIT_OK, main
@@ -75,7 +76,8 @@ WRITERS = {
 def test_a_full_disk_in_any_writer_leaves_nothing(writer, assessment, tmp_path, monkeypatch):
     if writer == "write_xdmf_series" and not results_folder.xdmf_available():
         pytest.skip("h5py (the xdmf extra) is not installed: the XDMF writer never runs")
-    monkeypatch.setattr(results_folder, writer, no_space)
+    drawn = writer in ("write_line_plots", "write_snapshots", "write_animation")
+    monkeypatch.setattr(pictures if drawn else results_folder, writer, no_space)
     outputs = {"animation": False, "report": False, "vtk": False, **WRITERS[writer]}
     with pytest.raises(CannotWriteError, match="no space left on the device"):
         write_results(assessment, tmp_path / "out", mp4=False, **outputs)

@@ -242,3 +242,29 @@ def test_no_triangles_is_an_error():
         section_mesh_from_arrays(
             SQUARE_POINTS, np.empty((0, 3), int), {"all": np.array([[0, 1]])}, {}
         )
+
+
+@pytest.mark.skipif(not hasattr(__import__("signal"), "SIGPIPE"), reason="no SIGPIPE here")
+def test_after_meshing_a_closed_pipe_is_an_error_not_the_end_of_the_process():
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    # gmsh's start sets SIGPIPE back to ending the process; the session puts Python's
+    # handling back, under which a write to a closed pipe raises BrokenPipeError
+    script = (
+        "import os\n"
+        "from geometries import Rectangle\n"
+        "Rectangle(0.02, 0.01).mesh(0.005)\n"
+        "reading, writing = os.pipe()\n"
+        "os.close(reading)\n"
+        "try:\n"
+        "    os.write(writing, b'x')\n"
+        "except BrokenPipeError:\n"
+        "    print('refused')\n"
+    )
+    root = Path(__file__).resolve().parent.parent  # this checkout, not an installed copy
+    done = subprocess.run(
+        [sys.executable, "-c", script], cwd=root, capture_output=True, text=True, timeout=120
+    )
+    assert (done.returncode, done.stdout.strip()) == (0, "refused"), done.stderr[-2000:]

@@ -224,17 +224,16 @@ def test_an_axisymmetric_section_takes_only_lines_across_its_axis(tmp_path):
 
 
 def test_writers_side_by_side_give_the_same_files_and_pass_errors_on(tmp_path, monkeypatch):
-    import advisor.results_folder as results_folder
+    import advisor.writers.pictures as pictures
     import advisor.writers.side_by_side as writers_together
     from advisor.pipeline import run_case, write_results
 
     if not __import__("sys").platform.startswith("linux"):
         pytest.skip("the writers fork only on Linux; elsewhere they run one after the other")
     results = run_case(quarter_case("", tmp_path))
-    monkeypatch.setattr(writers_together.os, "getloadavg", lambda: (0.0, 0.0, 0.0))
-    monkeypatch.setattr(writers_together.os, "cpu_count", lambda: 2)
+    monkeypatch.setattr(writers_together, "cores_free", lambda: True)
     forked = write_results(results, tmp_path / "forked", report=False, vtk=False)
-    monkeypatch.setattr(writers_together.os, "getloadavg", lambda: (9.0, 9.0, 9.0))
+    monkeypatch.setattr(writers_together, "cores_free", lambda: False)
     alone = write_results(results, tmp_path / "alone", report=False, vtk=False)
     assert forked == alone and Path("plots/histories.png") in forked
     for name in forked:
@@ -243,11 +242,111 @@ def test_writers_side_by_side_give_the_same_files_and_pass_errors_on(tmp_path, m
     def broken(*args, **kwargs):
         raise RuntimeError("drawing failed")
 
-    monkeypatch.setattr(writers_together.os, "getloadavg", lambda: (0.0, 0.0, 0.0))
-    monkeypatch.setattr(results_folder, "write_line_plots", broken)
+    monkeypatch.setattr(writers_together, "cores_free", lambda: True)
+    monkeypatch.setattr(pictures, "write_line_plots", broken)
     with pytest.raises(RuntimeError, match="drawing failed"):
         write_results(results, tmp_path / "broken", report=False, vtk=False)
     assert not (tmp_path / "broken").exists()
+
+
+@pytest.mark.parametrize(
+    ("load", "others", "free"),
+    [(0.2, 3, True), (1.9, 0, True), (1.9, 1, False), (8.0, 5, False)],
+)
+def test_a_second_process_is_started_only_when_a_core_is_free(load, others, free, monkeypatch):
+    import advisor.writers.side_by_side as writers_together
+
+    monkeypatch.setattr(writers_together.sys, "platform", "linux")
+    monkeypatch.setattr(writers_together.os, "cpu_count", lambda: 2)
+    monkeypatch.setattr(writers_together.os, "getloadavg", lambda: (load, load, load))
+    monkeypatch.setattr(writers_together, "_others_running", lambda: others)
+    assert writers_together.cores_free() is free
+    monkeypatch.setattr(writers_together.os, "cpu_count", lambda: 1)
+    assert writers_together.cores_free() is False  # one core: nothing runs beside
+
+
+def test_a_warm_writer_gives_the_same_files_ends_with_its_block_and_passes_errors_on(
+    tmp_path, monkeypatch
+):
+    import multiprocessing
+
+    import advisor.writers.pictures as pictures
+    import advisor.writers.side_by_side as writers_together
+    from advisor.pipeline import run_case, write_results
+
+    if not __import__("sys").platform.startswith("linux"):
+        pytest.skip("the writers fork only on Linux; elsewhere they run one after the other")
+    results = run_case(quarter_case("", tmp_path))
+    monkeypatch.setattr(writers_together, "cores_free", lambda: False)
+    alone = write_results(results, tmp_path / "alone", report=True, vtk=False)
+    monkeypatch.setattr(writers_together, "cores_free", lambda: True)
+    with writers_together.warm_writer(writers_together.load_plotting) as warm:
+        assert warm is not None and warm.alive()
+        warmed = write_results(results, tmp_path / "warm", report=True, vtk=False)
+        assert not warm.alive()  # one task each: a second write forks afresh
+        again = write_results(results, tmp_path / "again", report=True, vtk=False)
+    assert multiprocessing.active_children() == []  # the block ended the process
+    assert warmed == alone == again and Path("plots/field_snapshots.png") in warmed
+    for name in alone:  # the same pictures: pixels drawn by the same code in either process
+        if name.suffix == ".png":
+            first = np.asarray(Image.open(tmp_path / "alone" / name))
+            assert np.array_equal(first, np.asarray(Image.open(tmp_path / "warm" / name)))
+
+    def broken(*args, **kwargs):
+        raise RuntimeError("the animation failed")
+
+    monkeypatch.setattr(pictures, "write_animation", broken)  # before the fork
+    with writers_together.warm_writer(lambda: None), pytest.raises(RuntimeError, match="anim"):
+        write_results(results, tmp_path / "broken", report=False, vtk=False)
+    assert not (tmp_path / "broken").exists()
+    assert multiprocessing.active_children() == []
+
+
+def test_a_writer_process_that_has_gone_leaves_its_task_to_run_here():
+    import sys
+
+    import advisor.writers.side_by_side as writers_together
+
+    if not sys.platform.startswith("linux"):
+        pytest.skip("the writers fork only on Linux; elsewhere they run one after the other")
+    writer = writers_together.WarmWriter(warm=None)
+    writer._process.terminate()  # as if it had been killed while loading
+    writer._process.join()
+    try:
+        there, here = writer.run(sum, ([1, 2, 3],), lambda: "here")
+    finally:
+        writer.close()
+    assert (there, here) == (6, "here")
+
+
+def test_a_run_with_a_warm_writer_loads_no_plotting_in_its_own_process(tmp_path):
+    import subprocess
+    import sys
+
+    if not sys.platform.startswith("linux"):
+        pytest.skip("the writers fork only on Linux; elsewhere they run one after the other")
+    case = tmp_path / "quarter.toml"
+    case.write_text(textwrap.dedent(QUARTER).format(mirrors=""), encoding="utf-8")
+    out = tmp_path / "out"
+    script = textwrap.dedent(
+        f"""
+        import sys
+        import advisor.writers.side_by_side as writers
+        writers.cores_free = lambda: True  # the writer process whatever the machine's load
+        from advisor.cli import main
+        status = main(["-q", "run", {str(case)!r}, "--out", {str(out)!r}])
+        print(status, *(name in sys.modules for name in ("matplotlib", "PIL")))
+        """
+    )
+    root = Path(__file__).resolve().parent.parent  # this checkout, not an installed copy
+    done = subprocess.run(
+        [sys.executable, "-c", script], cwd=root, capture_output=True, text=True, timeout=300
+    )
+    assert done.stdout.split() == ["0", "False", "False"], done.stderr[-2000:]
+    for name in ("plots/histories.png", "plots/field_snapshots.png", "animation.gif"):
+        assert (out / name).stat().st_size > 0
+    report = (out / "report.html").read_text(encoding="utf-8")
+    assert report.count("data:image/png;base64,") >= 5  # the plots embedded after drawing
 
 
 def test_the_outputs_table_switches_plots_svg_and_mp4(tmp_path):

@@ -35,11 +35,12 @@ def execute(args: argparse.Namespace) -> int:
     from ..folder_lock import results_lock
     from ..pipeline import write_results
     from ..results_folder import check_results_folder
+    from ..writers.side_by_side import load_plotting, warm_writer
 
     refuse_existing(args.out, args.force)
     check_results_folder(args.out, force=args.force)  # fail before the solve, not after
-    try:
-        with results_lock(args.out):
+    try:  # matplotlib and the fonts load on the other core during the solve
+        with results_lock(args.out), warm_writer(load_plotting):
             log.info("Solving the demonstration: steel bar 60 mm x 40 mm quenched in oil ...")
             results = run_demo()
             rearm_terminate()  # meshing reset SIGTERM

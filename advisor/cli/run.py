@@ -46,6 +46,14 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def execute(args: argparse.Namespace) -> int:
+    from ..writers.side_by_side import load_plotting, warm_writer
+
+    # matplotlib and the fonts load on the other core while the case is read and solved
+    with warm_writer(load_plotting):
+        return _run(args)
+
+
+def _run(args: argparse.Namespace) -> int:
     from ..casefile.case import load_case
     from ..field_results import FieldResults
     from ..folder_lock import results_lock

@@ -7,6 +7,8 @@ from collections.abc import Sequence
 
 import numpy as np
 
+from .plot_style import lay_out
+
 PADDING = 2.0  # px around a label that a curve must keep clear of
 
 
@@ -58,11 +60,10 @@ def place_clear(text, candidates: Sequence[dict], pixels: np.ndarray | None = No
 
     Each candidate is a dict of ``xy`` (the anchor, in the annotation's coordinates),
     ``offset`` (points) and ``ha``/``va``. The figure is laid out first so that the extents
-    are those of the saved picture.
+    are those of the saved picture (one layout serves every label and the saving, see
+    :func:`.plot_style.lay_out`).
     """
-    figure = text.axes.figure
-    figure.draw_without_rendering()
-    renderer = figure.canvas.get_renderer()
+    renderer = lay_out(text.axes.figure)
     if pixels is None:
         pixels = line_pixels(text.axes)
     best, fewest = None, None

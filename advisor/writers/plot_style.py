@@ -32,6 +32,7 @@ PROBE_COLOURS = ("#2a9d8f", "#8e6c8a", "#6b8f23", "#d19c1d", "#4f6d7a")
 FIELD_MAP = "cividis"
 FORMATS = ("png", "svg")
 DPI = 120
+PAD = 0.08  # inches of margin around what is drawn
 
 
 def time_axis(end_time: float) -> tuple[float, str]:
@@ -71,20 +72,57 @@ def tidy(axes, t) -> None:
     axes.set_xlim(t[0], t[-1])
 
 
+def lay_out(figure: Figure):
+    """Lay ``figure`` out (constrained layout, a draw without rendering) unless it was laid
+    out already and nothing was added, moved or rescaled since; return its renderer.
+
+    A layout is a third of a figure's drawing time: the labels placed clear of the curves
+    (:func:`.plot_labels.place_clear`) and the saving share one.
+    """
+    if getattr(figure, "_laid_out", None) != _layout_mark(figure):
+        figure.draw_without_rendering()
+        figure._laid_out = _layout_mark(figure)
+    return figure.canvas.get_renderer()
+
+
+def _layout_mark(figure: Figure) -> tuple:
+    """What a layout depends on that a figure's builder changes: its size, its axes, their
+    artists and view limits (labels kept out of the layout are moved freely)."""
+    return (
+        tuple(figure.get_size_inches()),
+        figure.dpi,
+        tuple((len(axes.get_children()), tuple(axes.viewLim.bounds)) for axes in figure.axes),
+    )
+
+
 def save_figure(figure: Figure, stem: Path, formats: Sequence[str] = FORMATS) -> list[Path]:
-    """Save ``figure`` as ``stem.png``, ``stem.svg`` (or ``formats``) atomically."""
+    """Save ``figure`` as ``stem.png``, ``stem.svg`` (or ``formats``) atomically.
+
+    The picture is cut to what is drawn (a left-aligned title wider than its axes, for tall
+    sections, stays in it) with a margin of :data:`PAD` inches. A PNG reuses the figure's
+    layout (:func:`lay_out`) and is drawn once; an SVG is laid out again at its own 72 dpi.
+    """
     stem = Path(stem)
     stem.parent.mkdir(parents=True, exist_ok=True)
     paths = []
     for kind in formats:
         path = stem.with_name(f"{stem.name}.{kind}")
-        # tight: a left-aligned title wider than its axes (tall sections) stays in the picture
-        write_with(
-            path,
-            lambda p, k=kind: figure.savefig(p, format=k, bbox_inches="tight", pad_inches=0.08),
-        )
+        write_with(path, lambda p, k=kind: _save(figure, p, k))
         paths.append(path)
     return paths
+
+
+def _save(figure: Figure, path: Path, kind: str) -> None:
+    if kind != "png":
+        figure.savefig(path, format=kind, bbox_inches="tight", pad_inches=PAD)
+        return
+    box = figure.get_tightbbox(lay_out(figure)).padded(PAD)
+    engine = figure.get_layout_engine()
+    figure.set_layout_engine("none")  # laid out above: savefig would lay out and draw twice
+    try:
+        figure.savefig(path, format=kind, bbox_inches=box)
+    finally:
+        figure.set_layout_engine(engine)
 
 
 def scaled_times(solution) -> tuple[np.ndarray, float, str]:

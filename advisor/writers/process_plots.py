@@ -16,6 +16,7 @@ from fem.conditions import SurfaceCurve
 
 from ..analysis.assessment import Assessment
 from ..analysis.surface_band import SurfaceBand, curve_conditions, surface_band
+from .plot_list import PROCESS_PLOT_TITLES
 from .plot_style import BAND, GRID, INK, PROBE_COLOURS, TARGET, WARM, clock, new_figure
 from .report_words import quantity_words
 
@@ -178,20 +179,11 @@ def _curve_axes(axes, condition, groups: tuple[str, ...], bands: list[SurfaceBan
 
 # The figures :func:`process_plots` may add: file stem -> (title, caption, builder).
 PROCESS_PLOTS = {
-    "cooling_rates": (
-        "Rate of temperature change against temperature",
-        "The rate at the slowest point and each probe from local quadratic fits to its "
-        "history, the largest rate of each marked and the requested range shaded.",
-        cooling_rate_figure,
-    ),
-    "surface_curves": (
-        "The curves of surface temperature used",
-        "For each coefficient that follows the surface temperature: h (solid, left axis) and "
-        "the heat flux it gives (dashed, right axis), the table's own points marked, and the "
-        "band of surface temperatures the run passed through on its edge groups (read from "
-        "the stored fields at the output times).",
-        surface_curve_figure,
-    ),
+    stem: (*PROCESS_PLOT_TITLES[stem], build)
+    for stem, build in (
+        ("cooling_rates", cooling_rate_figure),
+        ("surface_curves", surface_curve_figure),
+    )
 }
 
 

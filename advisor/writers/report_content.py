@@ -12,8 +12,8 @@ from collections.abc import Sequence
 from ..analysis.assessment import Assessment
 from ..analysis.surface_band import curve_conditions
 from ..caution import CAUTION
-from .plot_style import clock
-from .process_plots import PROCESS_PLOTS
+from ..time_words import duration_text
+from .plot_list import PROCESS_PLOT_TITLES
 from .report_document import HEADINGS, Bullets, Callout, Paragraph, Picture, Report, part
 from .report_inputs import inputs_part
 from .report_process import curves_part, freezing_part, quench_part
@@ -66,9 +66,9 @@ def build_report(
 
 
 def _process_picture(stem: str, files: Sequence[str]) -> Picture | None:
-    """The process plot ``stem`` (:data:`.process_plots.PROCESS_PLOTS`) as a picture, when
+    """The process plot ``stem`` (:data:`.plot_list.PROCESS_PLOT_TITLES`) as a picture, when
     its PNG is among ``files``."""
-    title, caption, _ = PROCESS_PLOTS[stem]
+    title, caption = PROCESS_PLOT_TITLES[stem]
     for name in files:
         if name == f"{stem}.png" or name.endswith(f"/{stem}.png"):
             return Picture(name, title, caption)
@@ -86,6 +86,6 @@ def _lede(assessment: Assessment) -> str:
     return (
         f"The section {'heats' if assessment.heating else 'cools'} from "
         f"{lumped.initial_temperature:.4g} °C towards {lumped.equilibrium:.4g} °C over "
-        f"{clock(end)}{target}. The verdict is about {verdict.subject}, with a tolerance of "
-        f"{100 * verdict.tolerance:.3g} %."
+        f"{duration_text(end)}{target}. The verdict is about {verdict.subject}, with a "
+        f"tolerance of {100 * verdict.tolerance:.3g} %."
     )

@@ -8,7 +8,9 @@ gmsh's API is used directly (pygmsh's session falls short here): gmsh sets its o
 handler when it starts, which only the main thread may do and which ``finalize`` does not undo.
 Off the main thread (a dask worker's task) it starts without one; on the main thread the
 handlers that were there before (SIGINT, SIGTERM) are put back, so an interruption after
-meshing ends the run as the command line intends.
+meshing ends the run as the command line intends, and so is Python's SIGPIPE (ignored, so a
+write to a closed pipe is a ``BrokenPipeError``), which gmsh's start sets back to ending the
+process at once.
 """
 
 from __future__ import annotations
@@ -23,6 +25,7 @@ import gmsh
 from ..errors import GeometryError
 
 _GMSH_LOCK = threading.Lock()
+_GUARDED = (signal.SIGINT, signal.SIGTERM, getattr(signal, "SIGPIPE", None))  # none on Windows
 
 
 @contextmanager
@@ -33,7 +36,7 @@ def gmsh_session() -> Iterator[None]:
     with _GMSH_LOCK:
         # gmsh installs its own handlers at the system level; Python's are put back after it
         handlers = (
-            {sig: signal.getsignal(sig) for sig in (signal.SIGINT, signal.SIGTERM)}
+            {sig: signal.getsignal(sig) for sig in _GUARDED if sig is not None}
             if main_thread
             else {}
         )
