@@ -88,6 +88,25 @@ def test_the_starting_cases_load_without_the_case_reader():
     assert pint_loaded == "False"
 
 
+def test_reading_a_case_leaves_dask_unloaded_and_importable():
+    """pint would import dask (when installed) on its own import; a case is read without it,
+    and dask can still be imported afterwards (the studies' engines use it)."""
+    pytest.importorskip(
+        "dask", reason="dask is in the studies extra; without it there is nothing to keep out"
+    )
+    code = (
+        "import sys; from advisor.casefile.units import quantity;"
+        "print(quantity('25 mm', 'length'), 'dask' in sys.modules);"
+        "import dask.array; print(dask.array.ones(3).sum().compute())"
+    )
+    done = subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, timeout=60, check=True
+    )
+    converted, summed = done.stdout.strip().splitlines()
+    assert converted == "0.025 False"
+    assert float(summed) == 3.0
+
+
 @pytest.mark.parametrize(
     ("argument", "message", "key_path", "phrase"),
     [

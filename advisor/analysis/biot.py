@@ -5,7 +5,6 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy.optimize import minimize_scalar
 
 from fem import ThermalModel
 
@@ -171,6 +170,8 @@ def _coefficient_range(model, end_time, low_t, high_t):
     )
     hs = list(grid.ravel())
     if len(temperatures) > 1:
+        from scipy.optimize import minimize_scalar  # 0.12 s to import: coefficients of T only
+
         for sign in (1.0, -1.0):  # the largest, then the smallest
             i, j = np.unravel_index(np.argmax(sign * grid), grid.shape)
             time = float(times[i])

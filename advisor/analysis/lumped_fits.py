@@ -9,7 +9,6 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 import numpy as np
-from scipy.optimize import brentq, least_squares
 
 if TYPE_CHECKING:
     from .lumped import LumpedModel
@@ -113,6 +112,8 @@ class TwoNodeModel:
         if i == 0 or remaining[i] == 0:
             return float(times[i])
 
+        from scipy.optimize import brentq  # 0.12 s to import: not for a quick check
+
         def core_minus_target(t: float) -> float:
             return float(self.states([t])[0][0] - target)
 
@@ -154,6 +155,8 @@ def fit_two_node(times, mean, slowest, lumped: LumpedModel) -> TwoNodeModel | No
     def residual(x):
         states = model_of(x).states(t)
         return (np.concatenate([states[2], states[0]]) - targets) / abs(drive)
+
+    from scipy.optimize import least_squares
 
     fit = least_squares(residual, x0=[0.5, math.log(5.0)], bounds=([0.02, -3.0], [0.98, 8.0]))
     return model_of(fit.x) if fit.success else None
