@@ -34,6 +34,7 @@ from .errors import SolverError
 from .integrators import StepFormula, StepResult
 from .nonlinear_acceleration import AndersonMixing
 from .stepper import RunContext
+from .tangents import ScaledFactor, symmetric_scaled
 
 BALANCE_SHARE = 1e-3  # an early stop's heat defect per step, in tolerance × heat capacity
 GRACE = 3  # iterations a kept tangent is given in a step before its rate is judged
@@ -129,8 +130,22 @@ class NewtonStep:
         jacobian = (formula.a[0] / step) * system.capacity_tangent(u) + formula.beta * (
             system.outflow_tangent(u, t1 - 1e-9 * step)
         )
-        self.tangent = (key, self.run.algebra.factor(jacobian, self.symmetric))
+        self.tangent = (key, self._factorised(jacobian, u))
         self.rate = None  # not known for the new tangent
+
+    def _factorised(self, jacobian, u: np.ndarray):
+        """The tangent's factorisation: Cholesky where it is symmetric; with k(T) and a
+        constant capacity the symmetric chord of :mod:`fem.tangents` by Cholesky; LU
+        otherwise (latent heat makes the chord's capacity error large at the front)."""
+        algebra, system = self.run.algebra, self.run.system
+        if self.symmetric:
+            return algebra.factor(jacobian, True, "cholesky")
+        if system.constant_capacity:
+            scale = system.nodal_conductivity(u)
+            factor = algebra.factor(symmetric_scaled(jacobian, scale), True, "cholesky")
+            if getattr(factor, "solver", None) == "cholesky":  # else P was not definite
+                return ScaledFactor(factor, scale[system.free_dofs])
+        return algebra.factor(jacobian, False)
 
     def _iterate(self, u, residual, formula: StepFormula, step: float, t1: float) -> None:
         """Damped, accelerated simplified Newton iterations on the free degrees of freedom of
