@@ -34,9 +34,13 @@ from .errors import SolverError
 from .integrators import StepFormula, StepResult
 from .nonlinear_acceleration import AndersonMixing
 from .stepper import RunContext
-from .tangents import ScaledFactor, symmetric_scaled
+from .tangents import BoundaryCorrection, ScaledFactor, symmetric_scaled
 
 BALANCE_SHARE = 1e-3  # an early stop's heat defect per step, in tolerance × heat capacity
+# Surface nodes up to which a surface-only nonlinearity is solved by the bordered tangent
+# (one solve each per step size) instead of refactorising.
+BORDERED_NODES = 2000
+BORDERED_KEPT = 3  # bordered tangents kept: the run's step and a retry's halves
 GRACE = 3  # iterations a kept tangent is given in a step before its rate is judged
 DIVERGING = 2.0  # ... unless it grows the change this much
 TANGENT_RATE = 0.5  # a kept Newton tangent must shrink the change at least this much per iteration
@@ -82,6 +86,8 @@ class NewtonStep:
             isinstance(m.conductivity, float) for m in run.system.model.materials.values()
         )
         self.tangent = None  # (key, factor) of the tangent kept for simplified Newton
+        self.surface = self._bordered_surface(run)
+        self.bordered: dict = {}  # key → (key, BoundaryCorrection): constant per step size
         self.mixing = AndersonMixing()
         self.rate: float | None = None  # the kept tangent's last rate of convergence
 
@@ -124,9 +130,49 @@ class NewtonStep:
         heat = step * (inflow + sum(reactions.values()))
         return StepResult(u, float(system.stored(u).sum()), heat, reactions)
 
+    @staticmethod
+    def _bordered_surface(run: RunContext) -> np.ndarray | None:
+        """Positions among the free degrees of freedom of the surface nodes whose tangent the
+        iterations correct by :class:`fem.tangents.BoundaryCorrection`, or None: for fixed
+        steps of a model nonlinear only at its surface, with at most ``BORDERED_NODES`` of
+        them (each costs one solve per step size)."""
+        system = run.system
+        nodes = system.nonlinear_surface_nodes
+        constant_k = all(
+            isinstance(m.conductivity, float) for m in system.model.materials.values()
+        )
+        if run.controls.adaptive or not (system.constant_capacity and constant_k):
+            return None
+        position = np.full(system.size, -1, dtype=np.int64)
+        position[system.free_dofs] = np.arange(system.free_dofs.size)
+        surface = position[nodes]
+        surface = surface[surface >= 0]
+        if surface.size == 0 or surface.size > BORDERED_NODES:
+            return None
+        return surface
+
+    def _linearise(self, u: np.ndarray, formula: StepFormula, step: float, t1: float) -> None:
+        """Give the bordered tangent the surface terms Δ at ``u``."""
+        system = self.run.system
+        nodes = system.free_dofs[self.surface]
+        tangent = system.surface_tangent(u, t1 - 1e-9 * step).tocsr()[nodes][:, nodes]
+        self.tangent[1].linearise(formula.beta * tangent)
+
     def _factor(self, u: np.ndarray, formula: StepFormula, step: float, t1: float, key) -> None:
         """Factorise the tangent at ``u`` and keep it under ``key``."""
         system = self.run.system
+        if self.surface is not None:  # the surface's terms come each iteration
+            interior = (formula.a[0] / step) * system.capacity_tangent(u) + formula.beta * (
+                system.outflow_tangent(u, t1 - 1e-9 * step, remainders=False)
+            )
+            factor = self.run.algebra.factor(interior, True, "cholesky")
+            size = system.free_dofs.size
+            self.tangent = (key, BoundaryCorrection(factor, self.surface, size))
+            self.bordered[key] = self.tangent
+            while len(self.bordered) > BORDERED_KEPT:
+                self.bordered.pop(next(iter(self.bordered)))
+            self.rate = None
+            return
         jacobian = (formula.a[0] / step) * system.capacity_tangent(u) + formula.beta * (
             system.outflow_tangent(u, t1 - 1e-9 * step)
         )
@@ -155,7 +201,11 @@ class NewtonStep:
         free = self.run.system.free_dofs
         started, factoring = clock.perf_counter(), cost.factorisation_seconds
         key = (float(f"{formula.a[0] / step:.12e}"), formula.beta)
+        if self.surface is not None:  # J₀ holds the linear conditions' h(t) exactly
+            key += self.run.system.exchange_key(t1 - 1e-9 * step)
         if self.tangent is None or self.tangent[0] != key:
+            self.tangent = self.bordered.get(key)  # a step size seen before (a retry)
+        if self.tangent is None:
             self._factor(u, formula, step, t1, key)
         self.mixing.reset()
         fresh = True  # the kept tangent was factorised at the current iterate
@@ -167,6 +217,10 @@ class NewtonStep:
         tolerance = controls.newton_tolerance  # K
         while iteration < controls.max_newton_iterations:
             iteration += 1
+            if self.surface is not None:  # Newton's tangent, exactly, at every iterate
+                self._linearise(u, formula, step, t1)
+                self.mixing.reset()
+                fresh, kept = True, 0
             change = self.tangent[1].solve(-r[free])
             largest = float(np.abs(change).max(initial=0.0))
             if not math.isfinite(previous) and self.rate:
@@ -230,6 +284,9 @@ class NewtonStep:
     def _renew(self, u, formula: StepFormula, step: float, t1: float, key) -> bool:
         """Refactorise the tangent at ``u``; the mixing starts again, since its updates came
         from the old tangent. True (the tangent is fresh)."""
+        if self.surface is not None:  # renewed at every iterate anyway
+            self.mixing.reset()
+            return True
         self._factor(u, formula, step, t1, key)
         self.mixing.reset()
         return True
