@@ -37,6 +37,10 @@ from .stepper import RunContext
 from .tangents import BoundaryCorrection, ScaledFactor, symmetric_scaled
 
 BALANCE_SHARE = 1e-3  # an early stop's heat defect per step, in tolerance × heat capacity
+BALANCE_SECANTS = 3  # uniform shifts tried to close a step's heat balance
+# ... after an update of at most this many tolerances: the balance's own test of convergence
+# stays in force for larger ones (an update accepted on the last step's rate alone).
+CLOSING_CHANGE = 1e3
 # Surface nodes up to which a surface-only nonlinearity is solved by the bordered tangent
 # (one solve each per step size) instead of refactorising.
 BORDERED_NODES = 2000
@@ -86,6 +90,7 @@ class NewtonStep:
             isinstance(m.conductivity, float) for m in run.system.model.materials.values()
         )
         self.tangent = None  # (key, factor) of the tangent kept for simplified Newton
+        self.total_slope = 0.0  # 1ᵀ·J·1 of the kept tangent on the free dofs, W/K
         self.surface = self._bordered_surface(run)
         self.bordered: dict = {}  # key → (key, BoundaryCorrection): constant per step size
         self.mixing = AndersonMixing()
@@ -168,6 +173,7 @@ class NewtonStep:
             factor = self.run.algebra.factor(interior, True, "cholesky")
             size = system.free_dofs.size
             self.tangent = (key, BoundaryCorrection(factor, self.surface, size))
+            self.total_slope = float(interior.sum())  # 1ᵀ·J₀·1 (a secant corrects it)
             self.bordered[key] = self.tangent
             while len(self.bordered) > BORDERED_KEPT:
                 self.bordered.pop(next(iter(self.bordered)))
@@ -177,6 +183,8 @@ class NewtonStep:
             system.outflow_tangent(u, t1 - 1e-9 * step)
         )
         self.tangent = (key, self._factorised(jacobian, u))
+        free = system.free_dofs
+        self.total_slope = float(jacobian[free][:, free].sum())  # 1ᵀ·J·1, W/K
         self.rate = None  # not known for the new tangent
 
     def _factorised(self, jacobian, u: np.ndarray):
@@ -229,6 +237,8 @@ class NewtonStep:
                 self.mixing.update(u[free], change)
                 u[free] += change
                 r = residual(u)
+                if largest <= CLOSING_CHANGE * tolerance and not self._balanced(r, formula, step):
+                    r = self._close_balance(u, r, residual, formula, step)
                 if self._balanced(r, formula, step):
                     self.rate = largest / previous if math.isfinite(previous) else None
                     break
@@ -318,6 +328,32 @@ class NewtonStep:
         defect = abs(float(r[self.run.system.free_dofs].sum())) * step / formula.a[0]
         capacity = float(self.run.capacity_columns.sum())
         return defect <= BALANCE_SHARE * self.run.controls.newton_tolerance * capacity
+
+    def _close_balance(self, u, r, residual, formula: StepFormula, step: float) -> np.ndarray:
+        """Close the step's heat balance by a uniform shift of the free temperatures, the
+        residual's sum being the heat left unbalanced: the coarse correction on the constant
+        vector (Nicolaides, "Deflation of conjugate gradients with applications to boundary
+        value problems", *SIAM J. Numer. Anal.* 24, 1987, from memory), by secants on
+        Σr(u + δ·1) from the kept tangent's 1ᵀ·J·1. The shift is far below the tolerance (it
+        is the defect over the whole capacity), and a few residuals replace the several solves
+        the kept tangent would need to close the balance by itself. The residual at ``u``
+        (shifted in place) is returned."""
+        free = self.run.system.free_dofs
+        slope, shift = self.total_slope, 0.0
+        defect = float(r[free].sum())
+        for _ in range(BALANCE_SECANTS):
+            if not slope > 0:
+                break
+            move = -defect / slope
+            u[free] += move
+            shift += move
+            r = residual(u)
+            if self._balanced(r, formula, step):
+                break
+            remaining = float(r[free].sum())
+            slope = (defect - remaining) / -move if move else slope
+            defect = remaining
+        return r
 
     def _stale(self, change: float, previous: float, tolerance: float, kept: int) -> bool:
         """Whether to refactorise a kept tangent that shrank the update from ``previous`` to
