@@ -117,23 +117,25 @@ class NewtonStep:
             known = known + (1 - formula.beta) * outflow0
             inflow_old = -float(outflow0.sum())
 
+        last: list = []  # (field, stored heat, outflow, residual) of the latest evaluation
+
         def residual(field):
-            return (
-                formula.a[0] * system.stored(field) / step
-                + known
-                + formula.beta * system.net_outflow(field, inside1)
-            )
+            stored, outflow = system.stored(field), system.net_outflow(field, inside1)
+            r = formula.a[0] * stored / step + known + formula.beta * outflow
+            last[:] = [field.copy(), stored, outflow, r]
+            return r
 
         u = guess.copy()
         system.impose_fixed(u, inside1)
         self._iterate(u, residual, formula, step, t1)
-        outflow1 = system.net_outflow(u, inside1)
-        r = formula.a[0] * system.stored(u) / step + known + formula.beta * outflow1
+        if not (last and np.array_equal(last[0], u)):  # the converged field's is kept
+            residual(u)
+        _, stored1, outflow1, r = last
         reactions = {name: float(r[d].sum()) for name, d in system.fixed_dofs.items()}
         inflow = formula.beta * -float(outflow1.sum())
         inflow += (1 - formula.beta) * inflow_old
         heat = step * (inflow + sum(reactions.values()))
-        return StepResult(u, float(system.stored(u).sum()), heat, reactions)
+        return StepResult(u, float(stored1.sum()), heat, reactions)
 
     @staticmethod
     def _bordered_surface(run: RunContext) -> np.ndarray | None:
