@@ -42,8 +42,9 @@ BALANCE_SECANTS = 3  # uniform shifts tried to close a step's heat balance
 # stays in force for larger ones (an update accepted on the last step's rate alone).
 CLOSING_CHANGE = 1e3
 # Surface nodes up to which a surface-only nonlinearity is solved by the bordered tangent
-# (one solve each per step size) instead of refactorising.
-BORDERED_NODES = 2000
+# instead of refactorising: each costs one solve per step size, and a factorisation 25-110
+# solves (10k-1M unknowns), so 1000 is about what a quench's 30 refactorisations cost.
+BORDERED_NODES = 1000
 BORDERED_KEPT = 3  # bordered tangents kept: the run's step and a retry's halves
 GRACE = 3  # iterations a kept tangent is given in a step before its rate is judged
 DIVERGING = 2.0  # ... unless it grows the change this much
