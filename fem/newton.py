@@ -29,6 +29,7 @@ import time as clock
 from typing import NoReturn
 
 import numpy as np
+import scipy.sparse as sp
 
 from .errors import SolverError
 from .integrators import StepFormula, StepResult
@@ -41,6 +42,7 @@ BALANCE_SECANTS = 3  # uniform shifts tried to close a step's heat balance
 # ... after an update of at most this many tolerances: the balance's own test of convergence
 # stays in force for larger ones (an update accepted on the last step's rate alone).
 CLOSING_CHANGE = 1e3
+CLOSING_SHIFT = 1e-2  # ... by a shift of at most this many tolerances (uniform error it adds)
 # Surface nodes up to which a surface-only nonlinearity is solved by the bordered tangent
 # instead of refactorising: each costs one solve per step size, and a factorisation 25-110
 # solves (10k-1M unknowns), so 1000 is about what a quench's 30 refactorisations cost.
@@ -93,6 +95,7 @@ class NewtonStep:
         self.tangent = None  # (key, factor) of the tangent kept for simplified Newton
         self.total_slope = 0.0  # 1ᵀ·J·1 of the kept tangent on the free dofs, W/K
         self.surface = self._bordered_surface(run)
+        self._restriction = None  # the surface tangent's pattern and its S × S entries
         self.bordered: dict = {}  # key → (key, BoundaryCorrection): constant per step size
         self.mixing = AndersonMixing()
         self.rate: float | None = None  # the kept tangent's last rate of convergence
@@ -162,9 +165,28 @@ class NewtonStep:
     def _linearise(self, u: np.ndarray, formula: StepFormula, step: float, t1: float) -> None:
         """Give the bordered tangent the surface terms Δ at ``u``."""
         system = self.run.system
-        nodes = system.free_dofs[self.surface]
-        tangent = system.surface_tangent(u, t1 - 1e-9 * step).tocsr()[nodes][:, nodes]
-        self.tangent[1].linearise(formula.beta * tangent)
+        tangent = system.surface_tangent(u, t1 - 1e-9 * step).tocsr()
+        self.tangent[1].linearise(formula.beta * self._restricted(tangent))
+
+    def _restricted(self, tangent) -> sp.csr_matrix:
+        """``tangent`` on the surface nodes S × S: its entries picked by positions found once
+        for its pattern (the edge's, the same every call), not by sparse slicing."""
+        known = self._restriction
+        if known is None or not (
+            np.array_equal(known[0], tangent.indptr) and np.array_equal(known[1], tangent.indices)
+        ):
+            nodes = self.run.system.free_dofs[self.surface]
+            numbered = sp.csr_matrix(
+                (np.arange(1, tangent.nnz + 1, dtype=float), tangent.indices, tangent.indptr),
+                shape=tangent.shape,
+            )[nodes][:, nodes]
+            numbered.sort_indices()
+            pick = numbered.data.astype(np.int64) - 1
+            known = (tangent.indptr.copy(), tangent.indices.copy(), pick, numbered)
+            self._restriction = known
+        _, _, pick, numbered = known
+        entries = (tangent.data[pick], numbered.indices, numbered.indptr)
+        return sp.csr_matrix(entries, shape=numbered.shape)
 
     def _factor(self, u: np.ndarray, formula: StepFormula, step: float, t1: float, key) -> None:
         """Factorise the tangent at ``u`` and keep it under ``key``."""
@@ -345,8 +367,11 @@ class NewtonStep:
         slope, shift = self.total_slope, 0.0
         defect = float(r[free].sum())
         for _ in range(BALANCE_SECANTS):
-            if not slope > 0:
-                break
+            if (
+                not slope > 0
+                or abs(defect / slope) > CLOSING_SHIFT * self.run.controls.newton_tolerance
+            ):
+                break  # a shift that large would be an error of its own: iterate on
             move = -defect / slope
             u[free] += move
             shift += move
