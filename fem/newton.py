@@ -92,8 +92,8 @@ class NewtonStep:
         self.symmetric = all(
             isinstance(m.conductivity, float) for m in run.system.model.materials.values()
         )
-        self.tangent = None  # (key, factor) of the tangent kept for simplified Newton
-        self.total_slope = 0.0  # 1ᵀ·J·1 of the kept tangent on the free dofs, W/K
+        self.tangent = None  # (key, factor of J/β, 1ᵀ·J·1/β) kept for simplified Newton
+        self.beta = 1.0  # the step formula's β: the tangent kept is J/β
         self.surface = self._bordered_surface(run)
         self._restriction = None  # the surface tangent's pattern and its S × S entries
         self.bordered: dict = {}  # key → (key, BoundaryCorrection): constant per step size
@@ -166,7 +166,7 @@ class NewtonStep:
         """Give the bordered tangent the surface terms Δ at ``u``."""
         system = self.run.system
         tangent = system.surface_tangent(u, t1 - 1e-9 * step).tocsr()
-        self.tangent[1].linearise(formula.beta * self._restricted(tangent))
+        self.tangent[1].linearise(self._restricted(tangent))
 
     def _restricted(self, tangent) -> sp.csr_matrix:
         """``tangent`` on the surface nodes S × S: its entries picked by positions found once
@@ -191,25 +191,25 @@ class NewtonStep:
     def _factor(self, u: np.ndarray, formula: StepFormula, step: float, t1: float, key) -> None:
         """Factorise the tangent at ``u`` and keep it under ``key``."""
         system = self.run.system
+        free = system.free_dofs
+        # J/β = (a₀/(β·h))·C' + G': one factorisation serves steps of equal a₀/(β·h), as a
+        # backward-Euler half step and a Crank–Nicolson step of the same run.
+        scale = formula.a[0] / (formula.beta * step)
         if self.surface is not None:  # the surface's terms come each iteration
-            interior = (formula.a[0] / step) * system.capacity_tangent(u) + formula.beta * (
-                system.outflow_tangent(u, t1 - 1e-9 * step, remainders=False)
+            interior = scale * system.capacity_tangent(u) + system.outflow_tangent(
+                u, t1 - 1e-9 * step, remainders=False
             )
             factor = self.run.algebra.factor(interior, True, "cholesky")
-            size = system.free_dofs.size
-            self.tangent = (key, BoundaryCorrection(factor, self.surface, size))
-            self.total_slope = float(interior.sum())  # 1ᵀ·J₀·1 (a secant corrects it)
+            slope = float(interior[free][:, free].sum())  # 1ᵀ·J₀·1/β (a secant corrects it)
+            self.tangent = (key, BoundaryCorrection(factor, self.surface, free.size), slope)
             self.bordered[key] = self.tangent
             while len(self.bordered) > BORDERED_KEPT:
                 self.bordered.pop(next(iter(self.bordered)))
             self.rate = None
             return
-        jacobian = (formula.a[0] / step) * system.capacity_tangent(u) + formula.beta * (
-            system.outflow_tangent(u, t1 - 1e-9 * step)
-        )
-        self.tangent = (key, self._factorised(jacobian, u))
-        free = system.free_dofs
-        self.total_slope = float(jacobian[free][:, free].sum())  # 1ᵀ·J·1, W/K
+        jacobian = scale * system.capacity_tangent(u) + system.outflow_tangent(u, t1 - 1e-9 * step)
+        slope = float(jacobian[free][:, free].sum())  # 1ᵀ·J·1/β, W/K
+        self.tangent = (key, self._factorised(jacobian, u), slope)
         self.rate = None  # not known for the new tangent
 
     def _factorised(self, jacobian, u: np.ndarray):
@@ -233,7 +233,8 @@ class NewtonStep:
         controls, cost = self.run.controls, self.run.cost
         free = self.run.system.free_dofs
         started, factoring = clock.perf_counter(), cost.factorisation_seconds
-        key = (float(f"{formula.a[0] / step:.12e}"), formula.beta)
+        key = (float(f"{formula.a[0] / (formula.beta * step):.12e}"),)
+        self.beta = formula.beta  # the tangent is factorised divided by β
         if self.surface is not None:  # J₀ holds the linear conditions' h(t) exactly
             key += self.run.system.exchange_key(t1 - 1e-9 * step)
         if self.tangent is None or self.tangent[0] != key:
@@ -254,7 +255,7 @@ class NewtonStep:
                 self._linearise(u, formula, step, t1)
                 self.mixing.reset()
                 fresh, kept = True, 0
-            change = self.tangent[1].solve(-r[free])
+            change = self.tangent[1].solve(-r[free]) / self.beta
             largest = float(np.abs(change).max(initial=0.0))
             if not math.isfinite(previous) and self.rate:
                 previous = largest / self.rate  # a step's first change: the last step's rate
@@ -330,7 +331,7 @@ class NewtonStep:
         """Refactorise the tangent at ``u`` and return Newton's update there with its largest
         entry (K)."""
         self._renew(u, formula, step, t1, key)
-        change = self.tangent[1].solve(-r[self.run.system.free_dofs])
+        change = self.tangent[1].solve(-r[self.run.system.free_dofs]) / self.beta
         return change, float(np.abs(change).max(initial=0.0))
 
     @staticmethod
@@ -364,7 +365,7 @@ class NewtonStep:
         the kept tangent would need to close the balance by itself. The residual at ``u``
         (shifted in place) is returned."""
         free = self.run.system.free_dofs
-        slope, shift = self.total_slope, 0.0
+        slope, shift = self.beta * self.tangent[2], 0.0
         defect = float(r[free].sum())
         for _ in range(BALANCE_SECANTS):
             if (
