@@ -31,6 +31,7 @@ from typing import NoReturn
 import numpy as np
 import scipy.sparse as sp
 
+from .conditions import Radiation
 from .errors import SolverError
 from .integrators import StepFormula, StepResult
 from .nonlinear_acceleration import AndersonMixing
@@ -95,6 +96,10 @@ class NewtonStep:
         self.tangent = None  # (key, factor of J/β, 1ᵀ·J·1/β) kept for simplified Newton
         self.beta = 1.0  # the step formula's β: the tangent kept is J/β
         self.surface = self._bordered_surface(run)
+        # Capacity, conduction and radiation (4εσT³ ≥ 0) keep the chord positive definite.
+        self.definite_chord = run.system.constant_capacity and all(
+            c.linear or isinstance(c, Radiation) for _, c in run.system.flowing()
+        )
         self._restriction = None  # the surface tangent's pattern and its S × S entries
         self.bordered: dict = {}  # key → (key, BoundaryCorrection): constant per step size
         self.mixing = AndersonMixing()
@@ -213,13 +218,15 @@ class NewtonStep:
         self.rate = None  # not known for the new tangent
 
     def _factorised(self, jacobian, u: np.ndarray):
-        """The tangent's factorisation: Cholesky where it is symmetric; with k(T) and a
-        constant capacity the symmetric chord of :mod:`fem.tangents` by Cholesky; LU
-        otherwise (latent heat makes the chord's capacity error large at the front)."""
+        """The tangent's factorisation: SuperLU's symmetric mode where it is symmetric; with
+        k(T), a constant capacity and no surface term that can fall with temperature the
+        symmetric chord of :mod:`fem.tangents` by Cholesky; LU otherwise (latent heat makes
+        the chord's capacity error large at the front, and CHOLMOD reports an indefinite
+        matrix on the standard output before it fails)."""
         algebra, system = self.run.algebra, self.run.system
-        if self.symmetric:
-            return algebra.factor(jacobian, True, "cholesky")
-        if system.constant_capacity:
+        if self.symmetric:  # SuperLU's symmetric mode: h(T_s) may make it indefinite
+            return algebra.factor(jacobian, True)
+        if self.definite_chord:
             scale = system.nodal_conductivity(u)
             factor = algebra.factor(symmetric_scaled(jacobian, scale), True, "cholesky")
             if getattr(factor, "solver", None) == "cholesky":  # else P was not definite
