@@ -29,14 +29,20 @@ import time as clock
 from typing import NoReturn
 
 import numpy as np
-import scipy.sparse as sp
 
 from .conditions import Radiation
 from .errors import SolverError
 from .integrators import StepFormula, StepResult
 from .nonlinear_acceleration import AndersonMixing
+from .nonlinear_assembly import nodal_conductivity
 from .stepper import RunContext
-from .tangents import BoundaryCorrection, ScaledFactor, symmetric_scaled
+from .tangents import (
+    BoundaryCorrection,
+    ScaledFactor,
+    SurfaceRestriction,
+    bordered_surface,
+    symmetric_scaled,
+)
 
 BALANCE_SHARE = 1e-3  # an early stop's heat defect per step, in tolerance × heat capacity
 BALANCE_SECANTS = 3  # uniform shifts tried to close a step's heat balance
@@ -95,12 +101,13 @@ class NewtonStep:
         )
         self.tangent = None  # (key, factor of J/β, 1ᵀ·J·1/β) kept for simplified Newton
         self.beta = 1.0  # the step formula's β: the tangent kept is J/β
-        self.surface = self._bordered_surface(run)
+        self.surface = bordered_surface(run.system, run.controls.adaptive, BORDERED_NODES)
         # Capacity, conduction and radiation (4εσT³ ≥ 0) keep the chord positive definite.
         self.definite_chord = run.system.constant_capacity and all(
             c.linear or isinstance(c, Radiation) for _, c in run.system.flowing()
         )
-        self._restriction = None  # the surface tangent's pattern and its S × S entries
+        if self.surface is not None:
+            self._restricted = SurfaceRestriction(run.system.free_dofs[self.surface])
         self.bordered: dict = {}  # key → (key, BoundaryCorrection): constant per step size
         self.mixing = AndersonMixing()
         self.rate: float | None = None  # the kept tangent's last rate of convergence
@@ -146,52 +153,10 @@ class NewtonStep:
         heat = step * (inflow + sum(reactions.values()))
         return StepResult(u, float(stored1.sum()), heat, reactions)
 
-    @staticmethod
-    def _bordered_surface(run: RunContext) -> np.ndarray | None:
-        """Positions among the free degrees of freedom of the surface nodes whose tangent the
-        iterations correct by :class:`fem.tangents.BoundaryCorrection`, or None: for fixed
-        steps of a model nonlinear only at its surface, with at most ``BORDERED_NODES`` of
-        them (each costs one solve per step size)."""
-        system = run.system
-        nodes = system.nonlinear_surface_nodes
-        constant_k = all(
-            isinstance(m.conductivity, float) for m in system.model.materials.values()
-        )
-        if run.controls.adaptive or not (system.constant_capacity and constant_k):
-            return None
-        position = np.full(system.size, -1, dtype=np.int64)
-        position[system.free_dofs] = np.arange(system.free_dofs.size)
-        surface = position[nodes]
-        surface = surface[surface >= 0]
-        if surface.size == 0 or surface.size > BORDERED_NODES:
-            return None
-        return surface
-
     def _linearise(self, u: np.ndarray, formula: StepFormula, step: float, t1: float) -> None:
         """Give the bordered tangent the surface terms Δ at ``u``."""
-        system = self.run.system
-        tangent = system.surface_tangent(u, t1 - 1e-9 * step).tocsr()
+        tangent = self.run.system.surface_tangent(u, t1 - 1e-9 * step).tocsr()
         self.tangent[1].linearise(self._restricted(tangent))
-
-    def _restricted(self, tangent) -> sp.csr_matrix:
-        """``tangent`` on the surface nodes S × S: its entries picked by positions found once
-        for its pattern (the edge's, the same every call), not by sparse slicing."""
-        known = self._restriction
-        if known is None or not (
-            np.array_equal(known[0], tangent.indptr) and np.array_equal(known[1], tangent.indices)
-        ):
-            nodes = self.run.system.free_dofs[self.surface]
-            numbered = sp.csr_matrix(
-                (np.arange(1, tangent.nnz + 1, dtype=float), tangent.indices, tangent.indptr),
-                shape=tangent.shape,
-            )[nodes][:, nodes]
-            numbered.sort_indices()
-            pick = numbered.data.astype(np.int64) - 1
-            known = (tangent.indptr.copy(), tangent.indices.copy(), pick, numbered)
-            self._restriction = known
-        _, _, pick, numbered = known
-        entries = (tangent.data[pick], numbered.indices, numbered.indptr)
-        return sp.csr_matrix(entries, shape=numbered.shape)
 
     def _factor(self, u: np.ndarray, formula: StepFormula, step: float, t1: float, key) -> None:
         """Factorise the tangent at ``u`` and keep it under ``key``."""
@@ -227,7 +192,7 @@ class NewtonStep:
         if self.symmetric:  # SuperLU's symmetric mode: h(T_s) may make it indefinite
             return algebra.factor(jacobian, True)
         if self.definite_chord:
-            scale = system.nodal_conductivity(u)
+            scale = nodal_conductivity(system, u)
             factor = algebra.factor(symmetric_scaled(jacobian, scale), True, "cholesky")
             if getattr(factor, "solver", None) == "cholesky":  # else P was not definite
                 return ScaledFactor(factor, scale[system.free_dofs])

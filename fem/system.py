@@ -330,19 +330,6 @@ class ConductionSystem:
             )
         return total.tocsr()
 
-    def nodal_conductivity(self, temperature: np.ndarray) -> np.ndarray:
-        """k at each node at the nodal ``temperature`` (W/(m·K)): its region's (the smaller
-        principal value of an orthotropic one), the larger where regions meet."""
-        scale = np.zeros(self.size)
-        for region, nodes in self._region_nodes.items():
-            k = self.model.materials[region].conductivity_at(temperature[nodes])
-            scale[nodes] = np.maximum(scale[nodes], k)
-        return scale
-
-    @cached_property
-    def _region_nodes(self) -> dict[str, np.ndarray]:
-        return {region: np.unique(b.element_dofs) for region, b in self.region_bases.items()}
-
     def _conduction(self, temperature: np.ndarray) -> np.ndarray:
         if self._constant_conductivity:
             return self.stiffness @ temperature

@@ -1,4 +1,5 @@
-"""Symmetric factorisations of Newton tangents that are not symmetric themselves.
+"""Newton tangents that need no LU or no refactorisation: the symmetric chord for k(T), and
+the surface's exact terms bordered onto a kept factorisation (:class:`BoundaryCorrection`).
 
 With k(T) by product approximation (:mod:`fem.nonlinear_assembly`) the step's tangent is
 
@@ -99,6 +100,55 @@ class BoundaryCorrection:
         load = np.zeros_like(y)
         load[self.surface] = self._delta @ on_surface
         return y - self.factor.solve(load)
+
+
+def bordered_surface(system, adaptive: bool, largest: int) -> np.ndarray | None:
+    """Positions among the free degrees of freedom of the surface nodes whose tangent a
+    :class:`BoundaryCorrection` corrects, or None: for fixed steps (not ``adaptive``: a step
+    size of its own every step would cost |S| solves each) of a model nonlinear only at its
+    surface (constant k and ρc), with at most ``largest`` such nodes."""
+    constant_k = all(isinstance(m.conductivity, float) for m in system.model.materials.values())
+    if adaptive or not (system.constant_capacity and constant_k):
+        return None
+    position = np.full(system.size, -1, dtype=np.int64)
+    position[system.free_dofs] = np.arange(system.free_dofs.size)
+    surface = position[system.nonlinear_surface_nodes]
+    surface = surface[surface >= 0]
+    if surface.size == 0 or surface.size > largest:
+        return None
+    return surface
+
+
+class SurfaceRestriction:
+    """A matrix on the surface nodes S × S, its entries picked by positions found once for
+    its pattern (the edge's, the same every call), not by sparse slicing.
+
+    Parameters
+    ----------
+    nodes : ndarray of int
+        The degrees of freedom of S, in the order of the bordered system.
+    """
+
+    def __init__(self, nodes: np.ndarray):
+        self.nodes = nodes
+        self._known = None  # (indptr, indices, picked positions, the S × S pattern)
+
+    def __call__(self, matrix: sp.csr_matrix) -> sp.csr_matrix:
+        known = self._known
+        if known is None or not (
+            np.array_equal(known[0], matrix.indptr) and np.array_equal(known[1], matrix.indices)
+        ):
+            numbered = sp.csr_matrix(
+                (np.arange(1, matrix.nnz + 1, dtype=float), matrix.indices, matrix.indptr),
+                shape=matrix.shape,
+            )[self.nodes][:, self.nodes]
+            numbered.sort_indices()
+            pick = numbered.data.astype(np.int64) - 1
+            known = (matrix.indptr.copy(), matrix.indices.copy(), pick, numbered)
+            self._known = known
+        _, _, pick, numbered = known
+        entries = (matrix.data[pick], numbered.indices, numbered.indptr)
+        return sp.csr_matrix(entries, shape=numbered.shape)
 
 
 INNER_TOLERANCE = 1e-13  # relative residual of the bordered |S|×|S| system
