@@ -7,12 +7,18 @@ kept tangent is given ``GRACE`` iterations in a step (unless it makes the change
 that it is refactorised at the current iterate when it shrinks the change by less than
 ``TANGENT_RATE`` or when the iterations it would still need cost more than a factorisation at
 the run's measured prices. A step then costs a few solves instead of a factorisation per
-iteration.
+iteration. The tangent is kept as J/β, keyed by a0/(β·h), so steps of equal a0/(β·h) (a
+backward-Euler half step and a Crank–Nicolson step) share it. With k(T) and a constant capacity
+it is the symmetric chord of :mod:`fem.tangents`, by Cholesky; a model nonlinear only at its
+surface (fixed steps) keeps the tangent without the surface's terms and adds them exactly at
+every iterate (:class:`fem.tangents.BoundaryCorrection`): Newton's method, no refactorisation.
 
 A step has converged when the change is below ``newton_tolerance`` or, at the rate the changes
 shrink, the changes still to come are (Hairer & Wanner's test), and the heat the residual
 leaves unbalanced is within ``BALANCE_SHARE`` of the tolerance times the part's heat capacity,
-so that an early stop cannot spoil the run's energy balance.
+so that an early stop cannot spoil the run's energy balance. After an update below
+``CLOSING_CHANGE`` tolerances the balance is closed by a uniform shift of at most
+``CLOSING_SHIFT`` tolerances (:meth:`NewtonStep._close_balance`) rather than by more solves.
 
 Each update is damped by a line search on the residual's norm (Armijo's test, step lengths
 halved): a full update that does not lower the residual is first retried with a fresh tangent
