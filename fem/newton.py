@@ -61,6 +61,9 @@ CLOSING_SHIFT = 1e-2  # ... by a shift of at most this many tolerances (uniform 
 # solves (10k-1M unknowns), so 1000 is about what a quench's 30 refactorisations cost.
 BORDERED_NODES = 1000
 BORDERED_KEPT = 3  # bordered tangents kept: the run's step and a retry's halves
+# Bordered tangents built in a run before it returns to kept chords: a coefficient h(t) that
+# changes every step (a ramp) would otherwise cost a factorisation and |S| solves a step.
+BORDERED_BUILDS = 12
 GRACE = 3  # iterations a kept tangent is given in a step before its rate is judged
 DIVERGING = 2.0  # ... unless it grows the change this much
 TANGENT_RATE = 0.5  # a kept Newton tangent must shrink the change at least this much per iteration
@@ -114,6 +117,7 @@ class NewtonStep:
         )
         if self.surface is not None:
             self._restricted = SurfaceRestriction(run.system.free_dofs[self.surface])
+        self.bordered_builds = 0
         self.bordered: dict = {}  # key → (key, BoundaryCorrection): constant per step size
         self.mixing = AndersonMixing()
         self.rate: float | None = None  # the kept tangent's last rate of convergence
@@ -179,6 +183,7 @@ class NewtonStep:
             slope = float(interior[free][:, free].sum())  # 1ᵀ·J₀·1/β (a secant corrects it)
             self.tangent = (key, BoundaryCorrection(factor, self.surface, free.size), slope)
             self.bordered[key] = self.tangent
+            self.bordered_builds += 1
             while len(self.bordered) > BORDERED_KEPT:
                 self.bordered.pop(next(iter(self.bordered)))
             self.rate = None
@@ -213,6 +218,9 @@ class NewtonStep:
         started, factoring = clock.perf_counter(), cost.factorisation_seconds
         key = (float(f"{formula.a[0] / (formula.beta * step):.12e}"),)
         self.beta = formula.beta  # the tangent is factorised divided by β
+        if self.surface is not None and self.bordered_builds >= BORDERED_BUILDS:
+            self.surface, self.tangent = None, None  # h(t) keeps changing: chords instead
+            self.bordered.clear()
         if self.surface is not None:  # J₀ holds the linear conditions' h(t) exactly
             key += self.run.system.exchange_key(t1 - 1e-9 * step)
         if self.tangent is None or self.tangent[0] != key:
