@@ -7,12 +7,18 @@ kept tangent is given ``GRACE`` iterations in a step (unless it makes the change
 that it is refactorised at the current iterate when it shrinks the change by less than
 ``TANGENT_RATE`` or when the iterations it would still need cost more than a factorisation at
 the run's measured prices. A step then costs a few solves instead of a factorisation per
-iteration.
+iteration. The tangent is kept as J/β, keyed by a0/(β·h), so steps of equal a0/(β·h) (a
+backward-Euler half step and a Crank–Nicolson step) share it. With k(T) and a constant capacity
+it is the symmetric chord of :mod:`fem.tangents`, by Cholesky; a model nonlinear only at its
+surface (fixed steps) keeps the tangent without the surface's terms and adds them exactly at
+every iterate (:class:`fem.tangents.BoundaryCorrection`): Newton's method, no refactorisation.
 
 A step has converged when the change is below ``newton_tolerance`` or, at the rate the changes
 shrink, the changes still to come are (Hairer & Wanner's test), and the heat the residual
 leaves unbalanced is within ``BALANCE_SHARE`` of the tolerance times the part's heat capacity,
-so that an early stop cannot spoil the run's energy balance.
+so that an early stop cannot spoil the run's energy balance. After an update below
+``CLOSING_CHANGE`` tolerances the balance is closed by a uniform shift of at most
+``CLOSING_SHIFT`` tolerances (:meth:`NewtonStep._close_balance`) rather than by more solves.
 
 Each update is damped by a line search on the residual's norm (Armijo's test, step lengths
 halved): a full update that does not lower the residual is first retried with a fresh tangent
@@ -30,12 +36,34 @@ from typing import NoReturn
 
 import numpy as np
 
+from .conditions import Radiation
 from .errors import SolverError
 from .integrators import StepFormula, StepResult
 from .nonlinear_acceleration import AndersonMixing
+from .nonlinear_assembly import nodal_conductivity
 from .stepper import RunContext
+from .tangents import (
+    BoundaryCorrection,
+    ScaledFactor,
+    SurfaceRestriction,
+    bordered_surface,
+    symmetric_scaled,
+)
 
 BALANCE_SHARE = 1e-3  # an early stop's heat defect per step, in tolerance × heat capacity
+BALANCE_SECANTS = 3  # uniform shifts tried to close a step's heat balance
+# ... after an update of at most this many tolerances: the balance's own test of convergence
+# stays in force for larger ones (an update accepted on the last step's rate alone).
+CLOSING_CHANGE = 1e3
+CLOSING_SHIFT = 1e-2  # ... by a shift of at most this many tolerances (uniform error it adds)
+# Surface nodes up to which a surface-only nonlinearity is solved by the bordered tangent
+# instead of refactorising: each costs one solve per step size, and a factorisation 25-110
+# solves (10k-1M unknowns), so 1000 is about what a quench's 30 refactorisations cost.
+BORDERED_NODES = 1000
+BORDERED_KEPT = 3  # bordered tangents kept: the run's step and a retry's halves
+# Bordered tangents built in a run before it returns to kept chords: a coefficient h(t) that
+# changes every step (a ramp) would otherwise cost a factorisation and |S| solves a step.
+BORDERED_BUILDS = 12
 GRACE = 3  # iterations a kept tangent is given in a step before its rate is judged
 DIVERGING = 2.0  # ... unless it grows the change this much
 TANGENT_RATE = 0.5  # a kept Newton tangent must shrink the change at least this much per iteration
@@ -80,7 +108,17 @@ class NewtonStep:
         self.symmetric = all(
             isinstance(m.conductivity, float) for m in run.system.model.materials.values()
         )
-        self.tangent = None  # (key, factor) of the tangent kept for simplified Newton
+        self.tangent = None  # (key, factor of J/β, 1ᵀ·J·1/β) kept for simplified Newton
+        self.beta = 1.0  # the step formula's β: the tangent kept is J/β
+        self.surface = bordered_surface(run.system, run.controls.adaptive, BORDERED_NODES)
+        # Capacity, conduction and radiation (4εσT³ ≥ 0) keep the chord positive definite.
+        self.definite_chord = run.system.constant_capacity and all(
+            c.linear or isinstance(c, Radiation) for _, c in run.system.flowing()
+        )
+        if self.surface is not None:
+            self._restricted = SurfaceRestriction(run.system.free_dofs[self.surface])
+        self.bordered_builds = 0
+        self.bordered: dict = {}  # key → (key, BoundaryCorrection): constant per step size
         self.mixing = AndersonMixing()
         self.rate: float | None = None  # the kept tangent's last rate of convergence
 
@@ -105,32 +143,71 @@ class NewtonStep:
             known = known + (1 - formula.beta) * outflow0
             inflow_old = -float(outflow0.sum())
 
+        last: list = []  # (field, stored heat, outflow, residual) of the latest evaluation
+
         def residual(field):
-            return (
-                formula.a[0] * system.stored(field) / step
-                + known
-                + formula.beta * system.net_outflow(field, inside1)
-            )
+            stored, outflow = system.stored(field), system.net_outflow(field, inside1)
+            r = formula.a[0] * stored / step + known + formula.beta * outflow
+            last[:] = [field.copy(), stored, outflow, r]
+            return r
 
         u = guess.copy()
         system.impose_fixed(u, inside1)
         self._iterate(u, residual, formula, step, t1)
-        outflow1 = system.net_outflow(u, inside1)
-        r = formula.a[0] * system.stored(u) / step + known + formula.beta * outflow1
+        if not (last and np.array_equal(last[0], u)):  # the converged field's is kept
+            residual(u)
+        _, stored1, outflow1, r = last
         reactions = {name: float(r[d].sum()) for name, d in system.fixed_dofs.items()}
         inflow = formula.beta * -float(outflow1.sum())
         inflow += (1 - formula.beta) * inflow_old
         heat = step * (inflow + sum(reactions.values()))
-        return StepResult(u, float(system.stored(u).sum()), heat, reactions)
+        return StepResult(u, float(stored1.sum()), heat, reactions)
+
+    def _linearise(self, u: np.ndarray, formula: StepFormula, step: float, t1: float) -> None:
+        """Give the bordered tangent the surface terms Δ at ``u``."""
+        tangent = self.run.system.surface_tangent(u, t1 - 1e-9 * step).tocsr()
+        self.tangent[1].linearise(self._restricted(tangent))
 
     def _factor(self, u: np.ndarray, formula: StepFormula, step: float, t1: float, key) -> None:
         """Factorise the tangent at ``u`` and keep it under ``key``."""
         system = self.run.system
-        jacobian = (formula.a[0] / step) * system.capacity_tangent(u) + formula.beta * (
-            system.outflow_tangent(u, t1 - 1e-9 * step)
-        )
-        self.tangent = (key, self.run.algebra.factor(jacobian, self.symmetric))
+        free = system.free_dofs
+        # J/β = (a₀/(β·h))·C' + G': one factorisation serves steps of equal a₀/(β·h), as a
+        # backward-Euler half step and a Crank–Nicolson step of the same run.
+        scale = formula.a[0] / (formula.beta * step)
+        if self.surface is not None:  # the surface's terms come each iteration
+            interior = scale * system.capacity_tangent(u) + system.outflow_tangent(
+                u, t1 - 1e-9 * step, remainders=False
+            )
+            factor = self.run.algebra.factor(interior, True, "cholesky")
+            slope = float(interior[free][:, free].sum())  # 1ᵀ·J₀·1/β (a secant corrects it)
+            self.tangent = (key, BoundaryCorrection(factor, self.surface, free.size), slope)
+            self.bordered[key] = self.tangent
+            self.bordered_builds += 1
+            while len(self.bordered) > BORDERED_KEPT:
+                self.bordered.pop(next(iter(self.bordered)))
+            self.rate = None
+            return
+        jacobian = scale * system.capacity_tangent(u) + system.outflow_tangent(u, t1 - 1e-9 * step)
+        slope = float(jacobian[free][:, free].sum())  # 1ᵀ·J·1/β, W/K
+        self.tangent = (key, self._factorised(jacobian, u), slope)
         self.rate = None  # not known for the new tangent
+
+    def _factorised(self, jacobian, u: np.ndarray):
+        """The tangent's factorisation: SuperLU's symmetric mode where it is symmetric; with
+        k(T), a constant capacity and no surface term that can fall with temperature the
+        symmetric chord of :mod:`fem.tangents` by Cholesky; LU otherwise (latent heat makes
+        the chord's capacity error large at the front, and CHOLMOD reports an indefinite
+        matrix on the standard output before it fails)."""
+        algebra, system = self.run.algebra, self.run.system
+        if self.symmetric:  # SuperLU's symmetric mode: h(T_s) may make it indefinite
+            return algebra.factor(jacobian, True)
+        if self.definite_chord:
+            scale = nodal_conductivity(system, u)
+            factor = algebra.factor(symmetric_scaled(jacobian, scale), True, "cholesky")
+            if getattr(factor, "solver", None) == "cholesky":  # else P was not definite
+                return ScaledFactor(factor, scale[system.free_dofs])
+        return algebra.factor(jacobian, False)
 
     def _iterate(self, u, residual, formula: StepFormula, step: float, t1: float) -> None:
         """Damped, accelerated simplified Newton iterations on the free degrees of freedom of
@@ -139,8 +216,16 @@ class NewtonStep:
         controls, cost = self.run.controls, self.run.cost
         free = self.run.system.free_dofs
         started, factoring = clock.perf_counter(), cost.factorisation_seconds
-        key = (float(f"{formula.a[0] / step:.12e}"), formula.beta)
+        key = (float(f"{formula.a[0] / (formula.beta * step):.12e}"),)
+        self.beta = formula.beta  # the tangent is factorised divided by β
+        if self.surface is not None and self.bordered_builds >= BORDERED_BUILDS:
+            self.surface, self.tangent = None, None  # h(t) keeps changing: chords instead
+            self.bordered.clear()
+        if self.surface is not None:  # J₀ holds the linear conditions' h(t) exactly
+            key += self.run.system.exchange_key(t1 - 1e-9 * step)
         if self.tangent is None or self.tangent[0] != key:
+            self.tangent = self.bordered.get(key)  # a step size seen before (a retry)
+        if self.tangent is None:
             self._factor(u, formula, step, t1, key)
         self.mixing.reset()
         fresh = True  # the kept tangent was factorised at the current iterate
@@ -152,7 +237,11 @@ class NewtonStep:
         tolerance = controls.newton_tolerance  # K
         while iteration < controls.max_newton_iterations:
             iteration += 1
-            change = self.tangent[1].solve(-r[free])
+            if self.surface is not None:  # Newton's tangent, exactly, at every iterate
+                self._linearise(u, formula, step, t1)
+                self.mixing.reset()
+                fresh, kept = True, 0
+            change = self.tangent[1].solve(-r[free]) / self.beta
             largest = float(np.abs(change).max(initial=0.0))
             if not math.isfinite(previous) and self.rate:
                 previous = largest / self.rate  # a step's first change: the last step's rate
@@ -160,6 +249,8 @@ class NewtonStep:
                 self.mixing.update(u[free], change)
                 u[free] += change
                 r = residual(u)
+                if largest <= CLOSING_CHANGE * tolerance and not self._balanced(r, formula, step):
+                    r = self._close_balance(u, r, residual, formula, step)
                 if self._balanced(r, formula, step):
                     self.rate = largest / previous if math.isfinite(previous) else None
                     break
@@ -215,6 +306,9 @@ class NewtonStep:
     def _renew(self, u, formula: StepFormula, step: float, t1: float, key) -> bool:
         """Refactorise the tangent at ``u``; the mixing starts again, since its updates came
         from the old tangent. True (the tangent is fresh)."""
+        if self.surface is not None:  # renewed at every iterate anyway
+            self.mixing.reset()
+            return True
         self._factor(u, formula, step, t1, key)
         self.mixing.reset()
         return True
@@ -223,7 +317,7 @@ class NewtonStep:
         """Refactorise the tangent at ``u`` and return Newton's update there with its largest
         entry (K)."""
         self._renew(u, formula, step, t1, key)
-        change = self.tangent[1].solve(-r[self.run.system.free_dofs])
+        change = self.tangent[1].solve(-r[self.run.system.free_dofs]) / self.beta
         return change, float(np.abs(change).max(initial=0.0))
 
     @staticmethod
@@ -246,6 +340,35 @@ class NewtonStep:
         defect = abs(float(r[self.run.system.free_dofs].sum())) * step / formula.a[0]
         capacity = float(self.run.capacity_columns.sum())
         return defect <= BALANCE_SHARE * self.run.controls.newton_tolerance * capacity
+
+    def _close_balance(self, u, r, residual, formula: StepFormula, step: float) -> np.ndarray:
+        """Close the step's heat balance by a uniform shift of the free temperatures, the
+        residual's sum being the heat left unbalanced: the coarse correction on the constant
+        vector (Nicolaides, "Deflation of conjugate gradients with applications to boundary
+        value problems", *SIAM J. Numer. Anal.* 24, 1987, from memory), by secants on
+        Σr(u + δ·1) from the kept tangent's 1ᵀ·J·1. The shift is far below the tolerance (it
+        is the defect over the whole capacity), and a few residuals replace the several solves
+        the kept tangent would need to close the balance by itself. The residual at ``u``
+        (shifted in place) is returned."""
+        free = self.run.system.free_dofs
+        slope, shift = self.beta * self.tangent[2], 0.0
+        defect = float(r[free].sum())
+        for _ in range(BALANCE_SECANTS):
+            if (
+                not slope > 0
+                or abs(defect / slope) > CLOSING_SHIFT * self.run.controls.newton_tolerance
+            ):
+                break  # a shift that large would be an error of its own: iterate on
+            move = -defect / slope
+            u[free] += move
+            shift += move
+            r = residual(u)
+            if self._balanced(r, formula, step):
+                break
+            remaining = float(r[free].sum())
+            slope = (defect - remaining) / -move if move else slope
+            defect = remaining
+        return r
 
     def _stale(self, change: float, previous: float, tolerance: float, kept: int) -> bool:
         """Whether to refactorise a kept tangent that shrank the update from ``previous`` to

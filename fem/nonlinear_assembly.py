@@ -62,6 +62,18 @@ class RegionProducts:
         return _scaled(self._stiffness, values)
 
 
+def nodal_conductivity(system, temperature: np.ndarray) -> np.ndarray:
+    """k at each node of ``system`` at the nodal ``temperature`` (W/(m·K)): its region's (the
+    smaller principal value of an orthotropic one), the larger where regions meet. Called
+    once per factorisation, so the regions' nodes are found here each time."""
+    scale = np.zeros(system.size)
+    for region, basis in system.region_bases.items():
+        nodes = np.unique(basis.element_dofs)
+        k = system.model.materials[region].conductivity_at(temperature[nodes])
+        scale[nodes] = np.maximum(scale[nodes], k)
+    return scale
+
+
 def _scaled(unit, values: np.ndarray) -> sp.csr_matrix:
     """The full unit matrix with the column of the region's k-th node scaled by values[k]."""
     _, columns, matrix = unit

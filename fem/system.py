@@ -280,16 +280,39 @@ class ConductionSystem:
                 g += remainder
         return g
 
-    def outflow_tangent(self, temperature: np.ndarray, time: float) -> sp.csr_matrix:
-        """dG/dT (W/K)."""
+    def outflow_tangent(
+        self, temperature: np.ndarray, time: float, remainders: bool = True
+    ) -> sp.csr_matrix:
+        """dG/dT (W/K); without the nonlinear conditions' terms unless ``remainders``."""
         total = self.exchange_operator(time)
         if not self._constant_conductivity:
             total = total - self.stiffness + self.conduction_tangent(temperature)
+        if remainders:
+            surface = self.surface_tangent(temperature, time)
+            if surface is not None:
+                total = total + surface
+        return total.tocsr()
+
+    def surface_tangent(self, temperature: np.ndarray, time: float) -> sp.csr_matrix | None:
+        """The nonlinear conditions' part of dG/dT (W/K), nonzero on
+        :attr:`nonlinear_surface_nodes` only; None without such conditions."""
+        total = None
         for edge, condition in self.flowing():
             tangent = condition.outflow_tangent(edge, temperature, time)
             if tangent is not None:
-                total = total + tangent
-        return total.tocsr()
+                total = tangent if total is None else total + tangent
+        return total
+
+    @cached_property
+    def nonlinear_surface_nodes(self) -> np.ndarray:
+        """Degrees of freedom of the edge groups with a nonlinear condition (radiation,
+        h(T_s)): where the tangent changes with the surface temperature."""
+        nodes = [
+            np.unique(edge.exchange_matrix.nonzero()[0])
+            for edge in self.edges.values()
+            if any(not c.linear for c in edge.conditions)
+        ]
+        return np.unique(np.concatenate(nodes)) if nodes else np.empty(0, dtype=np.int64)
 
     def conduction_tangent(self, temperature: np.ndarray) -> sp.csr_matrix:
         """d(conduction)/dT at the nodal ``temperature`` (W/K): K itself for constant k; at a
@@ -367,8 +390,11 @@ class ConductionSystem:
         )
 
     @property
-    def _constant_capacity(self) -> bool:
+    def constant_capacity(self) -> bool:
+        """ρc is one number in every region."""
         return all(m.constant_capacity for m in self.model.materials.values())
+
+    _constant_capacity = constant_capacity
 
     @property
     def _constant_conductivity(self) -> bool:
