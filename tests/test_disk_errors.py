@@ -19,6 +19,7 @@ import advisor.folder_room as folder_room
 import advisor.pipeline as pipeline
 import advisor.results_folder as results_folder
 import advisor.writers.pictures as pictures
+import advisor.writers.side_by_side as side_by_side
 from advisor import assess, write_results
 from advisor.casefile.starters import starter_text
 from advisor.cli import EXIT_FAILED, EXIT_OK, main
@@ -84,7 +85,13 @@ def test_a_full_disk_in_any_writer_leaves_nothing(writer, assessment, tmp_path, 
     assert list(tmp_path.iterdir()) == []  # no staging folder, no lock, no results
 
 
-def test_the_command_line_says_it_in_one_line_and_keeps_nothing(tmp_path, monkeypatch, capsys):
+@pytest.mark.parametrize("beside", [True, False], ids=["pictures-beside", "one-after-other"])
+def test_the_command_line_says_it_in_one_line_and_keeps_nothing(
+    beside, tmp_path, monkeypatch, capsys
+):
+    """With the pictures drawn in another process (a free core) the failure here must wait
+    for it, or it would still be writing into the folder being removed."""
+    monkeypatch.setattr(side_by_side, "cores_free", lambda: beside)
     case = small_case(tmp_path)
     monkeypatch.setattr(results_folder, "write_vtk_series", no_space)
     status = main(["-q", "run", str(case), "--out", str(tmp_path / "out")])

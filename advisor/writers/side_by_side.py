@@ -109,9 +109,6 @@ class WarmWriter:
         """``function(*arguments)`` there while ``here()`` runs here; both results. A
         process that can no longer be handed the task (it ended) leaves it to run here."""
         self._used = True
-        if self._given:  # the process has it already and is drawing
-            mine = here()
-            return self._answer(), mine
         refused: list[BaseException] = []
 
         def send() -> None:  # in a thread: the process may still be loading
@@ -120,13 +117,33 @@ class WarmWriter:
             except Exception as error:  # noqa: BLE001 - gone, or a task that does not pickle
                 refused.append(error)
 
-        sender = threading.Thread(target=send, daemon=True)
-        sender.start()
-        mine = here()
-        sender.join()
+        sender = None
+        if not self._given:  # else the process has it already and is drawing
+            sender = threading.Thread(target=send, daemon=True)
+            sender.start()
+        try:
+            mine = here()
+        except BaseException:
+            # The other process writes into the same folder, which the caller removes on
+            # this error: let it finish first, or it would write into a folder being removed.
+            self._settle(sender, refused)
+            raise
+        if sender is not None:
+            sender.join()
         if refused:
             return function(*arguments), mine
         return self._answer(), mine
+
+    def _settle(self, sender: threading.Thread | None, refused: list) -> None:
+        """Wait for the task's end (its result or error dropped) after an error here."""
+        if sender is not None:
+            sender.join()
+        if refused:
+            return
+        try:
+            self._connection.recv()
+        except (EOFError, OSError):
+            pass
 
     def _answer(self):
         """The task's result from the process, or its error raised here."""
