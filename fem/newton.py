@@ -39,6 +39,7 @@ import numpy as np
 from .conditions import Radiation
 from .errors import SolverError
 from .integrators import StepFormula, StepResult
+from .linalg import KeptOrderLU
 from .nonlinear_acceleration import AndersonMixing
 from .nonlinear_assembly import nodal_conductivity
 from .stepper import RunContext
@@ -120,6 +121,7 @@ class NewtonStep:
         self.bordered_builds = 0
         self.bordered: dict = {}  # key → (key, BoundaryCorrection): constant per step size
         self.mixing = AndersonMixing()
+        self.kept_order = KeptOrderLU(run.algebra)  # unsymmetric tangents: ordered once
         self.rate: float | None = None  # the kept tangent's last rate of convergence
 
     def solve(
@@ -207,7 +209,7 @@ class NewtonStep:
             factor = algebra.factor(symmetric_scaled(jacobian, scale), True, "cholesky")
             if getattr(factor, "solver", None) == "cholesky":  # else P was not definite
                 return ScaledFactor(factor, scale[system.free_dofs])
-        return algebra.factor(jacobian, False)
+        return self.kept_order.factor(jacobian)
 
     def _iterate(self, u, residual, formula: StepFormula, step: float, t1: float) -> None:
         """Damped, accelerated simplified Newton iterations on the free degrees of freedom of
