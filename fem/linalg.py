@@ -374,7 +374,7 @@ class KeptOrderLU:
 
     def __init__(self, algebra: LinearAlgebra):
         self.algebra = algebra
-        self._kept: tuple[np.ndarray, np.ndarray, np.ndarray] | None = None  # pattern, order
+        self._kept: tuple | None = None  # the block's pattern, the order, the permuted pattern
 
     def factor(self, matrix: sp.spmatrix):
         """A factorisation of the free block of ``matrix``: an object with ``solve(rhs)``."""
@@ -386,12 +386,17 @@ class KeptOrderLU:
         if block.shape[0] >= NESTED_DISSECTION_FROM:
             factor = _unsymmetric_lu(block)
         elif kept is not None and _same_pattern(block, kept[0], kept[1]):
-            order = kept[2]
+            indptr, indices, order, pick, permuted_indptr, permuted_indices = kept
+            permuted = sp.csc_matrix(
+                (block.data[pick], permuted_indices, permuted_indptr), shape=block.shape
+            )
             factor = PermutedFactor(
                 spla.splu(
-                    block[order][:, order].tocsc(),
+                    permuted,
                     permc_spec="NATURAL",
                     diag_pivot_thresh=0.1,
+                    relax=1,
+                    panel_size=1,
                     options={"SymmetricMode": True},
                 ),
                 order,
@@ -399,7 +404,8 @@ class KeptOrderLU:
         else:
             factor = _unsymmetric_lu(block)
             order = np.argsort(factor.perm_c)  # the columns in the order they were factorised
-            self._kept = (block.indptr.copy(), block.indices.copy(), order)
+            pattern = (block.indptr.copy(), block.indices.copy())
+            self._kept = (*pattern, order, *_permuted(block, order))
         self.algebra.cost.factorisations += 1
         self.algebra.cost.factorisation_seconds += clock.perf_counter() - started
         return factor
@@ -407,3 +413,15 @@ class KeptOrderLU:
 
 def _same_pattern(block: sp.csr_matrix, indptr: np.ndarray, indices: np.ndarray) -> bool:
     return np.array_equal(block.indptr, indptr) and np.array_equal(block.indices, indices)
+
+
+def _permuted(block: sp.csr_matrix, order: np.ndarray):
+    """Where each entry of the CSC matrix ``block[order][:, order]`` comes from in
+    ``block.data``, and that matrix's pattern: a block of the same pattern is then permuted by
+    one gather instead of two slicings."""
+    numbered = sp.csr_matrix(
+        (np.arange(1, block.nnz + 1, dtype=float), block.indices, block.indptr),
+        shape=block.shape,
+    )[order][:, order].tocsc()
+    numbered.sort_indices()
+    return numbered.data.astype(np.int64) - 1, numbered.indptr, numbered.indices

@@ -122,6 +122,8 @@ class NewtonStep:
         self.bordered: dict = {}  # key → (key, BoundaryCorrection): constant per step size
         self.mixing = AndersonMixing()
         self.kept_order = KeptOrderLU(run.algebra)  # unsymmetric tangents: ordered once
+        self._free_ones = np.zeros(run.system.size)  # 1 on the free degrees of freedom
+        self._free_ones[run.system.free_dofs] = 1.0
         self.rate: float | None = None  # the kept tangent's last rate of convergence
 
     def solve(
@@ -191,7 +193,7 @@ class NewtonStep:
             self.rate = None
             return
         jacobian = scale * system.capacity_tangent(u) + system.outflow_tangent(u, t1 - 1e-9 * step)
-        slope = float(jacobian[free][:, free].sum())  # 1ᵀ·J·1/β, W/K
+        slope = float(self._free_ones @ (jacobian @ self._free_ones))  # 1ᵀ·J·1/β, W/K
         self.tangent = (key, self._factorised(jacobian, u), slope)
         self.rate = None  # not known for the new tangent
 

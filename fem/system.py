@@ -243,7 +243,8 @@ class ConductionSystem:
         total = self._constant_parts[1]
         for operator, material in self._storing:
             t = operator.interpolate(temperature)
-            total = total + operator.mass(material.heat_capacity_at(t))
+            mass = operator.mass(material.heat_capacity_at(t))
+            total = mass if total.nnz == 0 else total + mass  # no sum with an empty matrix
         return total.tocsr()
 
     @cached_property
@@ -284,9 +285,14 @@ class ConductionSystem:
         self, temperature: np.ndarray, time: float, remainders: bool = True
     ) -> sp.csr_matrix:
         """dG/dT (W/K); without the nonlinear conditions' terms unless ``remainders``."""
-        total = self.exchange_operator(time)
-        if not self._constant_conductivity:
-            total = total - self.stiffness + self.conduction_tangent(temperature)
+        if self._constant_conductivity:
+            total = self.exchange_operator(time)
+        else:  # K(T) and the exchange, not K + exchange − K: two sums fewer
+            total = self.conduction_tangent(temperature)
+            for edge, condition in self.flowing():
+                h = condition.exchange_coefficient(time)
+                if h:
+                    total = total + h * edge.exchange_matrix
         if remainders:
             surface = self.surface_tangent(temperature, time)
             if surface is not None:
@@ -322,7 +328,8 @@ class ConductionSystem:
         total = self._constant_parts[0]
         for products in self.products.values():
             if products.varying_conductivity:
-                total = total + products.conduction_tangent(temperature)
+                tangent = products.conduction_tangent(temperature)
+                total = tangent if total.nnz == 0 else total + tangent
         for operator, material in self._tensor_conducting:
             t = operator.interpolate(temperature)
             total = total + operator.conduction_tangent(
