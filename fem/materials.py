@@ -139,7 +139,8 @@ def _clamped_integral(table: PropertyTable, t: np.ndarray) -> np.ndarray:
     piecewise quadratic, without a search."""
     tt, vv, cumulative, slopes, _, ramps = _table_arrays(table)
     if ramps is not None and np.ndim(t) > 0:
-        total = vv[0] * (t - tt[0])
+        total = t - float(tt[0])  # Python floats: a NumPy scalar times an array took 10x
+        total *= float(vv[0])
         for knot, change in ramps:
             part = t - knot  # in place from here: each pass over the points counts
             np.maximum(part, 0.0, out=part)
