@@ -26,6 +26,7 @@ from .interfaces import interface_stiffness
 from .model import ThermalModel
 from .nonlinear_assembly import RegionProducts
 from .quadrature import EdgeTerms, QuadratureOperator, remembered
+from .stored_heat import PointEnthalpy
 
 ENTHALPY_REFERENCE = 0.0  # °C: H(T) = ∫ρc dT from here; differences are all that matter
 
@@ -231,10 +232,18 @@ class ConductionSystem:
 
     def _stored(self, temperature: np.ndarray) -> np.ndarray:
         total = self._constant_parts[1] @ temperature
-        for operator, material in self._storing:
-            t = operator.interpolate(temperature)
-            total += operator.integrate(material.enthalpy(t, ENTHALPY_REFERENCE))
+        for (operator, _), enthalpy in zip(self._storing, self._point_enthalpies, strict=True):
+            total += operator.integrate(enthalpy(operator.interpolate(temperature)))
         return total
+
+    @cached_property
+    def _point_enthalpies(self) -> tuple[PointEnthalpy, ...]:
+        """The enthalpy of each region of :attr:`_storing` at its quadrature points, into
+        buffers kept for the run (:mod:`fem.stored_heat`)."""
+        return tuple(
+            PointEnthalpy(material, ENTHALPY_REFERENCE, operator.values.shape[0])
+            for operator, material in self._storing
+        )
 
     def capacity_tangent(self, temperature: np.ndarray) -> sp.csr_matrix:
         """dC/dT: ∫ ρc(T) φ_j φ_i dV (J/K)."""

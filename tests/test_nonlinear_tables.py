@@ -11,7 +11,9 @@ residual evaluates at every quadrature point, against quadratures computed here.
 - The enthalpy with latent heat L released by S(T) = 3x² − 2x³ over the freezing range
   (``fem.enthalpy``): its difference between two temperatures against the quadrature of the
   volumetric heat capacity ρ·(c(T) + L·S'(T)), S' = 6x(1 − x)/ΔT written out here; and the
-  whole latent heat ρ·L released across the range, as the definition of S requires.
+  whole latent heat ρ·L released across the range, as the definition of S requires. The same
+  for the evaluator a residual uses at the quadrature points (``fem.stored_heat``), with c a
+  table and a constant, and with an enthalpy table (handed to the material).
 """
 
 from __future__ import annotations
@@ -20,7 +22,8 @@ import numpy as np
 import pytest
 from scipy.integrate import quad
 
-from fem import Material, PropertyTable
+from fem import EnthalpyTable, Material, PropertyTable
+from fem.stored_heat import PointEnthalpy
 
 FOUR = PropertyTable((-60.0, -1.5, -0.5, 60.0), (1.6, 1.6, 0.5, 0.5))
 TWELVE = PropertyTable(
@@ -28,6 +31,7 @@ TWELVE = PropertyTable(
     tuple((52.0 - 0.02 * np.linspace(20.0, 1200.0, 12) + 3.0 * np.sin(np.arange(12))).tolist()),
 )
 STEEP = PropertyTable((0.0, 1000.0, 1000.1, 2000.0), (1.0, 1.0, 400.0, 400.0))
+FOOD_HEAT = PropertyTable((-60.0, -1.5, -0.5, 60.0), (1900.0, 1900.0, 3700.0, 3700.0))
 TEMPERATURES = np.array([-80.0, -60.0, -10.0, -1.5, -1.2, -0.5, 0.0, 20.0, 60.0, 75.0])
 
 
@@ -58,9 +62,9 @@ def test_table_integral_matches_quadrature(table, shift, reference):
         assert float(table.integral(t, reference)) == pytest.approx(e, abs=1e-9 * scale)
 
 
-def test_enthalpy_with_latent_heat_matches_quadrature():
+@pytest.mark.parametrize("heat", [FOOD_HEAT, 2800.0], ids=["c table", "c constant"])
+def test_enthalpy_with_latent_heat_matches_quadrature(heat):
     solidus, liquidus, latent, density = -1.5, -0.5, 2.8e5, 1050.0
-    heat = PropertyTable((-60.0, -1.5, -0.5, 60.0), (1900.0, 1900.0, 3700.0, 3700.0))
     material = Material(
         FOUR, density, heat, latent_heat=latent, solidus=solidus, liquidus=liquidus
     )
@@ -68,16 +72,35 @@ def test_enthalpy_with_latent_heat_matches_quadrature():
     def capacity(t: float) -> float:
         x = min(max((t - solidus) / (liquidus - solidus), 0.0), 1.0)
         release = 6.0 * x * (1.0 - x) / (liquidus - solidus)
-        return density * (float(np.interp(t, heat.temperatures, heat.values)) + latent * release)
+        c = np.interp(t, FOOD_HEAT.temperatures, FOOD_HEAT.values) if heat == FOOD_HEAT else heat
+        return density * (float(c) + latent * release)
 
     reference = -20.0
-    computed = material.enthalpy(TEMPERATURES, reference)
     expected = [
         quad(capacity, reference, t, points=[solidus, liquidus], limit=200, epsabs=0.0)[0]
         for t in TEMPERATURES
     ]
     scale = density * (latent + 3700.0 * 100.0)
-    assert np.allclose(computed, expected, rtol=0.0, atol=1e-9 * scale)
+    points = PointEnthalpy(material, reference, TEMPERATURES.size)
+    assert points.fast
+    for computed in (material.enthalpy(TEMPERATURES, reference), points(TEMPERATURES.copy())):
+        assert np.allclose(computed, expected, rtol=0.0, atol=1e-9 * scale)
+
+
+def test_the_whole_latent_heat_is_released_across_the_range():
+    solidus, liquidus, latent, density = -1.5, -0.5, 2.8e5, 1050.0
+    material = Material(
+        FOUR, density, FOOD_HEAT, latent_heat=latent, solidus=solidus, liquidus=liquidus
+    )
     across = material.enthalpy(np.array([liquidus]), solidus)[0]
-    sensible = density * _quadrature(heat, solidus, liquidus)
+    sensible = density * _quadrature(FOOD_HEAT, solidus, liquidus)
     assert across - sensible == pytest.approx(density * latent, rel=1e-12)
+
+
+def test_point_enthalpy_of_an_enthalpy_table_matches_its_values():
+    table = EnthalpyTable((-10.0, -1.0, 0.0, 10.0), (0.0, 1.9e4, 3.5e5, 3.9e5))  # J/kg
+    material = Material.from_enthalpy(0.5, 1000.0, table)
+    points = PointEnthalpy(material, -10.0, 4)
+    assert not points.fast
+    computed = points(np.array(table.temperatures))
+    assert np.allclose(computed, 1000.0 * np.array(table.values), rtol=1e-12, atol=1e-3)
