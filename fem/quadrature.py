@@ -98,7 +98,12 @@ class QuadratureOperator:
 
     def integrate(self, value) -> np.ndarray:
         """∫ f φ_i for ``value`` f at the quadrature points (flat or (elements, points))."""
-        return self.transposed @ (self.weights * np.ravel(value))
+        return self._weighted_transposed @ np.ravel(value)
+
+    @cached_property
+    def _weighted_transposed(self) -> sp.csr_matrix:
+        """Vᵀ·diag(w): the weights folded into the scatter once, not multiplied every call."""
+        return (self.transposed @ sp.diags(self.weights)).tocsr()
 
     @cached_property
     def _scatter(self):

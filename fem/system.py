@@ -231,7 +231,7 @@ class ConductionSystem:
         return remembered(self, "_stored_memo", temperature, self._stored)
 
     def _stored(self, temperature: np.ndarray) -> np.ndarray:
-        total = self._constant_parts[1] @ temperature
+        total = _product(self._constant_parts[1], temperature)
         for (operator, _), enthalpy in zip(self._storing, self._point_enthalpies, strict=True):
             total += operator.integrate(enthalpy(operator.interpolate(temperature)))
         return total
@@ -352,7 +352,7 @@ class ConductionSystem:
         return remembered(self, "_conduction_memo", temperature, self._conduction_of)
 
     def _conduction_of(self, temperature: np.ndarray) -> np.ndarray:
-        total = self._constant_parts[0] @ temperature
+        total = _product(self._constant_parts[0], temperature)
         for products in self.products.values():
             if products.varying_conductivity:
                 total += products.conduction(temperature)
@@ -415,3 +415,9 @@ class ConductionSystem:
     @property
     def _constant_conductivity(self) -> bool:
         return all(isinstance(m.conductivity, float) for m in self.model.materials.values())
+
+
+def _product(matrix: sp.csr_matrix, vector: np.ndarray) -> np.ndarray:
+    """matrix·vector, skipping the product when the matrix is empty (no region with constant
+    k or ρc): a sparse product still visits every row."""
+    return matrix @ vector if matrix.nnz else np.zeros(matrix.shape[0])
