@@ -39,7 +39,7 @@ import numpy as np
 from .conditions import Radiation
 from .errors import SolverError
 from .integrators import StepFormula, StepResult
-from .linalg import KeptOrderLU
+from .linalg import NESTED_DISSECTION_FROM, KeptOrderLU
 from .nonlinear_acceleration import AndersonMixing
 from .nonlinear_assembly import nodal_conductivity
 from .stepper import RunContext
@@ -198,14 +198,25 @@ class NewtonStep:
         self.rate = None  # not known for the new tangent
 
     def _factorised(self, jacobian, u: np.ndarray):
-        """The tangent's factorisation: SuperLU's symmetric mode where it is symmetric; with
-        k(T), a constant capacity and no surface term that can fall with temperature the
-        symmetric chord of :mod:`fem.tangents` by Cholesky; LU otherwise (latent heat makes
-        the chord's capacity error large at the front, and CHOLMOD reports an indefinite
-        matrix on the standard output before it fails)."""
+        """The tangent's factorisation: with k(T), a constant capacity and no surface term
+        that can fall with temperature the symmetric chord of :mod:`fem.tangents` by
+        Cholesky (a run of such steps factorises once or twice); otherwise SuperLU's LU in
+        the order kept from the run's first tangent (:class:`fem.linalg.KeptOrderLU`), or its
+        symmetric mode on nested dissection for a symmetric tangent from
+        ``NESTED_DISSECTION_FROM`` unknowns.
+
+        Latent heat stays with LU: a symmetric approximate tangent by Cholesky (sym(J), or the
+        chord above) was measured slower on the benchmark's freezing block at 10k nodes, since
+        a front refactorises every second step (about 13 solves a factorisation) and CHOLMOD's
+        factorisation, ordering included every time, took 38 ms against 14.5 ms for the kept
+        order's LU, which its solves (0.3 against 0.65 ms) do not repay; sym(J) also took
+        16 % more iterations. And the chord's capacity error is large at the front, where
+        CHOLMOD reports an indefinite matrix on the standard output before it fails."""
         algebra, system = self.run.algebra, self.run.system
-        if self.symmetric:  # SuperLU's symmetric mode: h(T_s) may make it indefinite
-            return algebra.factor(jacobian, True)
+        if self.symmetric and system.free_dofs.size >= NESTED_DISSECTION_FROM:
+            return algebra.factor(jacobian, True)  # SuperLU's symmetric mode, dissected
+        if self.symmetric:  # LU in the kept order: h(T_s) may make it indefinite
+            return self.kept_order.factor(jacobian)
         if self.definite_chord:
             scale = nodal_conductivity(system, u)
             factor = algebra.factor(symmetric_scaled(jacobian, scale), True, "cholesky")
