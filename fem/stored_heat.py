@@ -5,7 +5,7 @@ once or twice an iteration. Written as array expressions it allocates a fresh ar
 points for every intermediate, and an array of half a megabyte taken while another is alive
 costs the page faults of a fresh mapping (measured 130 µs each, beside 10 µs for the
 arithmetic). Here the sensible part (a constant ρc, or a few-point table of c as a sum of
-ramps, :func:`fem.materials._clamped_integral`) and the latent part ρ·L·S(T)
+ramps, :func:`fem.table_integrals.clamped_integral`) and the latent part ρ·L·S(T)
 (:func:`fem.enthalpy.smooth_fraction`) are evaluated pass by pass into two buffers kept on the
 evaluator and the gathered temperatures themselves. Other materials (an enthalpy table, a
 table of many points) take :meth:`fem.materials.Material.enthalpy`.
@@ -15,7 +15,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from .materials import Material, PropertyTable, _table_arrays
+from .materials import Material, PropertyTable
+from .table_integrals import table_arrays
 
 
 class PointEnthalpy:
@@ -34,7 +35,7 @@ class PointEnthalpy:
         self.material, self.reference = material, float(reference)
         heat = material.specific_heat
         if isinstance(heat, PropertyTable):
-            tt, vv, _, _, _, ramps = _table_arrays(heat)
+            tt, vv, _, _, _, ramps = table_arrays(heat)
             self._sensible = None if ramps is None else (float(tt[0]), float(vv[0]), ramps)
         else:
             self._sensible = (self.reference, float(heat), ())

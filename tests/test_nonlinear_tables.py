@@ -5,7 +5,7 @@ residual evaluates at every quadrature point, against quadratures computed here.
   against scipy's adaptive quadrature of ``np.interp`` with the table's points as break
   points: the integrand is linear between them, so Gauss–Kronrod is exact to round-off
   (tolerance 1e-9 of the integral's scale). Three tables take the three paths of
-  ``fem.materials``: four points (a sum of ramps), twelve points (a binary search), and four
+  ``fem.table_integrals``: four points (a sum of ramps), twelve points (a binary search), and four
   points with one steep segment among long ones (the search again, since the ramps would
   cancel); temperatures inside, at the points and beyond both ends.
 - The enthalpy with latent heat L released by S(T) = 3x² − 2x³ over the freezing range
