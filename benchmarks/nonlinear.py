@@ -21,26 +21,29 @@ It prints a table and writes ``benchmarks/results-nonlinear.json``.
 
 Measured at 9,761 nodes, 200 steps, ``--repeat 3``: the tree before the cheaper freezing
 residual and factorisations (extracted with ``git archive``) and after them, run back to back
-on the two-core machine shared with other jobs (``uptime`` load average 0.74 → 0.83 over the
-new run, 0.83 → 0.91 over the old); per-step cost, ratio to the linear twin, Newton
+on the two-core machine shared with other jobs (``uptime`` load average 0.62 → 0.75 over the
+new run, 0.75 → 0.86 over the old); per-step cost, ratio to the linear twin, Newton
 iterations per step, factorisations over the run:
 
 =============  ===============================  ===============================
 case           before                           after
 =============  ===============================  ===============================
-k(T)           3.49 ms, 4.6×, 2.22, 1           2.97 ms, 4.0×, 2.22, 1
-latent heat    43.0 ms, 57×, 6.20, 100          27.1 ms, 36×, 6.20, 100
-h(T_s)         5.24 ms, 7.0×, 1.97, 3           5.21 ms, 6.9×, 1.97, 3
+k(T)           3.40 ms, 4.5×, 2.22, 1           3.01 ms, 4.0×, 2.22, 1
+latent heat    41.1 ms, 57×, 6.20, 100          25.4 ms, 34×, 6.24, 99
+h(T_s)         5.05 ms, 7.0×, 1.97, 3           5.15 ms, 7.0×, 1.97, 3
 =============  ===============================  ===============================
 
-The linear twins took 0.75–0.77 ms a step in both runs. What did it, for latent heat (in a
-cProfile of the run, 9.3 s → 5.7 s): the enthalpy at the 57k quadrature points (two property
+The linear twins took 0.72–0.75 ms a step in both runs (an earlier pair of runs that day:
+latent heat 43.0 → 27.1 ms, 57× → 36×; at 1,035 nodes 5.15 → 3.17 ms, 57× → 35×; at 38k
+nodes, 100 steps, one run each, 348 → 206 ms, 74× → 37×). What did it, for latent heat (in a
+cProfile of the run, 9.3 s → 5.6 s): the enthalpy at the 57k quadrature points (two property
 integrals a residual, 2.2 s) as a sum of ramps for few-point tables instead of a binary search,
 evaluated pass by pass into buffers kept for the run (:mod:`fem.stored_heat`; a NumPy scalar
 times an array, and a second live array of the points, each cost 10× the arithmetic), 0.5 s
 now; the unsymmetric tangent factorised in the order of the run's first one with SuperLU's
 supernodes unrelaxed (:class:`fem.linalg.KeptOrderLU`, 25 → 14.5 ms a factorisation, the same
-fill); the tangent assembled without sums with empty matrices. The k(T) case gained from the
+fill); the tangent assembled without sums with empty matrices, its capacity part as one
+sparse product with ρc at the points (1.4 → 0.5 ms). The k(T) case gained from the
 ramps in its Kirchhoff transform. Iterations and factorisations are unchanged: the
 improvement is all in their prices. The energy balances stayed at 1e-14–1e-10.
 
@@ -49,11 +52,13 @@ took 1449 iterations and 89 factorisations (48.6 ms a step), the chord of
 :mod:`fem.tangents` 1291 and 96 (48.7 ms), against LU's 1252 and 100 (44.8 ms), since a moving
 front needs a factorisation about every second step (13 solves each) and CHOLMOD's, its
 ordering redone every time, took 38 ms at 10k unknowns against LU's 25 ms (now 14.5 ms), which
-its cheaper solves (0.3 against 0.65 ms) do not repay.
+its cheaper solves (0.3 against 0.65 ms) do not repay. Where the chord is kept for the run,
+it pays: a steel-like k(T) with c(T) and no latent heat (not one of the cases above) now takes
+it too, 9.5 → 8.1 ms a step at 10k nodes with the same 3.9 iterations and one factorisation.
 
 The 3× target is NOT MET. k(T) is at about 4×: two iterations a step, each a solve and a
 residual, are the floor at the default 1e-6 K tolerance. h(T_s) at 7×: two solves and a GMRES
-on the 183 surface nodes an iteration, two iterations a step. Latent heat at 36×: a moving
+on the 183 surface nodes an iteration, two iterations a step. Latent heat at 34–36×: a moving
 front makes a kept tangent converge at only 0.3–0.6 an iteration, so a step takes 5–7
 iterations (a solve 0.65–0.8 ms, a residual 1.1 ms, Anderson's mixing 0.3 ms) and half a
 factorisation (15–20 ms with the tangent's assembly); what was tried and dropped is listed
