@@ -19,38 +19,50 @@ Run from the repository root::
 
 It prints a table and writes ``benchmarks/results-nonlinear.json``.
 
-Measured at 9,761 nodes, 200 steps, ``--repeat 3``: the tree before the cheaper tangents
-(extracted with ``git archive``) and after them, run back to back on the two-core machine
-shared with other jobs (``uptime`` load average 2.81 → 2.37 over the new run, 2.37 → 2.04
-over the old); per-step cost, ratio to the linear twin, Newton iterations per step,
-factorisations over the run:
+Measured at 9,761 nodes, 200 steps, ``--repeat 3``: the tree before the cheaper freezing
+residual and factorisations (extracted with ``git archive``) and after them, run back to back
+on the two-core machine shared with other jobs (``uptime`` load average 0.62 → 0.75 over the
+new run, 0.75 → 0.86 over the old); per-step cost, ratio to the linear twin, Newton
+iterations per step, factorisations over the run:
 
 =============  ===============================  ===============================
 case           before                           after
 =============  ===============================  ===============================
-k(T)           4.26 ms, 5.8×, 2.18, 2           5.33 ms, 4.6×, 2.22, 1
-latent heat    52.9 ms, 72×, 8.94, 114          43.1 ms, 59×, 6.20, 100
-h(T_s)         12.9 ms, 17.5×, 4.61, 38         5.18 ms, 7.1×, 1.97, 3
+k(T)           3.40 ms, 4.5×, 2.22, 1           3.01 ms, 4.0×, 2.22, 1
+latent heat    41.1 ms, 57×, 6.20, 100          25.4 ms, 34×, 6.24, 99
+h(T_s)         5.05 ms, 7.0×, 1.97, 3           5.15 ms, 7.0×, 1.97, 3
 =============  ===============================  ===============================
 
-The linear twins took 0.73 ms a step in both runs but for the k(T) twin of the new run
-(1.17 ms: the load moved both twins alike, so the ratio is the figure to compare). Two other
-sessions that day gave k(T) 4.4–4.9×, h(T_s) 7.5–9.4× and latent heat 57–65× after, and
-5.7–5.9×, 17–24× and 72–82× before. What did it: k(T) solves its chord on the symmetric part
-of J·D⁻¹ by Cholesky (:mod:`fem.tangents`; a solve costs a third of the LU's); h(T_s) keeps
-J₀ factorised and borders it with the surface's exact dq/dT, so it converges as Newton's and
-refactorises only when the step size changes (2 steps subdivided at the film's collapse); a
-step's heat balance, once the update is small, is closed by a uniform shift instead of further
-solves; the converged residual is kept for the step's reactions; tangents are kept as J/β so
-the backward-Euler start-up and the Crank–Nicolson steps share one factorisation. All three
-energy balances stayed at 1e-14–1e-10 of the exchanged energy.
+The linear twins took 0.72–0.75 ms a step in both runs (an earlier pair of runs that day:
+latent heat 43.0 → 27.1 ms, 57× → 36×; at 1,035 nodes 5.15 → 3.17 ms, 57× → 35×; at 38k
+nodes, 100 steps, one run each, 348 → 206 ms, 74× → 37×). What did it, for latent heat (in a
+cProfile of the run, 9.3 s → 5.6 s): the enthalpy at the 57k quadrature points (two property
+integrals a residual, 2.2 s) as a sum of ramps for few-point tables instead of a binary search,
+evaluated pass by pass into buffers kept for the run (:mod:`fem.stored_heat`; a NumPy scalar
+times an array, and a second live array of the points, each cost 10× the arithmetic), 0.5 s
+now; the unsymmetric tangent factorised in the order of the run's first one with SuperLU's
+supernodes unrelaxed (:class:`fem.linalg.KeptOrderLU`, 25 → 14.5 ms a factorisation, the same
+fill); the tangent assembled without sums with empty matrices, its capacity part as one
+sparse product with ρc at the points (1.4 → 0.5 ms). The k(T) case gained from the
+ramps in its Kirchhoff transform. Iterations and factorisations are unchanged: the
+improvement is all in their prices. The energy balances stayed at 1e-14–1e-10.
 
-The 3× target is NOT MET. k(T) is at about 4.5×: two iterations a step, each a solve and a
-residual, are the floor at the default 1e-6 K tolerance (about 2.5× by themselves). h(T_s) at
-7–9×: two solves and a GMRES on the 183 surface nodes an iteration, two iterations a step.
-Latent heat at 57–65×: a moving front makes a kept tangent converge at only 0.3–0.6 an
-iteration, a factorisation costs 25–45 solves, and a residual (the enthalpy at 57k quadrature
-points) 3–4 ms; what was tried and dropped is listed in DEVELOPERS.md.
+A symmetric approximate tangent by Cholesky for latent heat was measured and dropped: sym(J)
+took 1449 iterations and 89 factorisations (48.6 ms a step), the chord of
+:mod:`fem.tangents` 1291 and 96 (48.7 ms), against LU's 1252 and 100 (44.8 ms), since a moving
+front needs a factorisation about every second step (13 solves each) and CHOLMOD's, its
+ordering redone every time, took 38 ms at 10k unknowns against LU's 25 ms (now 14.5 ms), which
+its cheaper solves (0.3 against 0.65 ms) do not repay. Where the chord is kept for the run,
+it pays: a steel-like k(T) with c(T) and no latent heat (not one of the cases above) now takes
+it too, 9.5 → 8.1 ms a step at 10k nodes with the same 3.9 iterations and one factorisation.
+
+The 3× target is NOT MET. k(T) is at about 4×: two iterations a step, each a solve and a
+residual, are the floor at the default 1e-6 K tolerance. h(T_s) at 7×: two solves and a GMRES
+on the 183 surface nodes an iteration, two iterations a step. Latent heat at 34–36×: a moving
+front makes a kept tangent converge at only 0.3–0.6 an iteration, so a step takes 5–7
+iterations (a solve 0.65–0.8 ms, a residual 1.1 ms, Anderson's mixing 0.3 ms) and half a
+factorisation (15–20 ms with the tangent's assembly); what was tried and dropped is listed
+in DEVELOPERS.md.
 """
 
 from __future__ import annotations

@@ -16,7 +16,13 @@ def smooth_fraction(temperature, solidus: float, liquidus: float):
     0 below, 1 above and 3x² − 2x³ between (x the position in the range), so the latent heat it
     releases, L·S'(T), is continuous and Newton's method sees no jump in the tangent."""
     x = _position(temperature, solidus, liquidus)
-    return x * x * (3.0 - 2.0 * x)
+    if np.ndim(x) == 0:
+        return x * x * (3.0 - 2.0 * x)
+    weight = x * -2.0  # in place from here: a residual takes it at every quadrature point
+    weight += 3.0
+    x *= x
+    x *= weight
+    return x
 
 
 def smooth_fraction_slope(temperature, solidus: float, liquidus: float):
@@ -29,7 +35,10 @@ def _position(temperature, solidus: float, liquidus: float):
     """Where ``temperature`` lies in the range, 0 at the solidus to 1 at the liquidus (held
     beyond); minimum and maximum rather than np.clip, whose overhead shows on small models."""
     x = (np.asarray(temperature, dtype=float) - solidus) / (liquidus - solidus)
-    return np.minimum(np.maximum(x, 0.0), 1.0)
+    if np.ndim(x) == 0:
+        return np.minimum(np.maximum(x, 0.0), 1.0)
+    np.maximum(x, 0.0, out=x)
+    return np.minimum(x, 1.0, out=x)
 
 
 @dataclass(frozen=True)

@@ -11,6 +11,7 @@ import numpy as np
 from .enthalpy import EnthalpyTable, smooth_fraction, smooth_fraction_slope
 from .errors import ModelError, shown
 from .orthotropic import Orthotropic
+from .table_integrals import clamped_integral, reference_integral
 from .temperatures import ABSOLUTE_ZERO
 
 
@@ -81,49 +82,14 @@ class PropertyTable:
         """∫ value dT from ``reference`` to ``temperature`` (exact for the clamped table)."""
         t = np.asarray(temperature, dtype=float)
         if np.ndim(reference) == 0:
-            return _clamped_integral(self, t) - _reference_integral(self, float(reference))
-        return _clamped_integral(self, t) - _clamped_integral(self, np.asarray(reference))
+            total = clamped_integral(self, t)
+            total -= reference_integral(self, float(reference))
+            return total
+        return clamped_integral(self, t) - clamped_integral(self, np.asarray(reference))
 
     @property
     def range(self) -> tuple[float, float]:
         return (min(self.values), max(self.values))
-
-
-def _table_arrays(table: PropertyTable):
-    """The table as arrays with the running integral and the slopes at its points, kept on the
-    table (a nonlinear step integrates it a few times per iteration)."""
-    arrays = table.__dict__.get("_arrays")
-    if arrays is None:
-        tt = np.asarray(table.temperatures)
-        vv = np.asarray(table.values)
-        cumulative = np.concatenate([[0.0], np.cumsum(0.5 * (vv[1:] + vv[:-1]) * np.diff(tt))])
-        slopes = np.append(np.diff(vv) / np.diff(tt), 0.0)  # the last: beyond the table
-        arrays = (tt, vv, cumulative, slopes, {})
-        object.__setattr__(table, "_arrays", arrays)
-    return arrays
-
-
-def _clamped_integral(table: PropertyTable, t: np.ndarray) -> np.ndarray:
-    """∫ from the first table temperature to t of the clamped piecewise-linear table: inside
-    it exact, beyond its ends the end value times the distance. (Minimum and maximum rather
-    than np.clip and np.interp: on the few hundred points of a small model a call's overhead
-    is most of its cost.)"""
-    tt, vv, cumulative, slopes, _ = _table_arrays(table)
-    i = np.searchsorted(tt, t, side="right") - 1
-    i = np.minimum(np.maximum(i, 0), len(tt) - 2)
-    inside = np.minimum(np.maximum(t, tt[0]), tt[-1]) - tt[i]
-    below = np.minimum(t - tt[0], 0.0)
-    above = np.maximum(t - tt[-1], 0.0)
-    beyond = vv[0] * below + vv[-1] * above
-    return cumulative[i] + inside * (vv[i] + 0.5 * slopes[i] * inside) + beyond
-
-
-def _reference_integral(table: PropertyTable, reference: float) -> float:
-    """:func:`_clamped_integral` at one reference temperature, remembered on the table."""
-    known = _table_arrays(table)[4]
-    if reference not in known:
-        known[reference] = float(_clamped_integral(table, np.asarray([float(reference)]))[0])
-    return known[reference]
 
 
 Property = float | PropertyTable
@@ -372,12 +338,13 @@ class Material:
             sensible = c.integral(t, reference)
         else:
             sensible = c * (t - reference)
-        if self.latent_heat:
+        if self.latent_heat:  # in place when an array: a residual takes it at every point
             fraction = smooth_fraction(t, self.solidus, self.liquidus)
-            sensible = sensible + self.latent_heat * (
-                fraction - smooth_fraction(reference, self.solidus, self.liquidus)
-            )
-        return self.density * sensible
+            fraction -= smooth_fraction(reference, self.solidus, self.liquidus)
+            fraction *= self.latent_heat
+            sensible += fraction  # (a scalar is rebound, an array is fresh: no caller's)
+        sensible *= self.density
+        return sensible
 
     def _nominal(self, value) -> float:
         return float(np.mean(value.range)) if isinstance(value, PropertyTable) else value

@@ -39,6 +39,7 @@ import numpy as np
 from .conditions import Radiation
 from .errors import SolverError
 from .integrators import StepFormula, StepResult
+from .linalg import NESTED_DISSECTION_FROM, KeptOrderLU
 from .nonlinear_acceleration import AndersonMixing
 from .nonlinear_assembly import nodal_conductivity
 from .stepper import RunContext
@@ -111,15 +112,20 @@ class NewtonStep:
         self.tangent = None  # (key, factor of J/β, 1ᵀ·J·1/β) kept for simplified Newton
         self.beta = 1.0  # the step formula's β: the tangent kept is J/β
         self.surface = bordered_surface(run.system, run.controls.adaptive, BORDERED_NODES)
-        # Capacity, conduction and radiation (4εσT³ ≥ 0) keep the chord positive definite.
-        self.definite_chord = run.system.constant_capacity and all(
-            c.linear or isinstance(c, Radiation) for _, c in run.system.flowing()
-        )
+        # Capacity, conduction and radiation (4εσT³ ≥ 0) keep the chord positive definite. A
+        # c(T) without latent heat keeps the chord's capacity error small (k varies little
+        # between neighbours); latent heat does not (see _factorised).
+        self.definite_chord = not any(
+            m.has_phase_change for m in run.system.model.materials.values()
+        ) and all(c.linear or isinstance(c, Radiation) for _, c in run.system.flowing())
         if self.surface is not None:
             self._restricted = SurfaceRestriction(run.system.free_dofs[self.surface])
         self.bordered_builds = 0
         self.bordered: dict = {}  # key → (key, BoundaryCorrection): constant per step size
         self.mixing = AndersonMixing()
+        self.kept_order = KeptOrderLU(run.algebra)  # unsymmetric tangents: ordered once
+        self._free_ones = np.zeros(run.system.size)  # 1 on the free degrees of freedom
+        self._free_ones[run.system.free_dofs] = 1.0
         self.rate: float | None = None  # the kept tangent's last rate of convergence
 
     def solve(
@@ -189,25 +195,37 @@ class NewtonStep:
             self.rate = None
             return
         jacobian = scale * system.capacity_tangent(u) + system.outflow_tangent(u, t1 - 1e-9 * step)
-        slope = float(jacobian[free][:, free].sum())  # 1ᵀ·J·1/β, W/K
+        slope = float(self._free_ones @ (jacobian @ self._free_ones))  # 1ᵀ·J·1/β, W/K
         self.tangent = (key, self._factorised(jacobian, u), slope)
         self.rate = None  # not known for the new tangent
 
     def _factorised(self, jacobian, u: np.ndarray):
-        """The tangent's factorisation: SuperLU's symmetric mode where it is symmetric; with
-        k(T), a constant capacity and no surface term that can fall with temperature the
-        symmetric chord of :mod:`fem.tangents` by Cholesky; LU otherwise (latent heat makes
-        the chord's capacity error large at the front, and CHOLMOD reports an indefinite
-        matrix on the standard output before it fails)."""
+        """The tangent's factorisation: with k(T), no latent heat and no surface term that
+        can fall with temperature the symmetric chord of :mod:`fem.tangents` by Cholesky (a
+        run of such steps factorises once or twice; with c(T) too, measured 8.1 against 9.5 ms
+        a step for LU at 10k nodes, the same iterations); otherwise SuperLU's LU in
+        the order kept from the run's first tangent (:class:`fem.linalg.KeptOrderLU`), or its
+        symmetric mode on nested dissection for a symmetric tangent from
+        ``NESTED_DISSECTION_FROM`` unknowns.
+
+        Latent heat stays with LU: a symmetric approximate tangent by Cholesky (sym(J), or the
+        chord above) was measured slower on the benchmark's freezing block at 10k nodes, since
+        a front refactorises every second step (about 13 solves a factorisation) and CHOLMOD's
+        factorisation, ordering included every time, took 38 ms against 14.5 ms for the kept
+        order's LU, which its solves (0.3 against 0.65 ms) do not repay; sym(J) also took
+        16 % more iterations. And the chord's capacity error is large at the front, where
+        CHOLMOD reports an indefinite matrix on the standard output before it fails."""
         algebra, system = self.run.algebra, self.run.system
-        if self.symmetric:  # SuperLU's symmetric mode: h(T_s) may make it indefinite
-            return algebra.factor(jacobian, True)
+        if self.symmetric and system.free_dofs.size >= NESTED_DISSECTION_FROM:
+            return algebra.factor(jacobian, True)  # SuperLU's symmetric mode, dissected
+        if self.symmetric:  # LU in the kept order: h(T_s) may make it indefinite
+            return self.kept_order.factor(jacobian)
         if self.definite_chord:
             scale = nodal_conductivity(system, u)
             factor = algebra.factor(symmetric_scaled(jacobian, scale), True, "cholesky")
             if getattr(factor, "solver", None) == "cholesky":  # else P was not definite
                 return ScaledFactor(factor, scale[system.free_dofs])
-        return algebra.factor(jacobian, False)
+        return self.kept_order.factor(jacobian)
 
     def _iterate(self, u, residual, formula: StepFormula, step: float, t1: float) -> None:
         """Damped, accelerated simplified Newton iterations on the free degrees of freedom of

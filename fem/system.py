@@ -26,6 +26,7 @@ from .interfaces import interface_stiffness
 from .model import ThermalModel
 from .nonlinear_assembly import RegionProducts
 from .quadrature import EdgeTerms, QuadratureOperator, remembered
+from .stored_heat import PointEnthalpy
 
 ENTHALPY_REFERENCE = 0.0  # °C: H(T) = ∫ρc dT from here; differences are all that matter
 
@@ -230,11 +231,19 @@ class ConductionSystem:
         return remembered(self, "_stored_memo", temperature, self._stored)
 
     def _stored(self, temperature: np.ndarray) -> np.ndarray:
-        total = self._constant_parts[1] @ temperature
-        for operator, material in self._storing:
-            t = operator.interpolate(temperature)
-            total += operator.integrate(material.enthalpy(t, ENTHALPY_REFERENCE))
+        total = _product(self._constant_parts[1], temperature)
+        for (operator, _), enthalpy in zip(self._storing, self._point_enthalpies, strict=True):
+            total += operator.integrate(enthalpy(operator.interpolate(temperature)))
         return total
+
+    @cached_property
+    def _point_enthalpies(self) -> tuple[PointEnthalpy, ...]:
+        """The enthalpy of each region of :attr:`_storing` at its quadrature points, into
+        buffers kept for the run (:mod:`fem.stored_heat`)."""
+        return tuple(
+            PointEnthalpy(material, ENTHALPY_REFERENCE, operator.values.shape[0])
+            for operator, material in self._storing
+        )
 
     def capacity_tangent(self, temperature: np.ndarray) -> sp.csr_matrix:
         """dC/dT: ∫ ρc(T) φ_j φ_i dV (J/K)."""
@@ -243,7 +252,8 @@ class ConductionSystem:
         total = self._constant_parts[1]
         for operator, material in self._storing:
             t = operator.interpolate(temperature)
-            total = total + operator.mass(material.heat_capacity_at(t))
+            mass = operator.mass(material.heat_capacity_at(t))
+            total = mass if total.nnz == 0 else total + mass  # no sum with an empty matrix
         return total.tocsr()
 
     @cached_property
@@ -284,9 +294,14 @@ class ConductionSystem:
         self, temperature: np.ndarray, time: float, remainders: bool = True
     ) -> sp.csr_matrix:
         """dG/dT (W/K); without the nonlinear conditions' terms unless ``remainders``."""
-        total = self.exchange_operator(time)
-        if not self._constant_conductivity:
-            total = total - self.stiffness + self.conduction_tangent(temperature)
+        if self._constant_conductivity:
+            total = self.exchange_operator(time)
+        else:  # K(T) and the exchange, not K + exchange − K: two sums fewer
+            total = self.conduction_tangent(temperature)
+            for edge, condition in self.flowing():
+                h = condition.exchange_coefficient(time)
+                if h:
+                    total = total + h * edge.exchange_matrix
         if remainders:
             surface = self.surface_tangent(temperature, time)
             if surface is not None:
@@ -322,7 +337,8 @@ class ConductionSystem:
         total = self._constant_parts[0]
         for products in self.products.values():
             if products.varying_conductivity:
-                total = total + products.conduction_tangent(temperature)
+                tangent = products.conduction_tangent(temperature)
+                total = tangent if total.nnz == 0 else total + tangent
         for operator, material in self._tensor_conducting:
             t = operator.interpolate(temperature)
             total = total + operator.conduction_tangent(
@@ -336,7 +352,7 @@ class ConductionSystem:
         return remembered(self, "_conduction_memo", temperature, self._conduction_of)
 
     def _conduction_of(self, temperature: np.ndarray) -> np.ndarray:
-        total = self._constant_parts[0] @ temperature
+        total = _product(self._constant_parts[0], temperature)
         for products in self.products.values():
             if products.varying_conductivity:
                 total += products.conduction(temperature)
@@ -399,3 +415,9 @@ class ConductionSystem:
     @property
     def _constant_conductivity(self) -> bool:
         return all(isinstance(m.conductivity, float) for m in self.model.materials.values())
+
+
+def _product(matrix: sp.csr_matrix, vector: np.ndarray) -> np.ndarray:
+    """matrix·vector, skipping the product when the matrix is empty (no region with constant
+    k or ρc): a sparse product still visits every row."""
+    return matrix @ vector if matrix.nnz else np.zeros(matrix.shape[0])
