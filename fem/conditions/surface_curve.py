@@ -83,6 +83,10 @@ class SurfaceCurve:
             )
         object.__setattr__(self, "surface_temperatures", tuple(t.tolist()))
         object.__setattr__(self, "values", tuple(v.tolist()))
+        # the table as arrays with its slopes, once: a lumped balance asks for one temperature
+        # at a time, thousands of times, where converting the tuples was most of a call
+        slopes = np.diff(v) / np.diff(t)
+        object.__setattr__(self, "_arrays", (t, v, slopes))
 
     @property
     def unit(self) -> str:
@@ -107,9 +111,9 @@ class SurfaceCurve:
         """q(T_s) leaving the surface and dq/dT_s, W/m² and W/(m²·K), for the fluid at
         ``ambient`` °C."""
         t = np.asarray(surface, dtype=float)
-        table_t, table_v = self.surface_temperatures, self.values
+        table_t, table_v, slopes = self._arrays
         value = np.interp(t, table_t, table_v)
-        slope = _slope(t, table_t, table_v)
+        slope = _slope(t, table_t, slopes)
         if self.quantity == "coefficient":
             return value * (t - ambient), value + slope * (t - ambient)
         secants = [_secant(table_t[i], table_v[i], ambient) for i in (0, -1)]
@@ -123,7 +127,7 @@ class SurfaceCurve:
     def coefficient(self, surface, ambient):
         """h(T_s) = q/(T_s − T∞) (for a flux table; its slope next to the ambient), W/(m²·K)."""
         if self.quantity == "coefficient":
-            return np.interp(surface, self.surface_temperatures, self.values)
+            return np.interp(surface, *self._arrays[:2])
         t = np.asarray(surface, dtype=float)
         q, slope = self.outflow(t, ambient)
         near = np.abs(t - ambient) < NEAR_AMBIENT
@@ -146,9 +150,9 @@ class SurfaceCurve:
         }
 
 
-def _slope(t: np.ndarray, table_t, table_v) -> np.ndarray:
-    """The table's slope at ``t`` (the right-hand one at a table point; 0 beyond the ends)."""
-    slopes = np.diff(table_v) / np.diff(table_t)
+def _slope(t: np.ndarray, table_t: np.ndarray, slopes: np.ndarray) -> np.ndarray:
+    """The table's slope at ``t`` from its segments' ``slopes`` (the right-hand one at a table
+    point; 0 beyond the ends)."""
     i = np.clip(np.searchsorted(table_t, t, side="right") - 1, 0, len(slopes) - 1)
     inside = (t >= table_t[0]) & (t <= table_t[-1])
     return np.where(inside, slopes[i], 0.0)
