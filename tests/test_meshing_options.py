@@ -268,3 +268,24 @@ def test_after_meshing_a_closed_pipe_is_an_error_not_the_end_of_the_process():
         [sys.executable, "-c", script], cwd=root, capture_output=True, text=True, timeout=120
     )
     assert (done.returncode, done.stdout.strip()) == (0, "refused"), done.stderr[-2000:]
+
+
+@pytest.mark.parametrize("start", ["default", "ignored"])
+def test_meshing_keeps_the_interrupt_handling_it_found(start):
+    """While gmsh meshes, Ctrl-C keeps the handling the process started with: Python's
+    KeyboardInterrupt for a run started from a terminal (raised when gmsh returns), ignored for
+    a background job — never the system default that ends the process without cleaning up."""
+    import signal
+
+    from geometries.meshing.session import gmsh_session
+
+    before = signal.getsignal(signal.SIGINT)
+    wanted = signal.default_int_handler if start == "default" else signal.SIG_IGN
+    signal.signal(signal.SIGINT, wanted)
+    try:
+        with gmsh_session():
+            during = signal.getsignal(signal.SIGINT)
+        after = signal.getsignal(signal.SIGINT)
+    finally:
+        signal.signal(signal.SIGINT, before)
+    assert (during, after) == (wanted, wanted)

@@ -187,6 +187,12 @@ def test_a_missing_parent_is_made_and_removed_again_when_nothing_is_written(tmp_
 
 
 @pytest.mark.slow
+def as_from_a_terminal() -> None:
+    """Ctrl-C at its default in the command, as a terminal starts it (a suite run as a
+    background job would hand it an ignored Ctrl-C, which the command rightly keeps)."""
+    signal.signal(signal.SIGINT, signal.SIG_DFL)
+
+
 @pytest.mark.parametrize("stop", [signal.SIGINT, signal.SIGTERM], ids=["SIGINT", "SIGTERM"])
 def test_a_signal_during_the_solve_ends_with_one_line_and_nothing_written(stop, tmp_path):
     # 0.5 ms steps over 10 min: 1.2 million steps, far longer than the wait below
@@ -199,6 +205,7 @@ def test_a_signal_during_the_solve_ends_with_one_line_and_nothing_written(stop, 
         stderr=subprocess.PIPE,
         text=True,
         env=environment,
+        preexec_fn=as_from_a_terminal,
     )
     assert run.stderr.readline().startswith("Meshing and solving")
     deadline = time.monotonic() + 120
@@ -256,6 +263,7 @@ def test_ctrl_c_at_any_early_moment_prints_one_line(delay, tmp_path):
         stderr=subprocess.PIPE,
         text=True,
         env={**os.environ, "PYTHONPATH": str(ROOT)},
+        preexec_fn=as_from_a_terminal,
     )
     time.sleep(delay)
     run.send_signal(signal.SIGINT)

@@ -4,13 +4,14 @@ gmsh keeps one global state per process. All access goes through :func:`gmsh_ses
 holds a lock, starts gmsh quietly and always finalises it, so repeated meshing in one process is
 safe and parallel meshing runs in separate processes.
 
-gmsh's API is used directly (pygmsh's session falls short here): gmsh sets its own interrupt
-handler when it starts, which only the main thread may do and which ``finalize`` does not undo.
-Off the main thread (a dask worker's task) it starts without one; on the main thread the
-handlers that were there before (SIGINT, SIGTERM) are put back, so an interruption after
-meshing ends the run as the command line intends, and so is Python's SIGPIPE (ignored, so a
-write to a closed pipe is a ``BrokenPipeError``), which gmsh's start sets back to ending the
-process at once.
+gmsh's API is used directly (pygmsh's session falls short here). gmsh starts without its own
+interrupt handler: with it, Ctrl-C during meshing ended the process at once (no message, the
+results folder's lock left behind), and a run started with Ctrl-C ignored (a background job)
+could be ended by it all the same. Without it, Python's handler stays and the interruption is
+raised when gmsh returns. gmsh's start still sets some handlers at the system level; on the
+main thread those that were there before (SIGINT, SIGTERM) are put back, and so is Python's
+SIGPIPE (ignored, so a write to a closed pipe is a ``BrokenPipeError``), which gmsh's start sets
+back to ending the process at once.
 """
 
 from __future__ import annotations
@@ -40,7 +41,7 @@ def gmsh_session() -> Iterator[None]:
             if main_thread
             else {}
         )
-        gmsh.initialize([], interruptible=main_thread)
+        gmsh.initialize([], interruptible=False)
         try:
             gmsh.option.setNumber("General.Terminal", 0)
             gmsh.model.add("section")
