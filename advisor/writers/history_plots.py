@@ -27,6 +27,8 @@ from .plot_style import (
 )
 from .report_words import time_constant_text
 
+LONG_LABEL = 60  # characters: longer legend labels go in one column
+
 
 def history_figure(assessment: Assessment) -> Figure:
     """Temperature histories (mean, extremes, probes, lumped) above the internal ΔT."""
@@ -79,7 +81,10 @@ def _temperature_axes(axes, assessment: Assessment, t: np.ndarray) -> None:
     if assessment.target is not None:  # its line counts where the legend goes
         axes.axhline(assessment.target, color=TARGET, lw=0.8, ls="-.")
     axes.set_ylabel("temperature (°C)")
-    axes.legend(fontsize=8, frameon=False, ncols=2)
+    # two columns of long labels (a time constant that changes with temperature) fit nowhere
+    # beside the curves and run past the axes: one column then
+    longest = max(len(label) for label in axes.get_legend_handles_labels()[1])
+    axes.legend(fontsize=8, frameon=False, ncols=2 if longest <= LONG_LABEL else 1)
     verdict = assessment.verdict
     axes.set_title(
         f"Bi (V/A_s) = {assessment.biot[0].value:.3g} — classical lumped estimate "
