@@ -11,7 +11,12 @@ import numpy as np
 from .enthalpy import EnthalpyTable, smooth_fraction, smooth_fraction_slope
 from .errors import ModelError, shown
 from .orthotropic import Orthotropic
-from .table_integrals import clamped_integral, reference_integral
+from .table_integrals import (
+    clamped_integral,
+    reference_integral,
+    segment_slope,
+    table_arrays,
+)
 from .temperatures import ABSOLUTE_ZERO
 
 
@@ -72,11 +77,8 @@ class PropertyTable:
 
     def slope(self, temperature):
         """d(value)/dT at ``temperature`` (0 beyond the table)."""
-        t = np.asarray(temperature, dtype=float)
-        slopes = np.diff(self.values) / np.diff(self.temperatures)
-        i = np.clip(np.searchsorted(self.temperatures, t, side="right") - 1, 0, len(slopes) - 1)
-        inside = (t >= self.temperatures[0]) & (t <= self.temperatures[-1])
-        return np.where(inside, slopes[i], 0.0)
+        temperatures, _, _, slopes, *_ = table_arrays(self)  # made once, kept on the table
+        return segment_slope(np.asarray(temperature, dtype=float), temperatures, slopes[:-1])
 
     def integral(self, temperature, reference: float = 0.0):
         """∫ value dT from ``reference`` to ``temperature`` (exact for the clamped table)."""

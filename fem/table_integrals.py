@@ -78,6 +78,14 @@ def clamped_integral(table: PropertyTable, t: np.ndarray) -> np.ndarray:
     return cumulative[i] + inside * (vv[i] + 0.5 * slopes[i] * inside) + beyond
 
 
+def segment_slope(t, temperatures: np.ndarray, slopes: np.ndarray) -> np.ndarray:
+    """The slope at ``t`` of a piecewise-linear table of ``temperatures`` whose segments have
+    ``slopes`` (one fewer): the right-hand one at a table point, 0 beyond the ends."""
+    i = np.clip(np.searchsorted(temperatures, t, side="right") - 1, 0, len(slopes) - 1)
+    inside = (t >= temperatures[0]) & (t <= temperatures[-1])
+    return np.where(inside, slopes[i], 0.0)
+
+
 def reference_integral(table: PropertyTable, reference: float) -> float:
     """:func:`clamped_integral` at one reference temperature, remembered on the table."""
     known = table_arrays(table)[4]

@@ -15,6 +15,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..errors import ModelError
+from ..table_integrals import segment_slope
 from ..temperatures import ABSOLUTE_ZERO
 
 QUANTITIES = {"coefficient": "W/(m²·K)", "heat_flux": "W/m²"}
@@ -113,7 +114,7 @@ class SurfaceCurve:
         t = np.asarray(surface, dtype=float)
         table_t, table_v, slopes = self._arrays
         value = np.interp(t, table_t, table_v)
-        slope = _slope(t, table_t, slopes)
+        slope = segment_slope(t, table_t, slopes)
         if self.quantity == "coefficient":
             return value * (t - ambient), value + slope * (t - ambient)
         secants = [_secant(table_t[i], table_v[i], ambient) for i in (0, -1)]
@@ -148,14 +149,6 @@ class SurfaceCurve:
             "surface_temperatures_degC": list(self.surface_temperatures),
             key: list(self.values),
         }
-
-
-def _slope(t: np.ndarray, table_t: np.ndarray, slopes: np.ndarray) -> np.ndarray:
-    """The table's slope at ``t`` from its segments' ``slopes`` (the right-hand one at a table
-    point; 0 beyond the ends)."""
-    i = np.clip(np.searchsorted(table_t, t, side="right") - 1, 0, len(slopes) - 1)
-    inside = (t >= table_t[0]) & (t <= table_t[-1])
-    return np.where(inside, slopes[i], 0.0)
 
 
 def _secant(temperature: float, flux: float, ambient: float) -> float | None:
