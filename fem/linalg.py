@@ -140,9 +140,9 @@ class Cost:
     damped_iterations: int = 0  # Newton updates shortened by the line search
     iteration_seconds: float = 0.0  # Newton iterations of converged steps, factorisations in
 
-    def iterated(self, iterations: int) -> None:
-        """Count a step's Newton iterations (one solve each)."""
-        self.solves += iterations
+    def iterated(self, iterations: int, solves: int | None = None) -> None:
+        """Count a step's Newton iterations (one solve each, unless ``solves`` says)."""
+        self.solves += iterations if solves is None else solves
         self.newton_iterations += iterations
         self.max_newton_iterations = max(self.max_newton_iterations, iterations)
 

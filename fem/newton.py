@@ -43,6 +43,7 @@ from .linalg import NESTED_DISSECTION_FROM, KeptOrderLU
 from .nonlinear_acceleration import AndersonMixing
 from .nonlinear_assembly import nodal_conductivity
 from .stepper import RunContext
+from .surface_step import SurfaceCondensation
 from .tangents import (
     BoundaryCorrection,
     ScaledFactor,
@@ -120,6 +121,7 @@ class NewtonStep:
         ) and all(c.linear or isinstance(c, Radiation) for _, c in run.system.flowing())
         if self.surface is not None:
             self._restricted = SurfaceRestriction(run.system.free_dofs[self.surface])
+            self.condensation = SurfaceCondensation(run.system, self.surface)
         self.bordered_builds = 0
         self.bordered: dict = {}  # key → (key, BoundaryCorrection): constant per step size
         self.mixing = AndersonMixing()
@@ -187,7 +189,9 @@ class NewtonStep:
             )
             factor = self.run.algebra.factor(interior, True, "cholesky")
             slope = float(interior[free][:, free].sum())  # 1ᵀ·J₀·1/β (a secant corrects it)
-            self.tangent = (key, BoundaryCorrection(factor, self.surface, free.size), slope)
+            diagonal = interior.diagonal()[free]
+            correction = BoundaryCorrection(factor, self.surface, free.size, diagonal)
+            self.tangent = (key, correction, slope)
             self.bordered[key] = self.tangent
             self.bordered_builds += 1
             while len(self.bordered) > BORDERED_KEPT:
@@ -245,6 +249,10 @@ class NewtonStep:
             self.tangent = self.bordered.get(key)  # a step size seen before (a retry)
         if self.tangent is None:
             self._factor(u, formula, step, t1, key)
+        if self.surface is not None and self._condensed(u, residual, formula, step, t1):
+            cost.iteration_seconds += clock.perf_counter() - started
+            cost.iteration_seconds -= cost.factorisation_seconds - factoring
+            return
         self.mixing.reset()
         fresh = True  # the kept tangent was factorised at the current iterate
         previous = math.inf
@@ -301,6 +309,25 @@ class NewtonStep:
         cost.iterated(iteration)
         spent = clock.perf_counter() - started
         cost.iteration_seconds += spent - (cost.factorisation_seconds - factoring)
+
+    def _condensed(self, u, residual, formula: StepFormula, step: float, t1: float) -> bool:
+        """Solve the step on the surface's unknowns (:mod:`fem.surface_step`): True when done
+        with the heat balance closed, else False, ``u`` then being where the whole field's
+        iterations start."""
+        controls = self.run.controls
+        solved = self.condensation.step(
+            u,
+            residual,
+            self.tangent[1],
+            self.beta,
+            t1 - 1e-9 * step,
+            controls.newton_tolerance,
+            controls.max_newton_iterations,
+        )
+        if solved is None or not self._balanced(solved[1], formula, step):
+            return False
+        self.run.cost.iterated(solved[0], solves=2)  # iterations on S, two solves with J₀
+        return True
 
     def _fail(
         self, iteration: int, r, largest: float, stalled: int, step: float, t1: float

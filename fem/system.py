@@ -318,6 +318,18 @@ class ConductionSystem:
                 total = tangent if total is None else total + tangent
         return total
 
+    def surface_outflow(self, temperature: np.ndarray, time: float) -> np.ndarray:
+        """The nonlinear conditions' part of G(T, t) (W), nonzero on
+        :attr:`nonlinear_surface_nodes` only: what :meth:`net_outflow` adds beyond its linear
+        terms."""
+        total = np.zeros(self.size)
+        for edge, condition in self.flowing():
+            if not condition.linear:
+                remainder = condition.outflow(edge, temperature, time)
+                if remainder is not None:
+                    total += remainder
+        return total
+
     @cached_property
     def nonlinear_surface_nodes(self) -> np.ndarray:
         """Degrees of freedom of the edge groups with a nonlinear condition (radiation,

@@ -73,12 +73,15 @@ class BoundaryCorrection:
         Positions of S among the free degrees of freedom.
     size : int
         Free degrees of freedom.
+    diagonal : ndarray, optional
+        J₀'s diagonal on the free degrees of freedom (W/K): a step's correction estimated
+        from its residual (:mod:`fem.surface_step`).
     """
 
     BLOCK = 64  # right-hand sides per solve while C is built
 
-    def __init__(self, factor, surface: np.ndarray, size: int):
-        self.factor, self.surface = factor, surface
+    def __init__(self, factor, surface: np.ndarray, size: int, diagonal=None):
+        self.factor, self.surface, self.diagonal = factor, surface, diagonal
         self.solver = getattr(factor, "solver", "superlu")
         self.coupling = np.empty((surface.size, surface.size))  # C
         for start in range(0, surface.size, self.BLOCK):
