@@ -60,14 +60,15 @@ class Events:
 
     def is_output(self, time: float, step: float) -> bool:
         """Whether a step of ``step`` s ending at ``time`` landed on an output time."""
-        return _near(time, self.outputs, step)
+        return near(time, self.outputs, step)
 
     def is_breakpoint(self, time: float, step: float) -> bool:
         """Whether a step of ``step`` s ending at ``time`` landed on a breakpoint."""
-        return _near(time, self.breakpoints, step)
+        return near(time, self.breakpoints, step)
 
 
-def _near(time: float, points: tuple[float, ...], step: float) -> bool:
+def near(time: float, points: tuple[float, ...], step: float) -> bool:
+    """Whether a step of ``step`` s ending at ``time`` landed on one of ``points``."""
     return any(abs(time - p) <= EVENT_TOLERANCE * max(step, 1.0) for p in points)
 
 

@@ -38,12 +38,13 @@ import numpy as np
 
 from .conditions import Radiation
 from .errors import SolverError
+from .events import near
 from .integrators import StepFormula, StepResult
 from .linalg import NESTED_DISSECTION_FROM, KeptOrderLU
 from .nonlinear_acceleration import AndersonMixing
 from .nonlinear_assembly import nodal_conductivity
 from .stepper import RunContext
-from .surface_step import SurfaceCondensation
+from .surface_step import SurfaceCondensation, SurfaceStallError
 from .tangents import (
     BoundaryCorrection,
     ScaledFactor,
@@ -129,6 +130,7 @@ class NewtonStep:
         self._free_ones = np.zeros(run.system.size)  # 1 on the free degrees of freedom
         self._free_ones[run.system.free_dofs] = 1.0
         self.rate: float | None = None  # the kept tangent's last rate of convergence
+        self._closing: tuple | None = None  # (t1, field, stored, outflow) of the last step
 
     def solve(
         self,
@@ -142,12 +144,12 @@ class NewtonStep:
         """The state at ``t1`` from ``states`` (newest first), iterating from ``guess``."""
         system = self.run.system
         inside0, inside1 = t0 + 1e-9 * step, t1 - 1e-9 * step
-        known = (
-            sum(a * system.stored(u) for a, u in zip(formula.a[1:], states, strict=False)) / step
-        )
+        kept = self._kept(states[0], t0, step)
+        stored = [kept[0] if kept and j == 0 else system.stored(u) for j, u in enumerate(states)]
+        known = sum(a * w for a, w in zip(formula.a[1:], stored, strict=False)) / step
         inflow_old = 0.0
         if formula.beta < 1:
-            outflow0 = system.net_outflow(states[0], inside0)
+            outflow0 = kept[1] if kept else system.net_outflow(states[0], inside0)
             known = known + (1 - formula.beta) * outflow0
             inflow_old = -float(outflow0.sum())
 
@@ -169,7 +171,19 @@ class NewtonStep:
         inflow = formula.beta * -float(outflow1.sum())
         inflow += (1 - formula.beta) * inflow_old
         heat = step * (inflow + sum(reactions.values()))
+        self._closing = (t1, u, stored1, outflow1)
         return StepResult(u, float(stored1.sum()), heat, reactions)
+
+    def _kept(self, state: np.ndarray, t0: float, step: float) -> tuple | None:
+        """(stored heat, outflow) of ``state`` as the step that ended with it at ``t0``
+        evaluated them, or None: a residual fewer a step. Not across a breakpoint, where a
+        schedule may jump between the end of one step and the start of the next."""
+        closing = self._closing
+        if closing is None or closing[1] is not state or closing[0] != t0:
+            return None
+        if near(t0, self.run.breakpoints, step):
+            return None
+        return closing[2], closing[3]
 
     def _linearise(self, u: np.ndarray, formula: StepFormula, step: float, t1: float) -> None:
         """Give the bordered tangent the surface terms Δ at ``u``."""
@@ -272,8 +286,7 @@ class NewtonStep:
             if not math.isfinite(previous) and self.rate:
                 previous = largest / self.rate  # a step's first change: the last step's rate
             if self._converged(largest, previous, tolerance):  # if the heat balance closes
-                self.mixing.update(u[free], change)
-                u[free] += change
+                u[free] += change  # (unmixed: the mixing's least squares would not move it)
                 r = residual(u)
                 if largest <= CLOSING_CHANGE * tolerance and not self._balanced(r, formula, step):
                     r = self._close_balance(u, r, residual, formula, step)
@@ -315,15 +328,20 @@ class NewtonStep:
         with the heat balance closed, else False, ``u`` then being where the whole field's
         iterations start."""
         controls = self.run.controls
-        solved = self.condensation.step(
-            u,
-            residual,
-            self.tangent[1],
-            self.beta,
-            t1 - 1e-9 * step,
-            controls.newton_tolerance,
-            controls.max_newton_iterations,
-        )
+        try:
+            solved = self.condensation.step(
+                u,
+                residual,
+                self.tangent[1],
+                self.beta,
+                t1 - 1e-9 * step,
+                controls.newton_tolerance,
+                controls.max_newton_iterations,
+            )
+        except SurfaceStallError as stall:
+            self._fail(
+                stall.iterations, stall.residual, stall.change, STALLED_ITERATIONS, step, t1
+            )
         if solved is None or not self._balanced(solved[1], formula, step):
             return False
         self.run.cost.iterated(solved[0], solves=2)  # iterations on S, two solves with J₀

@@ -41,6 +41,24 @@ SHORTEST_LENGTH = 1.0 / 256  # the shortest damped surface update, as a share of
 STALLED_LENGTH, STALLED_ITERATIONS = 1.0 / 8, 3
 
 
+class SurfaceStallError(Exception):
+    """The surface iterations circle a kink of the curve: the step must be retried smaller.
+
+    Attributes
+    ----------
+    iterations : int
+        Surface iterations made.
+    change : float
+        The last full update's largest entry, K.
+    residual : ndarray
+        The step's residual at its guess, W.
+    """
+
+    def __init__(self, iterations: int, change: float, residual: np.ndarray):
+        super().__init__(f"the surface iterations stalled after {iterations}")
+        self.iterations, self.change, self.residual = iterations, change, residual
+
+
 class SurfaceCondensation:
     """Solves fixed-size steps of a surface-only nonlinear model on its surface unknowns.
 
@@ -71,7 +89,9 @@ class SurfaceCondensation:
         limit: int,
     ) -> tuple[int, np.ndarray] | None:
         """Solve the step from the guess ``u`` (updated in place): (surface iterations, the
-        residual at the answer), or None when the whole field must iterate on.
+        residual at the answer), or None when the whole field must iterate on. Raises
+        :class:`SurfaceStallError` when the iterations circle a kink: the whole field's Newton
+        iterations, on the same equations with the same tangent, would too.
 
         ``residual(u)`` is the step's residual (W), ``correction`` keeps J₀'s factorisation,
         its diagonal and C; ``time`` is where the conditions are evaluated, s; ``tolerance``
@@ -85,6 +105,8 @@ class SurfaceCondensation:
         s, iterations = self._surface_root(
             work, start + y[on_surface], start, q0, correction, time, tolerance, limit
         )
+        if isinstance(s, float):  # the last change of stalled iterations, K
+            raise SurfaceStallError(iterations, s, r0)
         if s is None:
             return None
         load = np.zeros(free.size)
@@ -99,8 +121,8 @@ class SurfaceCondensation:
         """Newton's method on F(s) = s − ``linear`` + C·(q(s) − q0) from s = ``start``, its
         Jacobian I + C·Δ factorised when first needed and kept while each iteration shrinks
         the change at least by ``SURFACE_RATE`` (a chord: Δ moves little from one step to the
-        next), damped by halving on |F|: (s, iterations), or (None, iterations) without
-        convergence."""
+        next), damped by halving on |F|: (s, iterations); (None, iterations) without
+        convergence, (the last change in K, iterations) when the updates stall."""
         coupling = correction.coupling
         s = start.copy()
         defect = s - linear + coupling @ (self._outflow(work, s, time) - q0)
@@ -132,7 +154,7 @@ class SurfaceCondensation:
             self._jacobian = (*self._jacobian[:2], False)
             stalled = stalled + 1 if length <= STALLED_LENGTH else 0
             if stalled >= STALLED_ITERATIONS:  # circling a kink of the curve
-                return None, iteration
+                return largest, iteration
         return None, limit
 
     def _factorise(self, work, correction: BoundaryCorrection, time: float) -> None:
