@@ -176,3 +176,17 @@ def test_the_energy_ledger_is_of_the_whole_part():
     whole = DENSITY * SPECIFIC_HEAT * WIDTH * HEIGHT * (mean_end - 500.0)  # J per metre
     assert stored.get_ydata()[-1] * scale == pytest.approx(whole, rel=1e-6)
     assert "4 copies" in ledger.get_title(loc="left")
+
+
+def test_the_lumped_error_plot_draws_the_recommended_model(steady):
+    verdict = steady.verdict
+    assert verdict.recommended in ("two-node", "fitted exponential"), verdict  # chosen so
+    axes = lumped_error_figure(steady).axes[0]
+    curves = {line.get_label(): line.get_ydata() for line in axes.get_lines()}
+    quantity = {"slowest": "slowest point", "mean": "field mean"}[verdict.quantity]
+    drawn = [label for label in curves if label.endswith(f"vs {quantity} (recommended)")]
+    assert len(drawn) == 1, list(curves)
+    # the curve's largest gap is the error the advice quotes for the recommended model
+    quoted = steady.errors[f"{verdict.recommended} vs {verdict.quantity}"].fraction
+    assert np.abs(curves[drawn[0]]).max() == pytest.approx(100 * quoted, rel=1e-6)
+    assert 100 * quoted <= 100 * verdict.tolerance

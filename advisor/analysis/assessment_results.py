@@ -157,6 +157,25 @@ class Assessment:
         }
 
     @property
+    def recommended_error_histories(self) -> dict[str, np.ndarray]:
+        """As :attr:`error_histories` for the fitted model the advice recommends (key: the
+        field quantity), the two-node model's core node standing for the slowest point; empty
+        when the advice recommends the classical or corrected model (drawn already) or the
+        field."""
+        drive = self.lumped.initial_temperature - self.lumped.equilibrium
+        times, key = self.solution.times, self.verdict.recommended
+        if key == "two-node" and self.two_node is not None:
+            core, _, mean = self.two_node.states(times)
+        elif key == "fitted exponential" and self.fitted is not None:
+            core = mean = self.model_temperatures["fitted exponential"]
+        else:
+            return {}
+        return {
+            "field mean": (self.solution.mean - mean) / drive,
+            "slowest point": (self.slowest - core) / drive,
+        }
+
+    @property
     def effective_coefficient(self) -> float:
         """h_eff of the corrected lumped model at the start, W/(m²·K)."""
         return self.corrected.surface_coefficient

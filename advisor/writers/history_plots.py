@@ -27,6 +27,9 @@ from .plot_style import (
 )
 from .report_words import time_constant_text
 
+# the fitted models the advice may recommend, as the lumped-error plot names them
+RECOMMENDED_NAMES = {"two-node": "fitted two-node", "fitted exponential": "fitted exponential"}
+
 LONG_LABEL = 60  # characters: longer legend labels go in one column
 
 
@@ -226,7 +229,7 @@ def internal_difference_figure(assessment: Assessment) -> Figure:
 
 def lumped_error_figure(assessment: Assessment) -> Figure:
     """The lumped errors of :attr:`Assessment.error_histories` in percent against the
-    tolerance band."""
+    tolerance band, with the recommended fitted model's when the advice names one."""
     t, _, unit = scaled_times(assessment.solution)
     tolerance = 100 * assessment.verdict.tolerance
     figure = new_figure(8.0, 4.2)
@@ -246,6 +249,18 @@ def lumped_error_figure(assessment: Assessment) -> Figure:
             ls=styles[quantity],
             lw=1.6 if model == "classical" else 1.2,
             label=f"{model} lumped vs {quantity}",
+        )
+    name = RECOMMENDED_NAMES.get(assessment.verdict.recommended, "")
+    for quantity, error in assessment.recommended_error_histories.items():
+        percent = 100 * error
+        largest = max(largest, float(np.max(np.abs(percent))))
+        axes.plot(
+            t,
+            percent,
+            color=RECOMMENDED,
+            ls=styles[quantity],
+            lw=1.6,
+            label=f"{name} vs {quantity} (recommended)",
         )
     axes.set_ylim(-1.15 * largest, 1.15 * largest)
     axes.set_ylabel("field − lumped (% of T0 − T∞)")
