@@ -129,6 +129,11 @@ class NewtonStep:
         self.kept_order = KeptOrderLU(run.algebra)  # unsymmetric tangents: ordered once
         self._free_ones = np.zeros(run.system.size)  # 1 on the free degrees of freedom
         self._free_ones[run.system.free_dofs] = 1.0
+        # The free degrees of freedom as an index: a slice when every one is free (no held
+        # temperature), which reads and updates in place instead of gathering a copy.
+        every = run.system.free_dofs.size == run.system.size
+        self.free = slice(None) if every else run.system.free_dofs
+        self.heat_capacity = float(run.capacity_columns.sum())  # the part's, J/K
         self.rate: float | None = None  # the kept tangent's last rate of convergence
         self._closing: tuple | None = None  # (t1, field, stored, outflow) of the last step
 
@@ -250,7 +255,7 @@ class NewtonStep:
         ``u`` (in place), until the change left is below the tolerance and the step's heat
         balance closes."""
         controls, cost = self.run.controls, self.run.cost
-        free = self.run.system.free_dofs
+        free = self.free
         started, factoring = clock.perf_counter(), cost.factorisation_seconds
         key = (float(f"{formula.a[0] / (formula.beta * step):.12e}"),)
         self.beta = formula.beta  # the tangent is factorised divided by β
@@ -352,7 +357,7 @@ class NewtonStep:
     ) -> NoReturn:
         """Raise :class:`NewtonStepError` for a step whose iterations stalled or ran out."""
         self.run.cost.iterated(iteration)
-        free = self.run.system.free_dofs
+        free = self.free
         residual_norm = float(np.abs(r[free]).max(initial=0.0))
         how = "stalled after" if stalled >= STALLED_ITERATIONS else "not converged in"
         how = f"{how} {iteration} iterations"
@@ -380,7 +385,7 @@ class NewtonStep:
         """Refactorise the tangent at ``u`` and return Newton's update there with its largest
         entry (K)."""
         self._renew(u, formula, step, t1, key)
-        change = self.tangent[1].solve(-r[self.run.system.free_dofs]) / self.beta
+        change = self.tangent[1].solve(-r[self.free]) / self.beta
         return change, float(np.abs(change).max(initial=0.0))
 
     @staticmethod
@@ -400,9 +405,9 @@ class NewtonStep:
         """Whether the heat the residual ``r`` (W) leaves unbalanced over the step is within
         ``BALANCE_SHARE`` of the tolerance times the part's heat capacity: the error an early
         stop puts into the run's energy balance stays far below its 1e-6 check."""
-        defect = abs(float(r[self.run.system.free_dofs].sum())) * step / formula.a[0]
-        capacity = float(self.run.capacity_columns.sum())
-        return defect <= BALANCE_SHARE * self.run.controls.newton_tolerance * capacity
+        defect = abs(float(r[self.free].sum())) * step / formula.a[0]
+        tolerance = self.run.controls.newton_tolerance
+        return defect <= BALANCE_SHARE * tolerance * self.heat_capacity
 
     def _close_balance(self, u, r, residual, formula: StepFormula, step: float) -> np.ndarray:
         """Close the step's heat balance by a uniform shift of the free temperatures, the
@@ -413,7 +418,7 @@ class NewtonStep:
         is the defect over the whole capacity), and a few residuals replace the several solves
         the kept tangent would need to close the balance by itself. The residual at ``u``
         (shifted in place) is returned."""
-        free = self.run.system.free_dofs
+        free = self.free
         slope, shift = self.beta * self.tangent[2], 0.0
         defect = float(r[free].sum())
         for _ in range(BALANCE_SECANTS):
