@@ -26,11 +26,27 @@ returns None, and :class:`fem.newton.NewtonStep` iterates on the whole field fro
 
 from __future__ import annotations
 
+import functools
+
 import numpy as np
-import scipy.sparse as sp
-from scipy.sparse.linalg import splu
+from scipy.linalg import lu_factor, lu_solve
 
 from .tangents import BoundaryCorrection, SurfaceRestriction
+
+
+@functools.cache
+def _thread_pools():
+    from threadpoolctl import ThreadpoolController  # 4 ms to find the loaded libraries
+
+    return ThreadpoolController()
+
+
+def one_blas_thread():
+    """A context in which BLAS and LAPACK run on one thread: a dense LU of a few hundred
+    unknowns took 0.3 ms on one thread and up to 100 ms when OpenBLAS's second thread waited
+    for a core busy with another process (SuperLU, single-threaded, took 1–1.5 ms)."""
+    return _thread_pools().limit(limits=1, user_api="blas")
+
 
 SURFACE_SHARE = 0.1  # the surface iterations stop at this share of the step's tolerance
 SURFACE_RATE = 0.25  # a kept surface Jacobian must shrink the change at least this much
@@ -130,11 +146,11 @@ class SurfaceCondensation:
         if self._jacobian is None or self._jacobian[0] is not correction:
             self._factorise(work, correction, time)
         for iteration in range(1, limit + 1):
-            change = self._jacobian[1].solve(-defect)
+            change = lu_solve(self._jacobian[1], -defect, check_finite=False)
             largest = float(np.abs(change).max(initial=0.0))
             if largest > SURFACE_RATE * previous and not self._jacobian[2]:
                 self._factorise(work, correction, time)  # at s: the kept one fell behind
-                change = self._jacobian[1].solve(-defect)
+                change = lu_solve(self._jacobian[1], -defect, check_finite=False)
                 largest = float(np.abs(change).max(initial=0.0))
             rate = largest / previous  # the changes still to come: θ/(1 − θ) of this one
             if largest <= SURFACE_SHARE * tolerance or (
@@ -161,9 +177,8 @@ class SurfaceCondensation:
         """Factorise I + C·Δ with Δ at the surface temperatures in ``work``."""
         slope = self._restricted(self.system.surface_tangent(work, time).tocsr())
         jacobian = np.eye(self.nodes.size) + (slope.T @ correction.coupling.T).T
-        # SuperLU, not LAPACK: OpenBLAS's threads wait for a busy core (0.3 ms became 100 ms
-        # beside another process), and SuperLU runs on one.
-        lu = splu(sp.csc_matrix(jacobian), permc_spec="NATURAL")
+        with one_blas_thread():
+            lu = lu_factor(jacobian, check_finite=False)
         self._jacobian = (correction, lu, True)
 
     def _outflow(self, work: np.ndarray, s: np.ndarray, time: float) -> np.ndarray:
