@@ -10,8 +10,12 @@ the run's measured prices. A step then costs a few solves instead of a factorisa
 iteration. The tangent is kept as J/β, keyed by a0/(β·h), so steps of equal a0/(β·h) (a
 backward-Euler half step and a Crank–Nicolson step) share it. With k(T) and a constant capacity
 it is the symmetric chord of :mod:`fem.tangents`, by Cholesky; a model nonlinear only at its
-surface (fixed steps) keeps the tangent without the surface's terms and adds them exactly at
-every iterate (:class:`fem.tangents.BoundaryCorrection`): Newton's method, no refactorisation.
+surface (fixed steps) keeps the tangent without the surface's terms and solves each step on
+the surface unknowns alone (:mod:`fem.surface_step`: two solves a step); where that hands the
+step back, the whole field iterates with the surface's terms added exactly at every iterate
+(:class:`fem.tangents.BoundaryCorrection`): Newton's method, no refactorisation. A step takes
+the stored heat and outflow of the state it starts from out of the residual the last step ended
+with (not across a breakpoint).
 
 A step has converged when the change is below ``newton_tolerance`` or, at the rate the changes
 shrink, the changes still to come are (Hairer & Wanner's test), and the heat the residual
