@@ -145,3 +145,25 @@ def test_linearised_coefficient_follows_the_curve():
             line = kind.linearised(temperature, 0.0)
             assert line.coefficient == pytest.approx(expected, rel=1e-12)
             assert line.ambient == BATH
+
+
+def test_a_coefficient_function_that_gives_nan_is_named():
+    # A function that is undefined below 400 °C (NaN), met as the surface cools through it:
+    # the run stops with the function and the temperature, not inside a factorisation.
+    from fem import ModelError
+
+    def film_only(surface):
+        surface = np.asarray(surface, dtype=float)
+        return np.where(surface < 400.0, np.nan, 500.0)
+
+    section = Rectangle(0.02, 0.01, edge_names={"top": "cooled"}).mesh(0.002)
+    others = {name: Insulated() for name in section.edge_groups if name != "cooled"}
+    cooled = SurfaceTemperatureConvection(film_only, 20.0)
+    model = ThermalModel(
+        section, Material(40.0, 7800.0, 500.0), {"cooled": cooled, **others}, 800.0
+    )
+    for settings in ({"time_step": 5.0}, {}):  # fixed steps (surface condensation), adaptive
+        with pytest.raises(ModelError, match=r"'film_only' gave h = nan .* at a surface") as e:
+            solve(model, 600.0, **settings)
+        surface = float(str(e.value).split("surface temperature of ")[1].split(" °C")[0])
+        assert surface < 400.0

@@ -87,6 +87,7 @@ class SurfaceTemperatureConvection(Condition):
         t = np.asarray(surface, dtype=float)
         h = np.asarray(curve(t), dtype=float)
         slope = (curve(t + DERIVATIVE_STEP) - curve(t - DERIVATIVE_STEP)) / (2 * DERIVATIVE_STEP)
+        _check_finite(h, slope, t, curve)
         return h * (t - ambient), h + slope * (t - ambient)
 
     def coefficient(self, surface, time: float = 0.0):
@@ -143,6 +144,22 @@ class SurfaceTemperatureConvection(Condition):
             for start, curve in self.curve
         ]
         return {"kind": self.label, "curve": stages, "ambient_degC": schedule_data(self.ambient)}
+
+
+def _check_finite(h: np.ndarray, slope: np.ndarray, surface: np.ndarray, curve) -> None:
+    """Refuse a coefficient function that gave NaN or infinity (or an h or slope of another
+    shape than the temperatures it was given), naming the first surface temperature."""
+    h, slope = np.broadcast_to(h, surface.shape), np.broadcast_to(slope, surface.shape)
+    bad = ~(np.isfinite(h) & np.isfinite(slope))
+    if bad.any():
+        raise ModelError(
+            f"the heat-transfer coefficient function {getattr(curve, '__name__', curve)!r} "
+            f"gave h = {float(h[bad][0]):.6g} W/(m²·K) with a slope of "
+            f"{float(slope[bad][0]):.6g} W/(m²·K²) at a surface temperature of "
+            f"{float(surface[bad][0]):.6g} °C: both must be finite at every temperature the "
+            "surface passes through",
+            argument="curve",
+        )
 
 
 def _stages(curve) -> tuple[tuple[float, Curve], ...]:
