@@ -42,6 +42,7 @@ from .integrators import StepFormula, StepResult
 from .linalg import NESTED_DISSECTION_FROM, KeptOrderLU
 from .nonlinear_acceleration import AndersonMixing
 from .nonlinear_assembly import nodal_conductivity
+from .single_precision import SinglePrecisionLU
 from .stepper import RunContext
 from .tangents import (
     BoundaryCorrection,
@@ -206,7 +207,9 @@ class NewtonStep:
         a step for LU at 10k nodes, the same iterations); otherwise SuperLU's LU in
         the order kept from the run's first tangent (:class:`fem.linalg.KeptOrderLU`), or its
         symmetric mode on nested dissection for a symmetric tangent from
-        ``NESTED_DISSECTION_FROM`` unknowns.
+        ``NESTED_DISSECTION_FROM`` unknowns. The kept order's LU is in single precision where
+        a check solve shows it close enough (:mod:`fem.single_precision`: on the freezing
+        benchmark 25.7 against 28.0 ms a step, the same iterations).
 
         Latent heat stays with LU: a symmetric approximate tangent by Cholesky (sym(J), or the
         chord above) was measured slower on the benchmark's freezing block at 10k nodes, since
@@ -216,16 +219,19 @@ class NewtonStep:
         16 % more iterations. And the chord's capacity error is large at the front, where
         CHOLMOD reports an indefinite matrix on the standard output before it fails."""
         algebra, system = self.run.algebra, self.run.system
+        single = self.__dict__.get("single")  # the kept order's LU, single precision if it may
+        if single is None:
+            single = self.single = SinglePrecisionLU(self.kept_order, system.free_dofs)
         if self.symmetric and system.free_dofs.size >= NESTED_DISSECTION_FROM:
             return algebra.factor(jacobian, True)  # SuperLU's symmetric mode, dissected
         if self.symmetric:  # LU in the kept order: h(T_s) may make it indefinite
-            return self.kept_order.factor(jacobian)
+            return single.factor(jacobian)
         if self.definite_chord:
             scale = nodal_conductivity(system, u)
             factor = algebra.factor(symmetric_scaled(jacobian, scale), True, "cholesky")
             if getattr(factor, "solver", None) == "cholesky":  # else P was not definite
                 return ScaledFactor(factor, scale[system.free_dofs])
-        return self.kept_order.factor(jacobian)
+        return single.factor(jacobian)
 
     def _iterate(self, u, residual, formula: StepFormula, step: float, t1: float) -> None:
         """Damped, accelerated simplified Newton iterations on the free degrees of freedom of
