@@ -67,3 +67,15 @@ def test_badly_conditioned_tangent_falls_back_to_double_precision():
     # A backward-stable solve: residual ≤ (round-off × growth room) · ‖J‖ · ‖x‖.
     size = spla.norm(tangent, 1)
     assert np.linalg.norm(tangent @ solved - rhs) <= 1e-12 * size * np.linalg.norm(solved)
+
+
+def test_tangent_singular_once_rounded_is_factorised_in_double_precision():
+    # [[1, 1], [1, 1 + 1e-10]] rounds to a singular matrix in single precision (2⁻²⁴ ≈ 6e-8);
+    # in double precision its determinant 1e-10 is kept, and x = [1, 1] solves it for
+    # b = [2, 2 + 1e-10] (by hand), to its condition 4e10 times 1e-16 (1e-4 with room).
+    tangent = sp.csr_matrix(np.array([[1.0, 1.0], [1.0, 1.0 + 1e-10]]))
+    lu = _lu(np.arange(2))
+    factor = lu.factor(tangent)
+    assert lu.doubles == 1
+    solved = factor.solve(np.array([2.0, 2.0 + 1e-10]))
+    assert np.allclose(solved, [1.0, 1.0], rtol=0.0, atol=1e-4)
