@@ -63,6 +63,15 @@ front makes a kept tangent converge at only 0.3–0.6 an iteration, so a step ta
 iterations (a solve 0.65–0.8 ms, a residual 1.1 ms, Anderson's mixing 0.3 ms) and half a
 factorisation (15–20 ms with the tangent's assembly); what was tried and dropped is listed
 in DEVELOPERS.md.
+
+Latent heat with the kept tangent's LU in single precision (:mod:`fem.single_precision`) and
+a latent-heat tangent renewed once it has served two steps (``fem.newton.PHASE_TANGENT_STEPS``),
+measured back to back against the tree before them, in both orders (load average 0.8–1.0):
+26.7 and 26.8 → 23.2 and 23.6 ms a step, 31.9× and 34.5× → 31.0× and 30.9× (the linear twin
+took 0.75–0.84 ms), 6.20 → 4.82 iterations, 100 → 119 factorisations, the energy balance at
+5e-11. The single precision alone: 26.5 → 24.4 ms (6.11 iterations, 102 factorisations); at
+38k nodes, 50 steps, alternating in one process, 227 → 188 ms. The 3× target stays out of
+reach: the step is still a factorisation every 1.7 steps and five solves and residuals.
 """
 
 from __future__ import annotations
