@@ -125,9 +125,10 @@ class NewtonStep:
         # Capacity, conduction and radiation (4εσT³ ≥ 0) keep the chord positive definite. A
         # c(T) without latent heat keeps the chord's capacity error small (k varies little
         # between neighbours); latent heat does not (see _factorised).
-        self.definite_chord = not any(
-            m.has_phase_change for m in run.system.model.materials.values()
-        ) and all(c.linear or isinstance(c, Radiation) for _, c in run.system.flowing())
+        self.phase_change = any(m.has_phase_change for m in run.system.model.materials.values())
+        self.definite_chord = not self.phase_change and all(
+            c.linear or isinstance(c, Radiation) for _, c in run.system.flowing()
+        )
         if self.surface is not None:
             self._restricted = SurfaceRestriction(run.system.free_dofs[self.surface])
             self.condensation = SurfaceCondensation(run.system, self.surface)
@@ -135,6 +136,8 @@ class NewtonStep:
         self.bordered: dict = {}  # key → (key, BoundaryCorrection): constant per step size
         self.mixing = AndersonMixing()
         self.kept_order = KeptOrderLU(run.algebra)  # unsymmetric tangents: ordered once
+        self.single = SinglePrecisionLU(self.kept_order, run.system.free_dofs)
+        self.tangent_steps = 0  # steps begun on the kept tangent since it was factorised
         self._free_ones = np.zeros(run.system.size)  # 1 on the free degrees of freedom
         self._free_ones[run.system.free_dofs] = 1.0
         # The free degrees of freedom as an index: a slice when every one is free (no held
@@ -249,10 +252,8 @@ class NewtonStep:
         16 % more iterations. And the chord's capacity error is large at the front, where
         CHOLMOD reports an indefinite matrix on the standard output before it fails."""
         algebra, system = self.run.algebra, self.run.system
-        self.tangent_steps = (0, self.run.cost.newton_iterations)  # (steps served, count seen)
-        single = self.__dict__.get("single")  # the kept order's LU, single precision if it may
-        if single is None:
-            single = self.single = SinglePrecisionLU(self.kept_order, system.free_dofs)
+        self.tangent_steps = 0
+        single = self.single  # the kept order's LU, single precision where it may
         if self.symmetric and system.free_dofs.size >= NESTED_DISSECTION_FROM:
             return algebra.factor(jacobian, True)  # SuperLU's symmetric mode, dissected
         if self.symmetric:  # LU in the kept order: h(T_s) may make it indefinite
@@ -282,6 +283,8 @@ class NewtonStep:
             self.tangent = self.bordered.get(key)  # a step size seen before (a retry)
         if self.tangent is None:
             self._factor(u, formula, step, t1, key)
+        else:
+            self.tangent_steps += 1
         if self.surface is not None and self._condensed(u, residual, formula, step, t1):
             cost.iteration_seconds += clock.perf_counter() - started
             cost.iteration_seconds -= cost.factorisation_seconds - factoring
@@ -463,16 +466,13 @@ class NewtonStep:
         change by only 0.5-0.6 an iteration after the first, and refactorising took 4.8 instead of
         6.1 iterations a step for 119 instead of 102 factorisations, 22.7 instead of 24.0 ms a
         step (1k nodes: 3.05 against 3.20 ms; 38k: 169 against 173 ms)."""
-        phase = self.__dict__.get("phase_change")
-        if phase is None:
-            materials = self.run.system.model.materials.values()
-            phase = self.phase_change = any(m.has_phase_change for m in materials)
-        served, seen = getattr(self, "tangent_steps", (0, None))
-        total = self.run.cost.newton_iterations  # grows at each step's end
-        if phase and seen is not None and total != seen:  # (seen by steps of 2+ iterations)
-            served, seen = served + 1, total
-            self.tangent_steps = (served, seen)
-        if phase and kept >= 1 and change > tolerance and served >= PHASE_TANGENT_STEPS:
+        served = self.tangent_steps
+        if (
+            self.phase_change
+            and kept >= 1
+            and change > tolerance
+            and served >= PHASE_TANGENT_STEPS
+        ):
             return True
         rate = change / previous
         if kept < GRACE:
