@@ -19,59 +19,58 @@ Run from the repository root::
 
 It prints a table and writes ``benchmarks/results-nonlinear.json``.
 
-Measured at 9,761 nodes, 200 steps, ``--repeat 3``: the tree before the cheaper freezing
-residual and factorisations (extracted with ``git archive``) and after them, run back to back
-on the two-core machine shared with other jobs (``uptime`` load average 0.62 → 0.75 over the
-new run, 0.75 → 0.86 over the old); per-step cost, ratio to the linear twin, Newton
-iterations per step, factorisations over the run:
+Measured at 9,761 nodes, 200 steps, ``--repeat 3``, the tree of 2026-12-05's start
+(``git worktree`` of dad9aed) and the present one back to back (``uptime`` load average
+0.39 → 0.76); per-step cost, ratio to the linear twin (0.74–0.77 ms), iterations per step,
+factorisations over the run:
 
 =============  ===============================  ===============================
 case           before                           after
 =============  ===============================  ===============================
-k(T)           3.40 ms, 4.5×, 2.22, 1           3.01 ms, 4.0×, 2.22, 1
-latent heat    41.1 ms, 57×, 6.20, 100          25.4 ms, 34×, 6.24, 99
-h(T_s)         5.05 ms, 7.0×, 1.97, 3           5.15 ms, 7.0×, 1.97, 3
+k(T)           3.00 ms, 3.98×, 2.22, 1          2.54 ms, 3.43×, 2.22, 1
+latent heat    26.3 ms, 34.1×, 6.20, 100        22.0 ms, 29.5×, 4.83, 118
+h(T_s)         5.16 ms, 6.77×, 1.97, 3          3.39 ms, 4.55×, 4.90, 3
 =============  ===============================  ===============================
 
-The linear twins took 0.72–0.75 ms a step in both runs (an earlier pair of runs that day:
-latent heat 43.0 → 27.1 ms, 57× → 36×; at 1,035 nodes 5.15 → 3.17 ms, 57× → 35×; at 38k
-nodes, 100 steps, one run each, 348 → 206 ms, 74× → 37×). What did it, for latent heat (in a
-cProfile of the run, 9.3 s → 5.6 s): the enthalpy at the 57k quadrature points (two property
-integrals a residual, 2.2 s) as a sum of ramps for few-point tables instead of a binary search,
-evaluated pass by pass into buffers kept for the run (:mod:`fem.stored_heat`; a NumPy scalar
-times an array, and a second live array of the points, each cost 10× the arithmetic), 0.5 s
-now; the unsymmetric tangent factorised in the order of the run's first one with SuperLU's
-supernodes unrelaxed (:class:`fem.linalg.KeptOrderLU`, 25 → 14.5 ms a factorisation, the same
-fill); the tangent assembled without sums with empty matrices, its capacity part as one
-sparse product with ρc at the points (1.4 → 0.5 ms). The k(T) case gained from the
-ramps in its Kirchhoff transform. Iterations and factorisations are unchanged: the
-improvement is all in their prices. The energy balances stayed at 1e-14–1e-10.
+h(T_s)'s iterations are now Newton iterations on the 183 surface unknowns
+(:mod:`fem.surface_step`), each a surface evaluation and a dense solve, not iterations on the
+whole field. What did it:
 
-A symmetric approximate tangent by Cholesky for latent heat was measured and dropped: sym(J)
-took 1449 iterations and 89 factorisations (48.6 ms a step), the chord of
-:mod:`fem.tangents` 1291 and 96 (48.7 ms), against LU's 1252 and 100 (44.8 ms), since a moving
-front needs a factorisation about every second step (13 solves each) and CHOLMOD's, its
-ordering redone every time, took 38 ms at 10k unknowns against LU's 25 ms (now 14.5 ms), which
-its cheaper solves (0.3 against 0.65 ms) do not repay. Where the chord is kept for the run,
-it pays: a steel-like k(T) with c(T) and no latent heat (not one of the cases above) now takes
-it too, 9.5 → 8.1 ms a step at 10k nodes with the same 3.9 iterations and one factorisation.
+- h(T_s): each step solved on the surface unknowns alone, then the field by one more solve
+  (two solves and two residuals a step, against two solves, a GMRES and a residual an
+  iteration); the surface Jacobian I + C·Δ by LAPACK on one BLAS thread (0.3 ms, against
+  SuperLU's 1–1.5 ms and OpenBLAS's second thread waiting up to 100 ms for a busy core); C
+  built in blocks of 8 right-hand sides (25 against 43 ms in blocks of 64); a stalled surface
+  iteration retried smaller at once. Away from the film's collapse a step costs about 2.6×
+  the linear one; the collapse costs two failed 1 s steps and a factorisation and C for each
+  of the two smaller sizes (about 0.19 s of the run's 0.70 s).
+- every nonlinear Crank–Nicolson step: the old state's stored heat and outflow taken from the
+  residual the last step ended with, the free unknowns indexed by a slice, the converged
+  update without the mixing's least squares (k(T): 3.00 → 2.54 ms).
+- latent heat: the kept tangent's LU in single precision where a check solve against the
+  double tangent leaves a relative residual below 1e-4 (:mod:`fem.single_precision`; 15.7 →
+  12.5 ms a factorisation, 0.67 → 0.53 ms a solve), and a latent-heat tangent renewed at the
+  second iteration of its third step (``fem.newton.PHASE_TANGENT_STEPS``; 6.2 → 4.8
+  iterations a step for 118 instead of 100 factorisations). The Neumann errors of the
+  freezing tests agree to 0.001 % with the earlier tree.
 
-The 3× target is NOT MET. k(T) is at about 4×: two iterations a step, each a solve and a
-residual, are the floor at the default 1e-6 K tolerance. h(T_s) at 7×: two solves and a GMRES
-on the 183 surface nodes an iteration, two iterations a step. Latent heat at 34–36×: a moving
-front makes a kept tangent converge at only 0.3–0.6 an iteration, so a step takes 5–7
-iterations (a solve 0.65–0.8 ms, a residual 1.1 ms, Anderson's mixing 0.3 ms) and half a
-factorisation (15–20 ms with the tangent's assembly); what was tried and dropped is listed
-in DEVELOPERS.md.
+The energy balances stayed at 1e-14–1e-10. Earlier figures (the tree before the cheaper
+freezing residual: k(T) 4.5×, latent heat 57×, h(T_s) 7.0×; before the tangents of
+:mod:`fem.tangents`: 5.8×, 72×, 17.5×) and what each change did are in
+``benchmarks/README.md``, "Nonlinear steps".
 
-Latent heat with the kept tangent's LU in single precision (:mod:`fem.single_precision`) and
-a latent-heat tangent renewed once it has served two steps (``fem.newton.PHASE_TANGENT_STEPS``),
-measured back to back against the tree before them, in both orders (load average 0.8–1.0):
-26.7 and 26.8 → 23.2 and 23.6 ms a step, 31.9× and 34.5× → 31.0× and 30.9× (the linear twin
-took 0.75–0.84 ms), 6.20 → 4.82 iterations, 100 → 119 factorisations, the energy balance at
-5e-11. The single precision alone: 26.5 → 24.4 ms (6.11 iterations, 102 factorisations); at
-38k nodes, 50 steps, alternating in one process, 227 → 188 ms. The 3× target stays out of
-reach: the step is still a factorisation every 1.7 steps and five solves and residuals.
+The 3× target is met by k(T) on larger meshes only (3.4× at 10k nodes, where each of its two
+iterations a step is a solve and a residual and the Python around them is a fifth of the step;
+2.7× at 38k nodes, ``benchmarks/README.md``), and NOT MET by h(T_s) (4.5×, the film's
+collapse) or latent heat (29–31×). Latent heat: air cooling keeps 11–13 % of the nodes inside
+the 1 K freezing range, where the capacity is about 75× the sensible one and changes with every
+iterate, so a kept tangent shrinks the change by only 0.3–0.6 an iteration: a step is about
+five iterations (a residual, 1.1 ms, is itself 1.5 linear steps; a solve 0.5 ms) and a
+factorisation every 1.7 steps (12.5 ms). Even Newton's exact tangent at no cost would leave two
+iterations, three residuals and two solves (4.3 ms, 5.7 linear steps). What was tried and dropped (one fixed matrix per step
+size, which did not converge in 30 iterations even at 0.015 s steps; a kept LU with an exact
+local solve at the changed rows; GMRES preconditioned by the kept LU; other orderings and
+SuperLU settings; symmetric tangents by Cholesky) is listed with its figures in DEVELOPERS.md.
 """
 
 from __future__ import annotations
