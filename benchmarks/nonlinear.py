@@ -67,10 +67,11 @@ the 1 K freezing range, where the capacity is about 75× the sensible one and ch
 iterate, so a kept tangent shrinks the change by only 0.3–0.6 an iteration: a step is about
 five iterations (a residual, 1.1 ms, is itself 1.5 linear steps; a solve 0.5 ms) and a
 factorisation every 1.7 steps (12.5 ms). Even Newton's exact tangent at no cost would leave two
-iterations, three residuals and two solves (4.3 ms, 5.7 linear steps). What was tried and dropped (one fixed matrix per step
-size, which did not converge in 30 iterations even at 0.015 s steps; a kept LU with an exact
-local solve at the changed rows; GMRES preconditioned by the kept LU; other orderings and
-SuperLU settings; symmetric tangents by Cholesky) is listed with its figures in DEVELOPERS.md.
+iterations, three residuals and two solves (4.3 ms, 5.7 linear steps). What was tried and
+dropped (one fixed matrix per step size, which did not converge in 30 iterations even at
+0.015 s steps; a kept LU with an exact local solve at the changed rows; GMRES preconditioned
+by the kept LU; other orderings and SuperLU settings; symmetric tangents by Cholesky) is
+listed with its figures in DEVELOPERS.md.
 """
 
 from __future__ import annotations
