@@ -13,15 +13,19 @@ nodes S. Its root is u = u⁰ + y − J₀⁻¹·E·(q(u_S) − q⁰) with y = �
 
 |S| equations whose Jacobian is I + C·Δ, Δ = ∂q/∂s (the bordered system of
 :class:`fem.tangents.BoundaryCorrection`, which keeps C). Newton's method on F costs surface
-evaluations and GMRES on |S| unknowns; the step then costs two solves with J₀ (y, and the
-field from the converged surface) and two residuals (at the guess, and at the answer for the
-heat bookkeeping), where Newton's method on the whole field took two solves an iteration and
-two iterations a step. This is the condensation of the interior onto the surface (the Schur
+evaluations and dense solves on |S| unknowns, its Jacobian's LU kept across iterations and
+steps while it converges; the step then costs two solves with J₀ (y, and the field from the
+converged surface) and two residuals (at the guess, and at the answer for the heat
+bookkeeping), where Newton's method on the whole field took two solves an iteration and two
+iterations a step. This is the condensation of the interior onto the surface (the Schur
 complement; Golub & Van Loan, *Matrix Computations*, 4th ed., §2.1.4 and §3.2.11, from memory).
 
 The answer's residual is checked: a step whose residual is not affine after all (its
-correction, estimated by J₀'s diagonal, above the tolerance) or whose surface iterations fail
-returns None, and :class:`fem.newton.NewtonStep` iterates on the whole field from there.
+correction, estimated by J₀'s diagonal, above the tolerance) or whose surface iterations run
+out returns None, and :class:`fem.newton.NewtonStep` iterates on the whole field from there.
+Surface iterations that stall (updates cut short three times running: a falling stretch of a
+boiling curve, where the step may have no solution near its start) raise
+:class:`SurfaceStallError`, and the step is retried smaller.
 """
 
 from __future__ import annotations
@@ -52,8 +56,7 @@ SURFACE_SHARE = 0.1  # the surface iterations stop at this share of the step's t
 SURFACE_RATE = 0.25  # a kept surface Jacobian must shrink the change at least this much
 SHORTEST_LENGTH = 1.0 / 256  # the shortest damped surface update, as a share of Newton's
 # Updates this short this many times running: the iterations circle a kink of the curve (a
-# falling stretch of a boiling curve), and the whole field's iterations, which may retry the
-# step smaller, take over.
+# falling stretch of a boiling curve), and the step is retried smaller.
 STALLED_LENGTH, STALLED_ITERATIONS = 1.0 / 8, 3
 
 
