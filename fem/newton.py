@@ -40,23 +40,13 @@ from typing import NoReturn
 
 import numpy as np
 
-from .conditions import Radiation
 from .errors import SolverError
 from .events import near
 from .integrators import StepFormula, StepResult
-from .linalg import NESTED_DISSECTION_FROM, KeptOrderLU
+from .newton_tangents import TangentMaker
 from .nonlinear_acceleration import AndersonMixing
-from .nonlinear_assembly import nodal_conductivity
-from .single_precision import SinglePrecisionLU
 from .stepper import RunContext
 from .surface_step import SurfaceCondensation, SurfaceStallError
-from .tangents import (
-    BoundaryCorrection,
-    ScaledFactor,
-    SurfaceRestriction,
-    bordered_surface,
-    symmetric_scaled,
-)
 
 BALANCE_SHARE = 1e-3  # an early stop's heat defect per step, in tolerance × heat capacity
 BALANCE_SECANTS = 3  # uniform shifts tried to close a step's heat balance
@@ -64,19 +54,11 @@ BALANCE_SECANTS = 3  # uniform shifts tried to close a step's heat balance
 # stays in force for larger ones (an update accepted on the last step's rate alone).
 CLOSING_CHANGE = 1e3
 CLOSING_SHIFT = 1e-2  # ... by a shift of at most this many tolerances (uniform error it adds)
-# Surface nodes up to which a surface-only nonlinearity is solved by the bordered tangent
-# instead of refactorising: each costs one solve per step size, and a factorisation 25-110
-# solves (10k-1M unknowns), so 1000 is about what a quench's 30 refactorisations cost.
-BORDERED_NODES = 1000
-BORDERED_KEPT = 3  # bordered tangents kept: the run's step and a retry's halves
-# Bordered tangents built in a run before it returns to kept chords: a coefficient h(t) that
-# changes every step (a ramp) would otherwise cost a factorisation and |S| solves a step.
-BORDERED_BUILDS = 12
 GRACE = 3  # iterations a kept tangent is given in a step before its rate is judged
 DIVERGING = 2.0  # ... unless it grows the change this much
 TANGENT_RATE = 0.5  # a kept Newton tangent must shrink the change at least this much per iteration
 # Steps a latent-heat tangent has served, from which it is refactorised at its step's second
-# iteration: the freezing range's band has moved through it (see _stale).
+# iteration: the freezing range's band has moved through it (see NewtonStep._stale).
 PHASE_TANGENT_STEPS = 2
 SUFFICIENT_DECREASE = 1e-4  # Armijo: the residual norm must fall by this fraction of the length
 SHORTEST_UPDATE = 1.0 / 64  # the shortest damped update, as a fraction of Newton's
@@ -114,32 +96,13 @@ class NewtonStep:
 
     def __init__(self, run: RunContext):
         self.run = run
-        # Capacity, radiation and h(T_s) tangents are symmetric; k(T) adds k'(T)·δ·∇T, which
-        # is not.
-        self.symmetric = all(
-            isinstance(m.conductivity, float) for m in run.system.model.materials.values()
-        )
         self.tangent = None  # (key, factor of J/β, 1ᵀ·J·1/β) kept for simplified Newton
         self.beta = 1.0  # the step formula's β: the tangent kept is J/β
-        self.surface = bordered_surface(run.system, run.controls.adaptive, BORDERED_NODES)
-        # Capacity, conduction and radiation (4εσT³ ≥ 0) keep the chord positive definite. A
-        # c(T) without latent heat keeps the chord's capacity error small (k varies little
-        # between neighbours); latent heat does not (see _factorised).
-        self.phase_change = any(m.has_phase_change for m in run.system.model.materials.values())
-        self.definite_chord = not self.phase_change and all(
-            c.linear or isinstance(c, Radiation) for _, c in run.system.flowing()
-        )
-        if self.surface is not None:
-            self._restricted = SurfaceRestriction(run.system.free_dofs[self.surface])
-            self.condensation = SurfaceCondensation(run.system, self.surface)
-        self.bordered_builds = 0
-        self.bordered: dict = {}  # key → (key, BoundaryCorrection): constant per step size
+        self.tangents = TangentMaker(run)
+        if self.tangents.surface is not None:
+            self.condensation = SurfaceCondensation(run.system, self.tangents.surface)
         self.mixing = AndersonMixing()
-        self.kept_order = KeptOrderLU(run.algebra)  # unsymmetric tangents: ordered once
-        self.single = SinglePrecisionLU(self.kept_order, run.system.free_dofs)
         self.tangent_steps = 0  # steps begun on the kept tangent since it was factorised
-        self._free_ones = np.zeros(run.system.size)  # 1 on the free degrees of freedom
-        self._free_ones[run.system.free_dofs] = 1.0
         # The free degrees of freedom as an index: a slice when every one is free (no held
         # temperature), which reads and updates in place instead of gathering a copy.
         every = run.system.free_dofs.size == run.system.size
@@ -201,69 +164,11 @@ class NewtonStep:
             return None
         return closing[2], closing[3]
 
-    def _linearise(self, u: np.ndarray, formula: StepFormula, step: float, t1: float) -> None:
-        """Give the bordered tangent the surface terms Δ at ``u``."""
-        tangent = self.run.system.surface_tangent(u, t1 - 1e-9 * step).tocsr()
-        self.tangent[1].linearise(self._restricted(tangent))
-
     def _factor(self, u: np.ndarray, formula: StepFormula, step: float, t1: float, key) -> None:
         """Factorise the tangent at ``u`` and keep it under ``key``."""
-        system = self.run.system
-        free = system.free_dofs
-        # J/β = (a₀/(β·h))·C' + G': one factorisation serves steps of equal a₀/(β·h), as a
-        # backward-Euler half step and a Crank–Nicolson step of the same run.
-        scale = formula.a[0] / (formula.beta * step)
-        if self.surface is not None:  # the surface's terms come each iteration
-            interior = scale * system.capacity_tangent(u) + system.outflow_tangent(
-                u, t1 - 1e-9 * step, remainders=False
-            )
-            factor = self.run.algebra.factor(interior, True, "cholesky")
-            slope = float(interior[free][:, free].sum())  # 1ᵀ·J₀·1/β (a secant corrects it)
-            diagonal = interior.diagonal()[free]
-            correction = BoundaryCorrection(factor, self.surface, free.size, diagonal)
-            self.tangent = (key, correction, slope)
-            self.bordered[key] = self.tangent
-            self.bordered_builds += 1
-            while len(self.bordered) > BORDERED_KEPT:
-                self.bordered.pop(next(iter(self.bordered)))
-            self.rate = None
-            return
-        jacobian = scale * system.capacity_tangent(u) + system.outflow_tangent(u, t1 - 1e-9 * step)
-        slope = float(self._free_ones @ (jacobian @ self._free_ones))  # 1ᵀ·J·1/β, W/K
-        self.tangent = (key, self._factorised(jacobian, u), slope)
+        self.tangent = self.tangents.make(u, formula, step, t1, key)
         self.rate = None  # not known for the new tangent
-
-    def _factorised(self, jacobian, u: np.ndarray):
-        """The tangent's factorisation: with k(T), no latent heat and no surface term that
-        can fall with temperature the symmetric chord of :mod:`fem.tangents` by Cholesky (a
-        run of such steps factorises once or twice; with c(T) too, measured 8.1 against 9.5 ms
-        a step for LU at 10k nodes, the same iterations); otherwise SuperLU's LU in
-        the order kept from the run's first tangent (:class:`fem.linalg.KeptOrderLU`), or its
-        symmetric mode on nested dissection for a symmetric tangent from
-        ``NESTED_DISSECTION_FROM`` unknowns. The kept order's LU is in single precision where
-        a check solve shows it close enough (:mod:`fem.single_precision`: on the freezing
-        benchmark 25.7 against 28.0 ms a step, the same iterations).
-
-        Latent heat stays with LU: a symmetric approximate tangent by Cholesky (sym(J), or the
-        chord above) was measured slower on the benchmark's freezing block at 10k nodes, since
-        a front refactorises every second step (about 13 solves a factorisation) and CHOLMOD's
-        factorisation, ordering included every time, took 38 ms against 14.5 ms for the kept
-        order's LU, which its solves (0.3 against 0.65 ms) do not repay; sym(J) also took
-        16 % more iterations. And the chord's capacity error is large at the front, where
-        CHOLMOD reports an indefinite matrix on the standard output before it fails."""
-        algebra, system = self.run.algebra, self.run.system
         self.tangent_steps = 0
-        single = self.single  # the kept order's LU, single precision where it may
-        if self.symmetric and system.free_dofs.size >= NESTED_DISSECTION_FROM:
-            return algebra.factor(jacobian, True)  # SuperLU's symmetric mode, dissected
-        if self.symmetric:  # LU in the kept order: h(T_s) may make it indefinite
-            return single.factor(jacobian)
-        if self.definite_chord:
-            scale = nodal_conductivity(system, u)
-            factor = algebra.factor(symmetric_scaled(jacobian, scale), True, "cholesky")
-            if getattr(factor, "solver", None) == "cholesky":  # else P was not definite
-                return ScaledFactor(factor, scale[system.free_dofs])
-        return single.factor(jacobian)
 
     def _iterate(self, u, residual, formula: StepFormula, step: float, t1: float) -> None:
         """Damped, accelerated simplified Newton iterations on the free degrees of freedom of
@@ -274,18 +179,17 @@ class NewtonStep:
         started, factoring = clock.perf_counter(), cost.factorisation_seconds
         key = (float(f"{formula.a[0] / (formula.beta * step):.12e}"),)
         self.beta = formula.beta  # the tangent is factorised divided by β
-        if self.surface is not None and self.bordered_builds >= BORDERED_BUILDS:
-            self.surface, self.tangent = None, None  # h(t) keeps changing: chords instead
-            self.bordered.clear()
-        if self.surface is not None:  # J₀ holds the linear conditions' h(t) exactly
+        if self.tangents.ramping():  # h(t) keeps changing: chords instead
+            self.tangent = None
+        if self.tangents.surface is not None:  # J₀ holds the linear conditions' h(t) exactly
             key += self.run.system.exchange_key(t1 - 1e-9 * step)
         if self.tangent is None or self.tangent[0] != key:
-            self.tangent = self.bordered.get(key)  # a step size seen before (a retry)
+            self.tangent = self.tangents.bordered.get(key)  # a step size seen before (a retry)
         if self.tangent is None:
             self._factor(u, formula, step, t1, key)
         else:
             self.tangent_steps += 1
-        if self.surface is not None and self._condensed(u, residual, formula, step, t1):
+        if self.tangents.surface is not None and self._condensed(u, residual, formula, step, t1):
             cost.iteration_seconds += clock.perf_counter() - started
             cost.iteration_seconds -= cost.factorisation_seconds - factoring
             return
@@ -299,8 +203,8 @@ class NewtonStep:
         tolerance = controls.newton_tolerance  # K
         while iteration < controls.max_newton_iterations:
             iteration += 1
-            if self.surface is not None:  # Newton's tangent, exactly, at every iterate
-                self._linearise(u, formula, step, t1)
+            if self.tangents.surface is not None:  # Newton's tangent, exactly, at every iterate
+                self.tangents.linearise(self.tangent[1], u, t1 - 1e-9 * step)
                 self.mixing.reset()
                 fresh, kept = True, 0
             change = self.tangent[1].solve(-r[free]) / self.beta
@@ -391,7 +295,7 @@ class NewtonStep:
     def _renew(self, u, formula: StepFormula, step: float, t1: float, key) -> bool:
         """Refactorise the tangent at ``u``; the mixing starts again, since its updates came
         from the old tangent. True (the tangent is fresh)."""
-        if self.surface is not None:  # renewed at every iterate anyway
+        if self.tangents.surface is not None:  # renewed at every iterate anyway
             self.mixing.reset()
             return True
         self._factor(u, formula, step, t1, key)
@@ -468,7 +372,7 @@ class NewtonStep:
         step (1k nodes: 3.05 against 3.20 ms; 38k: 169 against 173 ms)."""
         served = self.tangent_steps
         if (
-            self.phase_change
+            self.tangents.phase_change
             and kept >= 1
             and change > tolerance
             and served >= PHASE_TANGENT_STEPS

@@ -182,7 +182,7 @@ def test_surface_condensation_agrees_with_whole_field_newton(monkeypatch):
     # edge (excluded from the surface unknowns), radiation alone on one edge and radiation
     # beside convection on another. Measured: 1.0e-7 K apart at the end, the held edge's heat
     # flow 1.9e-6 W apart of 5.9e4 W.
-    import fem.newton as newton
+    import fem.newton_tangents as newton_tangents
     from fem import Convection, FixedTemperature, Insulated, Material, Radiation, ThermalModel
     from geometries import Rectangle
 
@@ -195,7 +195,7 @@ def test_surface_condensation_agrees_with_whole_field_newton(monkeypatch):
     }
     model = ThermalModel(section, Material(20.0, 7800.0, 500.0), boundaries, 900.0)
     condensed = solve(model, 300.0, time_step=2.0, output_interval=60.0)
-    monkeypatch.setattr(newton, "bordered_surface", lambda *arguments: None)
+    monkeypatch.setattr(newton_tangents, "bordered_surface", lambda *arguments: None)
     whole = solve(model, 300.0, time_step=2.0, output_interval=60.0)
     assert np.abs(condensed.final_state - whole.final_state).max() < 1e-5
     held = np.abs(whole.heat_flow["left"]).max()
