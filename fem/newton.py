@@ -179,7 +179,7 @@ class NewtonStep:
         started, factoring = clock.perf_counter(), cost.factorisation_seconds
         key = (float(f"{formula.a[0] / (formula.beta * step):.12e}"),)
         self.beta = formula.beta  # the tangent is factorised divided by β
-        if self.tangents.ramping():  # h(t) keeps changing: chords instead
+        if self.tangents.end_bordering_if_ramped():  # h(t) keeps changing: chords instead
             self.tangent = None
         if self.tangents.surface is not None:  # J₀ holds the linear conditions' h(t) exactly
             key += self.run.system.exchange_key(t1 - 1e-9 * step)

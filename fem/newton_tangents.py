@@ -75,7 +75,7 @@ class TangentMaker:
         self._free_ones = np.zeros(run.system.size)  # 1 on the free degrees of freedom
         self._free_ones[run.system.free_dofs] = 1.0
 
-    def ramping(self) -> bool:
+    def end_bordering_if_ramped(self) -> bool:
         """Whether the bordered tangents are given up at this step: after ``BORDERED_BUILDS``
         of them (a coefficient h(t) that changes every step) the run returns to kept chords of
         the whole tangent, for good."""

@@ -117,8 +117,8 @@ CASES = {
 DIVISIONS = (5, 10)  # element size R/5 and R/10 (coarse meshes R/2.5 and R/5)
 
 
-def model(section, order: int = 1) -> ThermalModel:
-    fluid = Convection(heat_transfer_coefficient=BIOT * CONDUCTIVITY / R, ambient=AMBIENT)
+def model(section, order: int = 1, biot: float = BIOT) -> ThermalModel:
+    fluid = Convection(heat_transfer_coefficient=biot * CONDUCTIVITY / R, ambient=AMBIENT)
     boundaries = {"cooled": fluid}
     for name in section.edge_groups:
         if name != "cooled":

@@ -20,11 +20,8 @@ from scipy.optimize import brentq
 from test_error_estimate import (
     ALPHA,
     AMBIENT,
-    CONDUCTIVITY,
-    DENSITY,
     INITIAL,
     SHORT_STEPS,
-    SPECIFIC_HEAT,
     TERMS,
     R,
     _bar_section,
@@ -32,11 +29,12 @@ from test_error_estimate import (
     _largest,
     _sphere_section,
     _wall_section,
+    model,
 )
 
 from advisor.analysis.error_estimate import estimate_errors
 from advisor.analysis.lumped_fits import crossing_time
-from fem import Convection, Insulated, Material, ThermalModel, solve
+from fem import solve
 
 # shape → (section builder, series, whether θ* is the square of the wall's)
 SHAPES = {
@@ -48,20 +46,6 @@ SHAPES = {
 # (Biot number on R, target as the fraction of the initial difference left, end as Fo)
 CONDITIONS = ((5.0, 0.5, 1.5), (0.3, 0.6, 5.0))
 DIVISIONS = (4, 8)
-
-
-def _model(section, biot: float) -> ThermalModel:
-    fluid = Convection(heat_transfer_coefficient=biot * CONDUCTIVITY / R, ambient=AMBIENT)
-    boundaries = {"cooled": fluid}
-    for name in section.edge_groups:
-        if name != "cooled":
-            boundaries[name] = Insulated("symmetry" if name == "symmetry" else "insulated")
-    return ThermalModel(
-        section,
-        Material(CONDUCTIVITY, DENSITY, SPECIFIC_HEAT),
-        boundaries=boundaries,
-        initial_temperature=INITIAL,
-    )
 
 
 def _exact(series, biot: float, squared: bool, x: float):
@@ -106,10 +90,10 @@ def effectivities(request) -> dict[str, tuple[float, float]]:
     centre = _exact(series, biot, squared, 0.0)
     fastest = _exact(series, biot, squared, 1.0)  # the face, or the bar's corner
     end = end_fourier * R**2 / ALPHA
-    fine = _model(build(R / divisions), biot)
+    fine = model(build(R / divisions), biot=biot)
     solution = solve(fine, end)
     target = AMBIENT + theta * (INITIAL - AMBIENT)
-    coarse = _model(build(2 * R / divisions), biot)
+    coarse = model(build(2 * R / divisions), biot=biot)
     estimate = estimate_errors(solution, coarse, end_time=end, target=target, heading=AMBIENT)
     total = _true_errors(solution, centre, fastest, theta)
     space = _true_errors(solve(fine, end, **SHORT_STEPS), centre, fastest, theta)
